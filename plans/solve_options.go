@@ -1,0 +1,32 @@
+package plans
+
+import "time"
+
+// SolveOptions tune Solve. The zero value of every field means its default
+// or "no limit".
+type SolveOptions struct {
+	// TimeLimit bounds the branch-and-bound (0: no limit). When it is hit,
+	// Solve returns the best plan found with status feasible and its gap.
+	TimeLimit time.Duration
+	// Gap is the relative gap at which a plan counts as optimal
+	// (0: the default 1e-4; checks against other solvers use 1e-9).
+	Gap float64
+	// Progress, when set, is called from time to time during the search.
+	Progress func(Progress)
+	// NoHeuristic turns off the plan's rounding heuristic (for measuring
+	// what it buys).
+	NoHeuristic bool
+	// NoCutSets turns off the cut-set inequalities on link capacities.
+	NoCutSets bool
+}
+
+// Progress is a snapshot of a running solve. Objective and Bound are in NPV
+// terms (case currency); HasIncumbent is false until a plan is known.
+type Progress struct {
+	Objective    float64
+	Bound        float64
+	Gap          float64
+	HasIncumbent bool
+	Nodes        int
+	Elapsed      time.Duration
+}
