@@ -1,0 +1,401 @@
+package lp
+
+import "math"
+
+// Factorisation constants.
+const (
+	// luAbsPivotTol is the smallest |pivot| the LU accepts; a column with
+	// no larger entry is treated as dependent (common practice: 1e-10).
+	luAbsPivotTol = 1e-10
+	// luThreshold: a kernel pivot must be at least this fraction of the
+	// largest entry of its column (threshold partial pivoting; common
+	// practice 0.1).
+	luThreshold = 0.1
+	// luSearchCols is how many columns of smallest count the Markowitz
+	// search examines before taking its best candidate.
+	luSearchCols = 4
+)
+
+// factor is a sparse LU factorisation of a basis matrix B (m×m) followed by
+// product-form eta updates. Rows of B are constraint rows; columns are basis
+// positions.
+//
+// Elimination step k pivots on (pivRow[k], pivCol[k]): the multiples
+// lval[...] of row pivRow[k] are subtracted from rows lidx[...] (the L
+// part), and what remains of row pivRow[k] is U row k: diagonal diag[k] and
+// entries uidx/uval in columns pivoted later. Storage is proportional to
+// the nonzeros of L and U.
+type factor struct {
+	m      int
+	pivRow []int
+	pivCol []int
+	diag   []float64
+	lstart []int
+	lidx   []int
+	lval   []float64
+	ustart []int
+	uidx   []int
+	uval   []float64
+
+	// Eta file: update e replaced position etaPos[e]; its column (B⁻¹ of
+	// the entering column, without the pivot) is etaIdx/etaVal over
+	// etaStart[e]…etaStart[e+1], and etaPiv[e] is the pivot.
+	etaPos   []int
+	etaPiv   []float64
+	etaStart []int
+	etaIdx   []int
+	etaVal   []float64
+
+	work []float64
+}
+
+// numUpdates returns the number of eta updates since factorisation.
+func (f *factor) numUpdates() int { return len(f.etaPos) }
+
+// column returns the entries of basis column p.
+type columnFunc func(p int) (idx []int, val []float64)
+
+// factorize computes an LU factorisation of the m×m matrix whose columns
+// col(0), …, col(m−1) are given. It returns the factor and the positions of
+// columns found dependent together with rows left without a pivot (equal
+// in number); when that list is non-empty the factor is not usable and the
+// caller should replace those columns with the slacks of those rows and
+// factorise again. Cost: near O(nonzeros) for triangular bases, Markowitz
+// elimination with threshold pivoting on the remaining kernel.
+func factorize(m int, col columnFunc) (f *factor, badCols, freeRows []int) {
+	f = &factor{m: m, work: make([]float64, m)}
+	rowIdx := make([][]int, m)
+	rowVal := make([][]float64, m)
+	colRows := make([][]int, m)
+	for p := 0; p < m; p++ {
+		idx, val := col(p)
+		for k, i := range idx {
+			if val[k] == 0 {
+				continue
+			}
+			rowIdx[i] = append(rowIdx[i], p)
+			rowVal[i] = append(rowVal[i], val[k])
+			colRows[p] = append(colRows[p], i)
+		}
+	}
+	rowDone := make([]bool, m)
+	colDone := make([]bool, m)
+
+	// Column count buckets as doubly linked lists.
+	head := make([]int, m+2)
+	for c := range head {
+		head[c] = -1
+	}
+	next := make([]int, m)
+	prev := make([]int, m)
+	inBucket := make([]int, m)
+	link := func(c int) {
+		k := len(colRows[c])
+		if k > m+1 {
+			k = m + 1
+		}
+		inBucket[c] = k
+		prev[c] = -1
+		next[c] = head[k]
+		if head[k] >= 0 {
+			prev[head[k]] = c
+		}
+		head[k] = c
+	}
+	unlink := func(c int) {
+		k := inBucket[c]
+		if prev[c] >= 0 {
+			next[prev[c]] = next[c]
+		} else {
+			head[k] = next[c]
+		}
+		if next[c] >= 0 {
+			prev[next[c]] = prev[c]
+		}
+	}
+	for c := 0; c < m; c++ {
+		link(c)
+	}
+	var rowSingles []int
+	for i := 0; i < m; i++ {
+		if len(rowIdx[i]) == 1 {
+			rowSingles = append(rowSingles, i)
+		}
+	}
+	mark := make([]int, m) // position+1 of a column in the row being updated
+	f.lstart = append(f.lstart, 0)
+	f.ustart = append(f.ustart, 0)
+
+	removeFromCol := func(c, r int) {
+		rs := colRows[c]
+		for k, i := range rs {
+			if i == r {
+				rs[k] = rs[len(rs)-1]
+				colRows[c] = rs[:len(rs)-1]
+				break
+			}
+		}
+		if !colDone[c] {
+			unlink(c)
+			link(c)
+		}
+	}
+
+	eliminate := func(r, c int) {
+		// Find the pivot value in row r.
+		var piv float64
+		for k, j := range rowIdx[r] {
+			if j == c {
+				piv = rowVal[r][k]
+				break
+			}
+		}
+		f.pivRow = append(f.pivRow, r)
+		f.pivCol = append(f.pivCol, c)
+		f.diag = append(f.diag, piv)
+		colDone[c] = true
+		unlink(c)
+		rowDone[r] = true
+		for k, j := range rowIdx[r] {
+			if j == c {
+				continue
+			}
+			f.uidx = append(f.uidx, j)
+			f.uval = append(f.uval, rowVal[r][k])
+			removeFromCol(j, r)
+		}
+		f.ustart = append(f.ustart, len(f.uidx))
+		for _, i := range colRows[c] {
+			if i == r {
+				continue
+			}
+			// Take column c out of row i, remembering its value.
+			ri, rv := rowIdx[i], rowVal[i]
+			var aic float64
+			for k, j := range ri {
+				if j == c {
+					aic = rv[k]
+					last := len(ri) - 1
+					ri[k], rv[k] = ri[last], rv[last]
+					ri, rv = ri[:last], rv[:last]
+					break
+				}
+			}
+			l := aic / piv
+			f.lidx = append(f.lidx, i)
+			f.lval = append(f.lval, l)
+			for k, j := range ri {
+				mark[j] = k + 1
+			}
+			for k, j := range rowIdx[r] {
+				if j == c {
+					continue
+				}
+				v := -l * rowVal[r][k]
+				if q := mark[j]; q > 0 {
+					rv[q-1] += v
+				} else {
+					ri = append(ri, j)
+					rv = append(rv, v)
+					mark[j] = len(ri)
+					colRows[j] = append(colRows[j], i)
+					unlink(j)
+					link(j)
+				}
+			}
+			for _, j := range ri {
+				mark[j] = 0
+			}
+			rowIdx[i], rowVal[i] = ri, rv
+			if len(ri) == 1 {
+				rowSingles = append(rowSingles, i)
+			}
+		}
+		colRows[c] = nil
+		f.lstart = append(f.lstart, len(f.lidx))
+	}
+
+	for step := 0; step < m; step++ {
+		// 1. Column singletons: no elimination, no fill.
+		if c := head[1]; c >= 0 {
+			r := colRows[c][0]
+			var v float64
+			for k, j := range rowIdx[r] {
+				if j == c {
+					v = rowVal[r][k]
+				}
+			}
+			if math.Abs(v) >= luAbsPivotTol {
+				eliminate(r, c)
+				continue
+			}
+		}
+		// 2. Row singletons: eliminate their column from the other rows
+		// without fill.
+		done := false
+		for len(rowSingles) > 0 && !done {
+			r := rowSingles[len(rowSingles)-1]
+			rowSingles = rowSingles[:len(rowSingles)-1]
+			if rowDone[r] || len(rowIdx[r]) != 1 {
+				continue
+			}
+			if math.Abs(rowVal[r][0]) >= luAbsPivotTol {
+				eliminate(r, rowIdx[r][0])
+				done = true
+			}
+		}
+		if done {
+			continue
+		}
+		// 3. Markowitz search with threshold pivoting.
+		bestR, bestC, bestCost := -1, -1, math.MaxInt
+		searched := 0
+		for k := 1; k <= m+1 && searched < luSearchCols; k++ {
+			for c := head[k]; c >= 0 && searched < luSearchCols; c = next[c] {
+				searched++
+				colMax := 0.0
+				for _, i := range colRows[c] {
+					for q, j := range rowIdx[i] {
+						if j == c {
+							colMax = math.Max(colMax, math.Abs(rowVal[i][q]))
+						}
+					}
+				}
+				if colMax < luAbsPivotTol {
+					continue
+				}
+				for _, i := range colRows[c] {
+					for q, j := range rowIdx[i] {
+						if j != c {
+							continue
+						}
+						a := math.Abs(rowVal[i][q])
+						if a < luThreshold*colMax || a < luAbsPivotTol {
+							continue
+						}
+						cost := (len(rowIdx[i]) - 1) * (len(colRows[c]) - 1)
+						if cost < bestCost {
+							bestR, bestC, bestCost = i, c, cost
+						}
+					}
+				}
+			}
+			if bestR >= 0 {
+				break
+			}
+		}
+		if bestR < 0 {
+			// Examine every remaining column before declaring singularity.
+			for c := 0; c < m; c++ {
+				if colDone[c] {
+					continue
+				}
+				for _, i := range colRows[c] {
+					for q, j := range rowIdx[i] {
+						if j == c && math.Abs(rowVal[i][q]) >= luAbsPivotTol {
+							bestR, bestC = i, c
+						}
+					}
+				}
+			}
+		}
+		if bestR < 0 {
+			break
+		}
+		eliminate(bestR, bestC)
+	}
+	if len(f.pivRow) < m {
+		for c := 0; c < m; c++ {
+			if !colDone[c] {
+				badCols = append(badCols, c)
+			}
+		}
+		for i := 0; i < m; i++ {
+			if !rowDone[i] {
+				freeRows = append(freeRows, i)
+			}
+		}
+		return nil, badCols, freeRows
+	}
+	f.etaStart = append(f.etaStart, 0)
+	return f, nil, nil
+}
+
+// ftran solves B·x = b in place: on entry b is indexed by rows, on return
+// by basis positions. Cost O(nonzeros of L, U and the eta file).
+func (f *factor) ftran(b []float64) {
+	out := f.work
+	for k, r := range f.pivRow {
+		br := b[r]
+		if br == 0 {
+			continue
+		}
+		for p := f.lstart[k]; p < f.lstart[k+1]; p++ {
+			b[f.lidx[p]] -= f.lval[p] * br
+		}
+	}
+	for k := f.m - 1; k >= 0; k-- {
+		v := b[f.pivRow[k]]
+		for p := f.ustart[k]; p < f.ustart[k+1]; p++ {
+			v -= f.uval[p] * out[f.uidx[p]]
+		}
+		out[f.pivCol[k]] = v / f.diag[k]
+	}
+	for e, p := range f.etaPos {
+		xp := out[p] / f.etaPiv[e]
+		if xp != 0 {
+			for q := f.etaStart[e]; q < f.etaStart[e+1]; q++ {
+				out[f.etaIdx[q]] -= f.etaVal[q] * xp
+			}
+		}
+		out[p] = xp
+	}
+	copy(b, out)
+}
+
+// btran solves yᵀ·B = dᵀ in place: on entry d is indexed by basis
+// positions, on return by rows. Cost O(nonzeros of L, U and the eta file).
+func (f *factor) btran(d []float64) {
+	for e := len(f.etaPos) - 1; e >= 0; e-- {
+		p := f.etaPos[e]
+		v := d[p]
+		for q := f.etaStart[e]; q < f.etaStart[e+1]; q++ {
+			v -= f.etaVal[q] * d[f.etaIdx[q]]
+		}
+		d[p] = v / f.etaPiv[e]
+	}
+	w := f.work
+	for k, c := range f.pivCol {
+		wr := d[c] / f.diag[k]
+		w[f.pivRow[k]] = wr
+		if wr == 0 {
+			continue
+		}
+		for p := f.ustart[k]; p < f.ustart[k+1]; p++ {
+			d[f.uidx[p]] -= wr * f.uval[p]
+		}
+	}
+	for k := f.m - 1; k >= 0; k-- {
+		r := f.pivRow[k]
+		v := w[r]
+		for p := f.lstart[k]; p < f.lstart[k+1]; p++ {
+			v -= f.lval[p] * w[f.lidx[p]]
+		}
+		w[r] = v
+	}
+	copy(d, w)
+}
+
+// update records that the column at position p was replaced by a column
+// whose ftran is alpha (indexed by positions). Cost O(m).
+func (f *factor) update(p int, alpha []float64) {
+	f.etaPos = append(f.etaPos, p)
+	f.etaPiv = append(f.etaPiv, alpha[p])
+	for i, v := range alpha {
+		if i != p && v != 0 {
+			f.etaIdx = append(f.etaIdx, i)
+			f.etaVal = append(f.etaVal, v)
+		}
+	}
+	f.etaStart = append(f.etaStart, len(f.etaIdx))
+}

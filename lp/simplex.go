@@ -1,0 +1,922 @@
+package lp
+
+import (
+	"context"
+	"math"
+	"math/rand"
+	"time"
+)
+
+const (
+	// perturbBase is the relative size of the cost perturbation against
+	// dual degeneracy (common practice: about 5e-7).
+	perturbBase = 5e-7
+	// maxRounds bounds the dual/primal clean-up rounds after the main
+	// dual simplex.
+	maxRounds = 6
+	// checkEvery is how often (iterations) the context and clock are read.
+	checkEvery = 16
+)
+
+// slackBasis makes every slack basic and puts each column at a bound.
+func (s *Solver) slackBasis() {
+	nm := s.n + s.m
+	s.stat = make([]VarStatus, nm)
+	s.x = make([]float64, nm)
+	s.head = make([]int, s.m)
+	s.dse = make([]float64, s.m)
+	for j := 0; j < s.n; j++ {
+		s.stat[j] = s.defaultStatus(j)
+	}
+	for i := 0; i < s.m; i++ {
+		s.stat[s.n+i] = Basic
+		s.head[i] = s.n + i
+		s.dse[i] = 1
+	}
+	s.resizeScratch()
+	s.facValid = false
+}
+
+// defaultStatus is the nonbasic status of v at its finite bound nearest
+// zero, or AtZero when free.
+func (s *Solver) defaultStatus(v int) VarStatus {
+	lo, up := s.lo[v], s.up[v]
+	switch {
+	case lo == up:
+		return Fixed
+	case math.IsInf(lo, -1) && math.IsInf(up, 1):
+		return AtZero
+	case math.IsInf(lo, -1):
+		return AtUpper
+	case math.IsInf(up, 1):
+		return AtLower
+	case math.Abs(up) < math.Abs(lo):
+		return AtUpper
+	}
+	return AtLower
+}
+
+func (s *Solver) resizeScratch() {
+	nm := s.n + s.m
+	s.x = resize(s.x, nm)
+	s.d = resize(s.d, nm)
+	s.y = resize(s.y, s.m)
+	s.rho = resize(s.rho, s.m)
+	s.tau = resize(s.tau, s.m)
+	s.alphaCol = resize(s.alphaCol, s.m)
+	s.alphaRow = resize(s.alphaRow, nm)
+	s.work = resize(s.work, nm)
+}
+
+// column returns variable v's column of [A' | −I].
+func (s *Solver) column(v int) ([]int, []float64) {
+	if v < s.n {
+		a, b := s.csc.Start[v], s.csc.Start[v+1]
+		return s.csc.Index[a:b], s.csc.Value[a:b]
+	}
+	return []int{v - s.n}, minusOne
+}
+
+var minusOne = []float64{-1}
+
+// ensureFactor factorises the basis if needed, replacing dependent basic
+// columns with slacks. It reports whether a factorisation is available.
+func (s *Solver) ensureFactor() bool {
+	if s.facValid {
+		return true
+	}
+	for attempt := 0; attempt < 4; attempt++ {
+		f, bad, free := factorize(s.m, func(p int) ([]int, []float64) { return s.column(s.head[p]) })
+		if f != nil {
+			s.fac = f
+			s.facValid = true
+			return true
+		}
+		for k, p := range bad {
+			out := s.head[p]
+			s.stat[out] = s.nearestBoundStatus(out)
+			in := s.n + free[k]
+			s.head[p] = in
+			s.stat[in] = Basic
+			s.dse[p] = 1
+		}
+	}
+	return false
+}
+
+// refactor rebuilds the factorisation and recomputes primal and dual values.
+func (s *Solver) refactor() bool {
+	s.facValid = false
+	if !s.ensureFactor() {
+		return false
+	}
+	s.computePrimal()
+	s.computeDuals()
+	return true
+}
+
+// btranRow overwrites rho (length m, indexed by position) with e_pᵀ·B⁻¹
+// when rho = e_p on entry.
+func (s *Solver) btranRow(rho []float64) { s.fac.btran(rho) }
+
+// pivotRow computes row[j] = rhoᵀ·a_j for every column j (row-wise, using
+// the nonzeros of rho). The slack entries, −rho[i], are left to the caller.
+func (s *Solver) pivotRow(rho []float64, row []float64) {
+	for j := range row[:s.n] {
+		row[j] = 0
+	}
+	for i, r := range rho {
+		if r == 0 {
+			continue
+		}
+		for p := s.csr.Start[i]; p < s.csr.Start[i+1]; p++ {
+			row[s.csr.Index[p]] += r * s.csr.Value[p]
+		}
+	}
+}
+
+// fixStatuses makes every nonbasic status consistent with the bounds and
+// sets nonbasic values accordingly.
+func (s *Solver) fixStatuses() {
+	for v := range s.stat {
+		st := s.stat[v]
+		if st == Basic {
+			continue
+		}
+		lo, up := s.lo[v], s.up[v]
+		switch {
+		case lo == up:
+			st = Fixed
+		case st == Fixed:
+			st = s.defaultStatus(v)
+		case st == AtLower && math.IsInf(lo, -1), st == AtUpper && math.IsInf(up, 1), st == AtZero && !(math.IsInf(lo, -1) && math.IsInf(up, 1)):
+			st = s.defaultStatus(v)
+		}
+		s.stat[v] = st
+		s.x[v] = s.boundValue(v, st)
+	}
+}
+
+func (s *Solver) boundValue(v int, st VarStatus) float64 {
+	switch st {
+	case AtLower, Fixed:
+		return s.lo[v]
+	case AtUpper:
+		return s.up[v]
+	}
+	return 0
+}
+
+// computePrimal sets the basic values from the nonbasic ones:
+// B·x_B = −N·x_N.
+func (s *Solver) computePrimal() {
+	rhs := s.alphaCol
+	for i := range rhs {
+		rhs[i] = 0
+	}
+	for v, st := range s.stat {
+		if st == Basic {
+			continue
+		}
+		xv := s.x[v]
+		if xv == 0 {
+			continue
+		}
+		idx, val := s.column(v)
+		for k, i := range idx {
+			rhs[i] -= val[k] * xv
+		}
+	}
+	s.fac.ftran(rhs)
+	for p, v := range s.head {
+		s.x[v] = rhs[p]
+	}
+}
+
+// computeDuals sets y from Bᵀ·y = c_B and the reduced costs d = c − [A|−I]ᵀy
+// for the costs in s.work.
+func (s *Solver) computeDuals() {
+	y := s.y
+	for p, v := range s.head {
+		y[p] = s.work[v]
+	}
+	s.fac.btran(y)
+	for j := 0; j < s.n; j++ {
+		if s.stat[j] == Basic {
+			s.d[j] = 0
+			continue
+		}
+		dj := s.work[j]
+		for p := s.csc.Start[j]; p < s.csc.Start[j+1]; p++ {
+			dj -= y[s.csc.Index[p]] * s.csc.Value[p]
+		}
+		s.d[j] = dj
+	}
+	for i := 0; i < s.m; i++ {
+		v := s.n + i
+		if s.stat[v] == Basic {
+			s.d[v] = 0
+		} else {
+			s.d[v] = s.work[v] + y[i]
+		}
+	}
+}
+
+// dualInfeasible reports whether nonbasic v's reduced cost has the wrong
+// sign for its status.
+func (s *Solver) dualInfeasible(v int, tol float64) bool {
+	switch s.stat[v] {
+	case AtLower:
+		return s.d[v] < -tol
+	case AtUpper:
+		return s.d[v] > tol
+	case AtZero:
+		return math.Abs(s.d[v]) > tol
+	}
+	return false
+}
+
+// flipToDualFeasible moves boxed nonbasic variables to the bound their
+// reduced cost asks for, and reports whether some other variable stays dual
+// infeasible. It recomputes the basic values when something moved.
+func (s *Solver) flipToDualFeasible(tol float64) (stillInfeasible bool) {
+	moved := false
+	for v, st := range s.stat {
+		if st == Basic || st == Fixed || !s.dualInfeasible(v, tol) {
+			continue
+		}
+		lo, up := s.lo[v], s.up[v]
+		switch {
+		case s.d[v] > 0 && !math.IsInf(lo, -1):
+			s.stat[v] = AtLower
+		case s.d[v] < 0 && !math.IsInf(up, 1):
+			s.stat[v] = AtUpper
+		default:
+			stillInfeasible = true
+			continue
+		}
+		s.x[v] = s.boundValue(v, s.stat[v])
+		moved = true
+	}
+	if moved {
+		s.computePrimal()
+	}
+	return stillInfeasible
+}
+
+func (s *Solver) primalTol() float64 {
+	if s.set.FeasibilityTol > 0 {
+		return s.set.FeasibilityTol
+	}
+	return defaultFeasibilityTol
+}
+
+func (s *Solver) dualTol() float64 {
+	if s.set.OptimalityTol > 0 {
+		return s.set.OptimalityTol
+	}
+	return defaultOptimalityTol
+}
+
+// limits tracks iteration and time limits and cancellation.
+type limits struct {
+	ctx      context.Context
+	deadline time.Time
+	maxIter  int
+}
+
+// check returns a non-zero status when the solve must stop.
+func (s *Solver) checkLimits(lim *limits) Status {
+	if lim.maxIter > 0 && s.iterations >= lim.maxIter {
+		return IterationLimit
+	}
+	if s.iterations%checkEvery == 0 {
+		if lim.ctx.Err() != nil {
+			return Cancelled
+		}
+		if !lim.deadline.IsZero() && time.Now().After(lim.deadline) {
+			return TimeLimit
+		}
+	}
+	return StatusUnknown
+}
+
+// run is the solve driver.
+func (s *Solver) run(ctx context.Context) Status {
+	s.iterations = 0
+	s.resizeScratch()
+	lim := &limits{ctx: ctx, maxIter: s.set.MaxIterations}
+	if s.set.TimeLimit > 0 {
+		lim.deadline = time.Now().Add(s.set.TimeLimit)
+	}
+	if ctx.Err() != nil {
+		return Cancelled
+	}
+	if s.m == 0 {
+		return s.solveNoRows()
+	}
+	if !s.ensureFactor() {
+		return NumericalTrouble
+	}
+	copy(s.work, s.cost)
+	perturbed := false
+	if !s.solved && !s.set.NoPerturbation {
+		s.perturb()
+		perturbed = true
+	}
+	s.fixStatuses()
+	s.computePrimal()
+	s.computeDuals()
+	ptol, dtol := s.primalTol(), s.dualTol()
+
+	for round := 0; round < maxRounds; round++ {
+		if s.flipToDualFeasible(dtol) {
+			st := s.dualPhase1(lim)
+			if st != Optimal {
+				return st
+			}
+			if s.flipToDualFeasible(dtol) {
+				// Dual infeasible: the LP is unbounded or infeasible.
+				return s.unboundedOrInfeasible(lim)
+			}
+		}
+		st := s.dualSimplex(lim, perturbed)
+		if st != Optimal {
+			if st == Infeasible && perturbed {
+				// Infeasibility does not depend on costs; still, confirm
+				// it without the perturbation below.
+				copy(s.work, s.cost)
+				perturbed = false
+				s.computeDuals()
+				continue
+			}
+			return st
+		}
+		if perturbed {
+			copy(s.work, s.cost)
+			perturbed = false
+		}
+		if !s.refactor() {
+			return NumericalTrouble
+		}
+		if s.maxDualInfeasibility() > dtol {
+			st = s.primalSimplex(lim)
+			if st != Optimal {
+				return st
+			}
+			if !s.refactor() {
+				return NumericalTrouble
+			}
+		}
+		if s.maxPrimalInfeasibility() <= ptol && s.maxDualInfeasibility() <= dtol {
+			s.solved = true
+			return Optimal
+		}
+	}
+	return NumericalTrouble
+}
+
+// solveNoRows handles a model without rows: each column sits at its best
+// bound.
+func (s *Solver) solveNoRows() Status {
+	copy(s.work, s.cost)
+	for j := 0; j < s.n; j++ {
+		c := s.work[j]
+		switch {
+		case c > 0 && math.IsInf(s.lo[j], -1), c < 0 && math.IsInf(s.up[j], 1):
+			return Unbounded
+		case s.lo[j] == s.up[j]:
+			s.stat[j] = Fixed
+		case c > 0:
+			s.stat[j] = AtLower
+		case c < 0:
+			s.stat[j] = AtUpper
+		default:
+			s.stat[j] = s.defaultStatus(j)
+		}
+		s.x[j] = s.boundValue(j, s.stat[j])
+		s.d[j] = c
+	}
+	s.solved = true
+	return Optimal
+}
+
+// perturb adds small random amounts to the working costs of the columns,
+// in the direction that keeps a column at its likely bound dual feasible.
+func (s *Solver) perturb() {
+	rng := rand.New(rand.NewSource(s.set.Seed + 1))
+	maxC := 0.0
+	for j := 0; j < s.n; j++ {
+		maxC = math.Max(maxC, math.Abs(s.cost[j]))
+	}
+	if maxC == 0 {
+		return
+	}
+	base := perturbBase * math.Max(1, math.Min(maxC, 1e3))
+	for j := 0; j < s.n; j++ {
+		lo, up := s.lo[j], s.up[j]
+		if lo == up {
+			continue
+		}
+		delta := base * (1 + math.Abs(s.cost[j])/maxC) * (0.5 + 0.5*rng.Float64())
+		switch {
+		case s.stat[j] == AtUpper || (s.stat[j] == Basic && math.IsInf(lo, -1) && !math.IsInf(up, 1)):
+			s.work[j] -= delta
+		case math.IsInf(lo, -1) && math.IsInf(up, 1):
+		default:
+			s.work[j] += delta
+		}
+	}
+}
+
+func (s *Solver) maxPrimalInfeasibility() float64 {
+	worst := 0.0
+	for _, v := range s.head {
+		worst = math.Max(worst, math.Max(s.lo[v]-s.x[v], s.x[v]-s.up[v]))
+	}
+	return worst
+}
+
+func (s *Solver) maxDualInfeasibility() float64 {
+	worst := 0.0
+	for v, st := range s.stat {
+		switch st {
+		case AtLower:
+			worst = math.Max(worst, -s.d[v])
+		case AtUpper:
+			worst = math.Max(worst, s.d[v])
+		case AtZero:
+			worst = math.Max(worst, math.Abs(s.d[v]))
+		}
+	}
+	return worst
+}
+
+// dualPhase1 finds a dual feasible basis by solving, with the dual simplex,
+// the problem with the same costs and auxiliary bounds: free variables in
+// [−phase1Box, phase1Box], one-sided ones in [0, 1] or [−1, 0], boxed ones
+// fixed at 0. Every basis is dual feasible for it after bound flips, and
+// its optimal basis is dual feasible for the real problem when the real
+// problem has a dual feasible basis at all.
+func (s *Solver) dualPhase1(lim *limits) Status {
+	nm := s.n + s.m
+	saveLo := append([]float64(nil), s.lo...)
+	saveUp := append([]float64(nil), s.up...)
+	for v := 0; v < nm; v++ {
+		lo, up := saveLo[v], saveUp[v]
+		switch {
+		case math.IsInf(lo, -1) && math.IsInf(up, 1):
+			s.lo[v], s.up[v] = -phase1Box, phase1Box
+		case math.IsInf(up, 1):
+			s.lo[v], s.up[v] = 0, 1
+		case math.IsInf(lo, -1):
+			s.lo[v], s.up[v] = -1, 0
+		default:
+			s.lo[v], s.up[v] = 0, 0
+		}
+		if s.stat[v] != Basic {
+			switch {
+			case s.lo[v] == s.up[v]:
+				s.stat[v] = Fixed
+			case s.d[v] >= 0:
+				s.stat[v] = AtLower
+			default:
+				s.stat[v] = AtUpper
+			}
+			s.x[v] = s.boundValue(v, s.stat[v])
+		}
+	}
+	s.computePrimal()
+	st := s.dualSimplex(lim, false)
+	copy(s.lo, saveLo)
+	copy(s.up, saveUp)
+	for v := 0; v < nm; v++ {
+		if s.stat[v] == Basic {
+			continue
+		}
+		// Put each nonbasic variable where its reduced cost asks.
+		lo, up := s.lo[v], s.up[v]
+		switch {
+		case lo == up:
+			s.stat[v] = Fixed
+		case s.d[v] >= 0 && !math.IsInf(lo, -1):
+			s.stat[v] = AtLower
+		case s.d[v] <= 0 && !math.IsInf(up, 1):
+			s.stat[v] = AtUpper
+		default:
+			s.stat[v] = s.defaultStatus(v)
+		}
+		s.x[v] = s.boundValue(v, s.stat[v])
+	}
+	if st == Infeasible {
+		// Cannot happen in exact arithmetic (zero is feasible for the
+		// auxiliary problem).
+		st = NumericalTrouble
+	}
+	if st != Optimal {
+		return st
+	}
+	if !s.refactor() {
+		return NumericalTrouble
+	}
+	return Optimal
+}
+
+// unboundedOrInfeasible settles a dual infeasible problem: with zero costs
+// the dual simplex finds a feasible point (or proves infeasibility); from
+// there the primal simplex with the real costs finds the unbounded ray (or
+// the optimum, should the dual infeasibility have been numerical noise).
+func (s *Solver) unboundedOrInfeasible(lim *limits) Status {
+	for v := range s.work {
+		s.work[v] = 0
+	}
+	s.computeDuals()
+	st := s.dualSimplex(lim, false)
+	copy(s.work, s.cost)
+	if st != Optimal {
+		return st
+	}
+	if !s.refactor() {
+		return NumericalTrouble
+	}
+	st = s.primalSimplex(lim)
+	if st == Optimal {
+		if !s.refactor() {
+			return NumericalTrouble
+		}
+		if s.maxPrimalInfeasibility() <= s.primalTol() && s.maxDualInfeasibility() <= s.dualTol() {
+			s.solved = true
+			return Optimal
+		}
+		return NumericalTrouble
+	}
+	return st
+}
+
+// objectiveWork returns the working-cost objective of the current iterate.
+func (s *Solver) objectiveWork() float64 {
+	obj := 0.0
+	for v, c := range s.work {
+		obj += c * s.x[v]
+	}
+	return obj
+}
+
+// cutoffScaled returns the objective cutoff for the internal minimisation
+// without the model constant.
+func (s *Solver) cutoffScaled() float64 {
+	c := s.set.ObjectiveCutoff - s.model.Constant
+	if s.model.Sense == Maximize {
+		c = -c
+	}
+	return c
+}
+
+// dualSimplex runs dual simplex iterations from a dual feasible basis
+// until primal feasibility (Optimal), dual unboundedness (Infeasible), the
+// cutoff or a limit.
+func (s *Solver) dualSimplex(lim *limits, perturbed bool) Status {
+	ptol, dtol := s.primalTol(), s.dualTol()
+	m, n := s.m, s.n
+	rho, row, alpha, tau := s.rho, s.alphaRow, s.alphaCol, s.tau
+	useCutoff := s.set.HasCutoff && !perturbed
+	cutoff := s.cutoffScaled()
+	for {
+		if st := s.checkLimits(lim); st != StatusUnknown {
+			return st
+		}
+		if s.fac.numUpdates() >= refactorEvery {
+			if !s.refactor() {
+				return NumericalTrouble
+			}
+			s.flipToDualFeasible(dtol)
+		}
+		if useCutoff && s.objectiveWork() > cutoff+dtol*(1+math.Abs(cutoff)) {
+			return ObjectiveCutoff
+		}
+		// Choose the leaving row: largest infeasibility²/weight.
+		r, best := -1, 0.0
+		for p, v := range s.head {
+			xv := s.x[v]
+			var inf float64
+			if xv < s.lo[v]-ptol {
+				inf = s.lo[v] - xv
+			} else if xv > s.up[v]+ptol {
+				inf = xv - s.up[v]
+			} else {
+				continue
+			}
+			if score := inf * inf / s.dse[p]; score > best {
+				r, best = p, score
+			}
+		}
+		if r < 0 {
+			return Optimal
+		}
+		leave := s.head[r]
+		target := s.up[leave]
+		sgn := 1.0
+		if s.x[leave] < s.lo[leave] {
+			target, sgn = s.lo[leave], -1
+		}
+		delta := s.x[leave] - target
+
+		for i := range rho {
+			rho[i] = 0
+		}
+		rho[r] = 1
+		s.fac.btran(rho)
+		s.pivotRow(rho, row)
+		for i := 0; i < m; i++ {
+			row[n+i] = -rho[i]
+		}
+		// Harris two-pass ratio test over the nonbasic variables.
+		tmax := math.Inf(1)
+		for v, st := range s.stat {
+			if st == Basic || st == Fixed {
+				continue
+			}
+			a := sgn * row[v]
+			var bound float64
+			switch {
+			case a > pivotTol && (st == AtLower || st == AtZero):
+				bound = (s.d[v] + dtol) / a
+			case a < -pivotTol && (st == AtUpper || st == AtZero):
+				bound = (s.d[v] - dtol) / a
+			default:
+				continue
+			}
+			if bound < tmax {
+				tmax = bound
+			}
+		}
+		if math.IsInf(tmax, 1) {
+			return Infeasible
+		}
+		q, qAbs := -1, 0.0
+		for v, st := range s.stat {
+			if st == Basic || st == Fixed {
+				continue
+			}
+			a := sgn * row[v]
+			if !((a > pivotTol && (st == AtLower || st == AtZero)) || (a < -pivotTol && (st == AtUpper || st == AtZero))) {
+				continue
+			}
+			if s.d[v]/a <= tmax && math.Abs(a) > qAbs {
+				q, qAbs = v, math.Abs(a)
+			}
+		}
+		if q < 0 {
+			return NumericalTrouble
+		}
+		// Entering column.
+		for i := range alpha {
+			alpha[i] = 0
+		}
+		idx, val := s.column(q)
+		for k, i := range idx {
+			alpha[i] = val[k]
+		}
+		s.fac.ftran(alpha)
+		arq := alpha[r]
+		if math.Abs(arq-row[q]) > pivotMismatchTol*(1+math.Abs(arq)) && s.fac.numUpdates() > 0 {
+			if !s.refactor() {
+				return NumericalTrouble
+			}
+			s.flipToDualFeasible(dtol)
+			continue
+		}
+		if math.Abs(arq) < pivotTol {
+			if s.fac.numUpdates() > 0 {
+				if !s.refactor() {
+					return NumericalTrouble
+				}
+				continue
+			}
+			return NumericalTrouble
+		}
+		// Dual step.
+		thetaD := s.d[q] / row[q]
+		if thetaD != 0 {
+			for v, st := range s.stat {
+				if st != Basic {
+					s.d[v] -= thetaD * row[v]
+				}
+			}
+		}
+		s.d[q] = 0
+		s.d[leave] = -thetaD
+		// Primal step.
+		dq := delta / arq
+		if dq != 0 {
+			for p, v := range s.head {
+				s.x[v] -= dq * alpha[p]
+			}
+		}
+		s.x[q] += dq
+		s.x[leave] = target
+		// Dual steepest-edge weights: w_p = ‖e_pᵀB⁻¹‖².
+		wr := 0.0
+		for _, v := range rho {
+			wr += v * v
+		}
+		copy(tau, rho)
+		s.fac.ftran(tau)
+		for p := range s.dse {
+			if p == r || alpha[p] == 0 {
+				continue
+			}
+			ratio := alpha[p] / arq
+			w := s.dse[p] + ratio*(ratio*wr-2*tau[p])
+			s.dse[p] = math.Max(w, 1e-4)
+		}
+		s.dse[r] = math.Max(wr/(arq*arq), 1e-4)
+		// Basis change.
+		s.head[r] = q
+		s.stat[q] = Basic
+		switch {
+		case s.lo[leave] == s.up[leave]:
+			s.stat[leave] = Fixed
+		case sgn < 0:
+			s.stat[leave] = AtLower
+		default:
+			s.stat[leave] = AtUpper
+		}
+		s.fac.update(r, alpha)
+		s.iterations++
+	}
+}
+
+// primalSimplex runs primal simplex iterations (Dantzig pricing, Harris
+// ratio test, bound flips) from a primal feasible basis until dual
+// feasibility (Optimal), an unbounded ray (Unbounded) or a limit.
+func (s *Solver) primalSimplex(lim *limits) Status {
+	ptol, dtol := s.primalTol(), s.dualTol()
+	m, n := s.m, s.n
+	rho, row, alpha := s.rho, s.alphaRow, s.alphaCol
+	defer func() {
+		for p := range s.dse {
+			s.dse[p] = 1
+		}
+	}()
+	for {
+		if st := s.checkLimits(lim); st != StatusUnknown {
+			return st
+		}
+		if s.fac.numUpdates() >= refactorEvery {
+			if !s.refactor() {
+				return NumericalTrouble
+			}
+		}
+		q, best := -1, dtol
+		for v, st := range s.stat {
+			if st == Basic || st == Fixed {
+				continue
+			}
+			dv := s.d[v]
+			var inf float64
+			switch st {
+			case AtLower:
+				inf = -dv
+			case AtUpper:
+				inf = dv
+			case AtZero:
+				inf = math.Abs(dv)
+			}
+			if inf > best {
+				q, best = v, inf
+			}
+		}
+		if q < 0 {
+			return Optimal
+		}
+		dir := 1.0
+		if s.d[q] > 0 {
+			dir = -1
+		}
+		for i := range alpha {
+			alpha[i] = 0
+		}
+		idx, val := s.column(q)
+		for k, i := range idx {
+			alpha[i] = val[k]
+		}
+		s.fac.ftran(alpha)
+		// Basic p changes at rate g = −alpha[p]·dir per unit step.
+		tmax := math.Inf(1)
+		for p, v := range s.head {
+			g := -alpha[p] * dir
+			var bound float64
+			switch {
+			case g < -pivotTol && !math.IsInf(s.lo[v], -1):
+				bound = (s.x[v] - s.lo[v] + ptol) / -g
+			case g > pivotTol && !math.IsInf(s.up[v], 1):
+				bound = (s.up[v] - s.x[v] + ptol) / g
+			default:
+				continue
+			}
+			if bound < tmax {
+				tmax = bound
+			}
+		}
+		flip := s.up[q] - s.lo[q]
+		r, rAbs := -1, 0.0
+		step := 0.0
+		if !math.IsInf(tmax, 1) {
+			for p, v := range s.head {
+				g := -alpha[p] * dir
+				var ratio float64
+				switch {
+				case g < -pivotTol && !math.IsInf(s.lo[v], -1):
+					ratio = (s.x[v] - s.lo[v]) / -g
+				case g > pivotTol && !math.IsInf(s.up[v], 1):
+					ratio = (s.up[v] - s.x[v]) / g
+				default:
+					continue
+				}
+				if ratio <= tmax && math.Abs(g) > rAbs {
+					r, rAbs, step = p, math.Abs(g), ratio
+				}
+			}
+		}
+		if step < 0 {
+			step = 0
+		}
+		if r < 0 && math.IsInf(flip, 1) {
+			s.ray = s.unboundedRay(q, dir)
+			return Unbounded
+		}
+		if r < 0 || flip <= step {
+			// Bound flip of the entering variable; the basis stays.
+			for p, v := range s.head {
+				s.x[v] -= alpha[p] * dir * flip
+			}
+			if s.stat[q] == AtLower {
+				s.stat[q] = AtUpper
+			} else {
+				s.stat[q] = AtLower
+			}
+			s.x[q] = s.boundValue(q, s.stat[q])
+			s.iterations++
+			continue
+		}
+		leave := s.head[r]
+		arq := alpha[r]
+		for i := range rho {
+			rho[i] = 0
+		}
+		rho[r] = 1
+		s.fac.btran(rho)
+		s.pivotRow(rho, row)
+		for i := 0; i < m; i++ {
+			row[n+i] = -rho[i]
+		}
+		if math.Abs(arq-row[q]) > pivotMismatchTol*(1+math.Abs(arq)) && s.fac.numUpdates() > 0 {
+			if !s.refactor() {
+				return NumericalTrouble
+			}
+			continue
+		}
+		thetaD := s.d[q] / arq
+		for v, st := range s.stat {
+			if st != Basic {
+				s.d[v] -= thetaD * row[v]
+			}
+		}
+		s.d[q] = 0
+		s.d[leave] = -thetaD
+		for p, v := range s.head {
+			s.x[v] -= alpha[p] * dir * step
+		}
+		s.x[q] += dir * step
+		g := -arq * dir
+		if g < 0 {
+			s.stat[leave] = AtLower
+		} else {
+			s.stat[leave] = AtUpper
+		}
+		if s.lo[leave] == s.up[leave] {
+			s.stat[leave] = Fixed
+		}
+		s.x[leave] = s.boundValue(leave, s.stat[leave])
+		s.head[r] = q
+		s.stat[q] = Basic
+		s.fac.update(r, alpha)
+		s.iterations++
+	}
+}
+
+// unboundedRay returns the primal direction (model units) along which the
+// objective improves without limit: entering variable q moving by dir.
+func (s *Solver) unboundedRay(q int, dir float64) []float64 {
+	ray := make([]float64, s.n)
+	if q < s.n {
+		ray[q] = dir * s.colScale[q]
+	}
+	for p, v := range s.head {
+		if v < s.n {
+			ray[v] = -s.alphaCol[p] * dir * s.colScale[v]
+		}
+	}
+	return ray
+}

@@ -1,0 +1,545 @@
+package lp
+
+import (
+	"context"
+	"errors"
+	"fmt"
+	"math"
+)
+
+// Tolerances of the simplex method. They apply to the scaled model.
+const (
+	// defaultFeasibilityTol is the largest bound violation of a basic
+	// variable treated as feasible (common practice: 1e-7).
+	defaultFeasibilityTol = 1e-7
+	// defaultOptimalityTol is the largest reduced-cost sign violation
+	// treated as dual feasible (common practice: 1e-7).
+	defaultOptimalityTol = 1e-7
+	// pivotTol is the smallest |pivot| the ratio tests accept.
+	pivotTol = 1e-7
+	// refactorEvery is the number of basis updates after which the
+	// factorisation is rebuilt from scratch (common practice: about 100).
+	refactorEvery = 100
+	// pivotMismatchTol: when the pivot computed from the row and from the
+	// column differ by more than this (relative), the factorisation is
+	// rebuilt (common practice: 1e-7).
+	pivotMismatchTol = 1e-7
+	// phase1Box is the bound given to free variables in the auxiliary
+	// problem that finds a dual feasible basis (one-sided variables get a
+	// box of width 1).
+	phase1Box = 1000
+)
+
+// Solver solves one linear program repeatedly, keeping the basis and its
+// factorisation between solves so that a re-solve after a bound change, a
+// cost change or new rows starts from the previous basis.
+//
+// Variables are numbered 0 … NumCols()−1 for the columns x and
+// NumCols()+i for the slack of row i, whose value is the row activity
+// a_i·x (so the constraints read [A | −I]·(x, s) = 0 with
+// RowLower ≤ s ≤ RowUpper). A Solver is not safe for concurrent use; Clone
+// the model and make one Solver per goroutine.
+type Solver struct {
+	model *Model // private copy of the caller's model, in its own units
+	set   Settings
+	n, m  int
+
+	// Scaled problem: A' = diag(rowScale)·A·diag(colScale), x' = x/colScale,
+	// s' = s·rowScale. Costs are those of a minimisation.
+	colScale []float64
+	rowScale []float64
+	csc, csr *Sparse
+	cost     []float64 // length n+m (the true scaled costs; slacks 0)
+	work     []float64 // the costs in use (perturbed, zero, …)
+	lo, up   []float64 // scaled bounds, length n+m
+
+	// Basis.
+	head []int       // head[p] is the variable basic at position p
+	stat []VarStatus // status of every variable
+	x    []float64   // value of every variable (scaled)
+	y    []float64   // row duals (scaled, minimisation)
+	d    []float64   // reduced costs (scaled, minimisation), 0 for basics
+	dse  []float64   // dual steepest-edge weights per position
+
+	fac      *factor
+	facValid bool
+
+	iterations int // in the current solve
+	ray        []float64
+	status     Status
+	solved     bool // a solve has finished since the last change of shape
+
+	// scratch
+	rho, alphaRow, alphaCol, tau []float64
+}
+
+// State is a saved iterate of a Solver (bounds and basis), for strong
+// branching: SaveState, change bounds and solve, then RestoreState.
+type State struct {
+	colLower, colUpper []float64
+	head               []int
+	stat               []VarStatus
+	dse                []float64
+	m                  int
+}
+
+// NewSolver prepares a solver for m, which it copies: later changes to m do
+// not reach the solver. The initial basis is the slack basis. It returns an
+// error for inconsistent models (lengths, NaN, lower > upper). Cost
+// O(nonzeros).
+func NewSolver(m *Model, s Settings) (*Solver, error) {
+	if err := validateModel(m); err != nil {
+		return nil, err
+	}
+	sv := &Solver{model: m.Clone(), set: s}
+	sv.n, sv.m = sv.model.NumCols(), sv.model.NumRows()
+	sv.buildScaled()
+	sv.slackBasis()
+	return sv, nil
+}
+
+// validateModel checks the lengths and values of a model's vectors.
+func validateModel(m *Model) error {
+	n, r := m.NumCols(), m.NumRows()
+	if len(m.ColLower) != n || len(m.ColUpper) != n || len(m.Integer) != n || len(m.ColName) != n {
+		return errors.New("lp: model column vectors differ in length")
+	}
+	if len(m.RowUpper) != r || len(m.RowName) != r {
+		return errors.New("lp: model row vectors differ in length")
+	}
+	for j := 0; j < n; j++ {
+		if math.IsNaN(m.Obj[j]) || math.IsInf(m.Obj[j], 0) {
+			return fmt.Errorf("lp: column %d has objective %v", j, m.Obj[j])
+		}
+		if err := checkBounds("column", j, m.ColLower[j], m.ColUpper[j]); err != nil {
+			return err
+		}
+	}
+	for i := 0; i < r; i++ {
+		if err := checkBounds("row", i, m.RowLower[i], m.RowUpper[i]); err != nil {
+			return err
+		}
+	}
+	for _, v := range m.entVal {
+		if math.IsNaN(v) || math.IsInf(v, 0) {
+			return fmt.Errorf("lp: matrix entry %v", v)
+		}
+	}
+	return nil
+}
+
+func checkBounds(what string, k int, lo, up float64) error {
+	if math.IsNaN(lo) || math.IsNaN(up) || lo > up || math.IsInf(lo, 1) || math.IsInf(up, -1) {
+		return fmt.Errorf("lp: %s %d has bounds [%v, %v]", what, k, lo, up)
+	}
+	return nil
+}
+
+// NumCols returns the number of columns.
+func (s *Solver) NumCols() int { return s.n }
+
+// NumRows returns the number of rows, including rows added by AddRows.
+func (s *Solver) NumRows() int { return s.m }
+
+// Model returns the solver's own copy of the model, with the current
+// column bounds, costs and rows. It must not be modified.
+func (s *Solver) Model() *Model { return s.model }
+
+// SetSettings replaces the settings for later solves.
+func (s *Solver) SetSettings(set Settings) { s.set = set }
+
+// Settings returns the settings in use.
+func (s *Solver) Settings() Settings { return s.set }
+
+// SetColBounds changes the bounds of column j (model units). The basis is
+// kept, so the next Solve re-starts from it by dual simplex. It panics if j
+// is out of range or lower > upper. Cost O(1).
+func (s *Solver) SetColBounds(j int, lower, upper float64) {
+	if j < 0 || j >= s.n {
+		panic(fmt.Sprintf("lp: SetColBounds: column %d out of range", j))
+	}
+	if !(lower <= upper) {
+		panic(fmt.Sprintf("lp: SetColBounds: column %d bounds [%v, %v]", j, lower, upper))
+	}
+	s.model.ColLower[j], s.model.ColUpper[j] = lower, upper
+	s.lo[j], s.up[j] = lower/s.colScale[j], upper/s.colScale[j]
+	s.solved = false
+}
+
+// ColBounds returns the current bounds of column j (model units).
+func (s *Solver) ColBounds(j int) (lower, upper float64) {
+	return s.model.ColLower[j], s.model.ColUpper[j]
+}
+
+// SetRowBounds changes the bounds of row i (model units), keeping the basis.
+func (s *Solver) SetRowBounds(i int, lower, upper float64) {
+	if i < 0 || i >= s.m {
+		panic(fmt.Sprintf("lp: SetRowBounds: row %d out of range", i))
+	}
+	if !(lower <= upper) {
+		panic(fmt.Sprintf("lp: SetRowBounds: row %d bounds [%v, %v]", i, lower, upper))
+	}
+	s.model.RowLower[i], s.model.RowUpper[i] = lower, upper
+	s.lo[s.n+i], s.up[s.n+i] = lower*s.rowScale[i], upper*s.rowScale[i]
+	s.solved = false
+}
+
+// SetObjective replaces the objective coefficients (model units and sense;
+// len(c) must be NumCols, else it panics). The basis is kept; the next Solve
+// restores dual feasibility first (by primal simplex if needed).
+func (s *Solver) SetObjective(c []float64) {
+	if len(c) != s.n {
+		panic("lp: SetObjective: wrong length")
+	}
+	copy(s.model.Obj, c)
+	s.setCosts()
+	s.solved = false
+}
+
+// AddRows appends rows (cuts). Their slacks become basic, so the current
+// basis stays a basis and the next Solve continues by dual simplex. It
+// panics if a row names a missing column. Cost O(nonzeros of the model).
+func (s *Solver) AddRows(rows []Row) {
+	for _, r := range rows {
+		if len(r.Index) != len(r.Value) {
+			panic("lp: AddRows: Index and Value differ in length")
+		}
+		s.model.AddRow(r.Name, r.Lower, r.Upper, r.Index, r.Value)
+	}
+	oldM := s.m
+	s.m = s.model.NumRows()
+	s.rebuildMatrix(oldM)
+	for i := oldM; i < s.m; i++ {
+		v := s.n + i
+		s.stat = append(s.stat, Basic)
+		s.head = append(s.head, v)
+		s.dse = append(s.dse, 1)
+	}
+	s.resizeScratch()
+	s.facValid = false
+	s.solved = false
+}
+
+// RemoveRows deletes the rows whose indices are listed (any order,
+// duplicates ignored); later rows move down. Where a removed row's slack was
+// nonbasic, a basic variable leaves the basis in its place (chosen to keep
+// the basis nonsingular) and becomes nonbasic at its nearest bound. It
+// panics on an index out of range.
+func (s *Solver) RemoveRows(idx []int) {
+	del := make([]bool, s.m)
+	any := false
+	for _, i := range idx {
+		if i < 0 || i >= s.m {
+			panic(fmt.Sprintf("lp: RemoveRows: row %d out of range", i))
+		}
+		del[i] = true
+		any = true
+	}
+	if !any {
+		return
+	}
+	// Make every removed row's slack basic first.
+	for i := 0; i < s.m; i++ {
+		if !del[i] || s.stat[s.n+i] == Basic {
+			continue
+		}
+		if !s.ensureFactor() {
+			break
+		}
+		// Column i of B⁻¹: the basic variable at the position with the
+		// largest entry can be swapped with the slack of row i without
+		// making the basis singular.
+		col := make([]float64, s.m)
+		col[i] = 1
+		s.fac.ftran(col)
+		best, bestAbs := -1, 0.0
+		for p, v := range col {
+			hv := s.head[p]
+			if hv >= s.n && del[hv-s.n] {
+				continue
+			}
+			if a := math.Abs(v); a > bestAbs {
+				best, bestAbs = p, a
+			}
+		}
+		if best < 0 {
+			continue
+		}
+		out := s.head[best]
+		s.head[best] = s.n + i
+		s.stat[s.n+i] = Basic
+		s.stat[out] = s.nearestBoundStatus(out)
+		s.facValid = false
+	}
+	// Compact the rows.
+	keep := make([]int, 0, s.m)
+	for i := 0; i < s.m; i++ {
+		if !del[i] {
+			keep = append(keep, i)
+		}
+	}
+	newIndex := make([]int, s.m)
+	for i := range newIndex {
+		newIndex[i] = -1
+	}
+	for k, i := range keep {
+		newIndex[i] = k
+	}
+	s.model = s.model.keepRows(keep)
+	// Rebuild the basis heading: columns keep their positions' order.
+	var head []int
+	var dse []float64
+	for p, v := range s.head {
+		if v >= s.n {
+			if newIndex[v-s.n] < 0 {
+				continue
+			}
+			v = s.n + newIndex[v-s.n]
+		}
+		head = append(head, v)
+		dse = append(dse, s.dse[p])
+	}
+	stat := s.stat[:s.n]
+	for _, i := range keep {
+		stat = append(stat, s.stat[s.n+i])
+	}
+	rowScale := make([]float64, len(keep))
+	for k, i := range keep {
+		rowScale[k] = s.rowScale[i]
+	}
+	s.m = len(keep)
+	s.rowScale = rowScale
+	s.head, s.dse, s.stat = head, dse, stat
+	if len(s.head) != s.m {
+		// Could not repair (singular factor): fall back to the slack basis.
+		s.slackBasis()
+	}
+	s.rebuildMatrix(s.m)
+	s.resizeScratch()
+	s.facValid = false
+	s.solved = false
+}
+
+// keepRows returns a copy of m with only the listed rows, renumbered.
+func (m *Model) keepRows(keep []int) *Model {
+	newIndex := make([]int, m.NumRows())
+	for i := range newIndex {
+		newIndex[i] = -1
+	}
+	for k, i := range keep {
+		newIndex[i] = k
+	}
+	c := m.Clone()
+	c.RowName, c.RowLower, c.RowUpper = nil, nil, nil
+	for _, i := range keep {
+		c.RowName = append(c.RowName, m.RowName[i])
+		c.RowLower = append(c.RowLower, m.RowLower[i])
+		c.RowUpper = append(c.RowUpper, m.RowUpper[i])
+	}
+	c.entRow, c.entCol, c.entVal = nil, nil, nil
+	for k, i := range m.entRow {
+		if ni := newIndex[i]; ni >= 0 {
+			c.entRow = append(c.entRow, ni)
+			c.entCol = append(c.entCol, m.entCol[k])
+			c.entVal = append(c.entVal, m.entVal[k])
+		}
+	}
+	c.changed()
+	return c
+}
+
+// nearestBoundStatus returns the nonbasic status for variable v closest to
+// its current value.
+func (s *Solver) nearestBoundStatus(v int) VarStatus {
+	lo, up, x := s.lo[v], s.up[v], s.x[v]
+	switch {
+	case lo == up:
+		return Fixed
+	case math.IsInf(lo, -1) && math.IsInf(up, 1):
+		return AtZero
+	case math.IsInf(lo, -1):
+		return AtUpper
+	case math.IsInf(up, 1):
+		return AtLower
+	case x-lo <= up-x:
+		return AtLower
+	}
+	return AtUpper
+}
+
+// Basis returns the current basis (a copy).
+func (s *Solver) Basis() Basis {
+	b := Basis{Cols: make([]VarStatus, s.n), Rows: make([]VarStatus, s.m)}
+	copy(b.Cols, s.stat[:s.n])
+	copy(b.Rows, s.stat[s.n:])
+	return b
+}
+
+// SetBasis loads a basis. It returns an error (and keeps the old basis) if
+// the lengths are wrong or the number of Basic entries is not NumRows. A
+// singular basis is accepted and repaired at the next Solve by replacing
+// dependent columns with slacks. Statuses that name an infinite bound are
+// corrected at the next Solve.
+func (s *Solver) SetBasis(b Basis) error {
+	if len(b.Cols) != s.n || len(b.Rows) != s.m {
+		return fmt.Errorf("lp: basis has %d+%d entries, want %d+%d", len(b.Cols), len(b.Rows), s.n, s.m)
+	}
+	var head []int
+	for j, st := range b.Cols {
+		if st == Basic {
+			head = append(head, j)
+		}
+	}
+	for i, st := range b.Rows {
+		if st == Basic {
+			head = append(head, s.n+i)
+		}
+	}
+	if len(head) != s.m {
+		return fmt.Errorf("lp: basis has %d basic variables, want %d", len(head), s.m)
+	}
+	copy(s.stat, b.Cols)
+	copy(s.stat[s.n:], b.Rows)
+	s.head = head
+	for p := range s.dse {
+		s.dse[p] = 1
+	}
+	s.facValid = false
+	s.solved = false
+	return nil
+}
+
+// BasicVars returns the basis heading: element p is the variable basic at
+// position p, a column j < NumCols() or NumCols()+i for row i's slack
+// (whose value is the row activity). Positions are those TableauRow takes.
+// The slice is a copy, valid until the next change or solve.
+func (s *Solver) BasicVars() []int { return append([]int(nil), s.head...) }
+
+// TableauRow fills out (length NumCols()+NumRows()) with row pos of the
+// simplex tableau B⁻¹·[A | −I] for the current basis, in the model's own
+// (unscaled) units, and returns the variable basic at that position and its
+// current value. With z = (x, s), where s_i = a_i·x is row i's activity,
+// every point satisfying the rows obeys
+//
+//	Σ_k out[k]·z[k] = 0,   out[basic] = 1, out[k] = 0 for the other basic variables,
+//
+// so basic = −Σ_{k nonbasic} out[k]·z[k]. Gomory and MIR cuts are derived
+// from this row with the nonbasic variables at their bounds (their status in
+// Basis()). Call it after an Optimal solve; cost one sparse solve with the
+// basis and O(nonzeros). It panics on a wrong length or position.
+func (s *Solver) TableauRow(pos int, out []float64) (basic int, value float64) {
+	if len(out) != s.n+s.m || pos < 0 || pos >= s.m {
+		panic("lp: TableauRow: wrong length or position")
+	}
+	if !s.ensureFactor() {
+		for k := range out {
+			out[k] = math.NaN()
+		}
+		return s.head[pos], math.NaN()
+	}
+	rho := make([]float64, s.m)
+	rho[pos] = 1
+	s.btranRow(rho)
+	row := make([]float64, s.n)
+	s.pivotRow(rho, row)
+	basic = s.head[pos]
+	db := s.unscaleFactor(basic)
+	for j := 0; j < s.n; j++ {
+		out[j] = row[j] * db / s.colScale[j]
+	}
+	for i := 0; i < s.m; i++ {
+		// Slack column −e_i: entry −ρ_i; its scale factor is 1/rowScale.
+		out[s.n+i] = -rho[i] * db * s.rowScale[i]
+	}
+	for _, v := range s.head {
+		out[v] = 0
+	}
+	out[basic] = 1
+	return basic, s.x[basic] * db
+}
+
+// unscaleFactor returns the factor taking variable v from scaled to model
+// units.
+func (s *Solver) unscaleFactor(v int) float64 {
+	if v < s.n {
+		return s.colScale[v]
+	}
+	return 1 / s.rowScale[v-s.n]
+}
+
+// SaveState returns a copy of the column bounds and the basis. Cost O(n+m).
+func (s *Solver) SaveState() *State {
+	return &State{
+		colLower: append([]float64(nil), s.model.ColLower...),
+		colUpper: append([]float64(nil), s.model.ColUpper...),
+		head:     append([]int(nil), s.head...),
+		stat:     append([]VarStatus(nil), s.stat...),
+		dse:      append([]float64(nil), s.dse...),
+		m:        s.m,
+	}
+}
+
+// RestoreState puts back bounds and basis saved by SaveState. It panics if
+// rows were added or removed in between.
+func (s *Solver) RestoreState(st *State) {
+	if st.m != s.m {
+		panic("lp: RestoreState: the number of rows changed since SaveState")
+	}
+	for j := 0; j < s.n; j++ {
+		s.SetColBounds(j, st.colLower[j], st.colUpper[j])
+	}
+	copy(s.head, st.head)
+	copy(s.stat, st.stat)
+	copy(s.dse, st.dse)
+	s.facValid = false
+	s.solved = false
+}
+
+// Solve runs the simplex method from the current basis and returns the
+// result in the model's units and sense. A new solver starts from the slack
+// basis; later calls warm-start from the last basis, which suits bound
+// changes (dual simplex) and cost changes (primal simplex). Cancelling ctx
+// stops the solve with status Cancelled.
+func (s *Solver) Solve(ctx context.Context) Result {
+	if ctx == nil {
+		ctx = context.Background()
+	}
+	s.ray = nil
+	st := s.run(ctx)
+	s.status = st
+	return s.result(st)
+}
+
+// result assembles a Result in model units.
+func (s *Solver) result(st Status) Result {
+	r := Result{Status: st, Iterations: s.iterations, Basis: s.Basis()}
+	if st == Unbounded {
+		r.Ray = s.ray
+	}
+	m := s.model
+	r.X = make([]float64, s.n)
+	for j := 0; j < s.n; j++ {
+		r.X[j] = s.x[j] * s.colScale[j]
+	}
+	r.Objective, r.RowActivity = m.Evaluate(r.X)
+	sign := 1.0
+	if m.Sense == Maximize {
+		sign = -1
+	}
+	r.Dual = make([]float64, s.m)
+	for i := 0; i < s.m; i++ {
+		r.Dual[i] = sign * s.y[i] * s.rowScale[i]
+	}
+	r.ReducedCost = append([]float64(nil), m.Obj...)
+	rows := m.Rows()
+	for i := 0; i < s.m; i++ {
+		yi := r.Dual[i]
+		if yi == 0 {
+			continue
+		}
+		for p := rows.Start[i]; p < rows.Start[i+1]; p++ {
+			r.ReducedCost[rows.Index[p]] -= yi * rows.Value[p]
+		}
+	}
+	return r
+}
