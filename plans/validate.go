@@ -1,0 +1,371 @@
+package plans
+
+import (
+	"container/heap"
+	"fmt"
+	"math"
+	"sort"
+	"strings"
+	"time"
+
+	"netstage/catalog"
+)
+
+// horizonOK reports whether the first year and horizon decoded, so that
+// per-year vectors can be built.
+func (c *Case) horizonOK() bool {
+	return c.Horizon >= 1 && c.Horizon <= MaxHorizon && c.FirstYear != 0
+}
+
+// resolveCatalogs merges the decoded catalogs into the case: vendors and
+// items converted to case currency, per-year prices derived, tiers sorted,
+// items matched to links. It returns the errors found in the catalog files
+// (currency, expiry, duplicate vendors, items that fit no link) and records
+// case-file errors (unknown classes) in d.src.
+func (d *decoder) resolveCatalogs(c *Case, cats []*catalog.Catalog) ErrorList {
+	var errs ErrorList
+	at := func(file string, p catalog.Position, key string, err error) {
+		errs = append(errs, &Error{File: file, Line: p.Line, Col: p.Col, Key: key, Err: err})
+	}
+	linkClasses := map[string]bool{}
+	for _, l := range c.Links {
+		if l.Class != "" {
+			linkClasses[l.Class] = true
+		}
+	}
+	classList := sortedKeys(linkClasses)
+
+	// Class ceilings must name classes that links use.
+	for _, k := range sortedKeys(d.classAt) {
+		if !linkClasses[k] {
+			hint := ""
+			if s := catalog.Suggest(k, classList); s != "" {
+				hint = fmt.Sprintf(" (did you mean %q?)", s)
+			}
+			d.src.ErrorAt(d.classAt[k], "case.class_ceiling", fmt.Errorf("%w: no link has class %q%s", catalog.ErrReference, k, hint))
+		}
+	}
+	for i := range c.Links {
+		l := &c.Links[i]
+		l.Ceiling = c.Ceiling
+		if v, ok := c.ClassCeiling[l.Class]; ok {
+			l.Ceiling = v
+		}
+	}
+
+	start := time.Date(c.FirstYear, time.January, 1, 0, 0, 0, 0, time.UTC)
+	vendorAt := map[string]int{}
+	for ci, cat := range cats {
+		first := len(c.Vendors)
+		for _, v := range cat.Vendors {
+			if _, dup := vendorAt[v.ID]; dup {
+				at(cat.File, v.Pos, "vendors.id", fmt.Errorf("%w: vendor %q is also defined in another catalog", catalog.ErrDuplicate, v.ID))
+				continue
+			}
+			rate := 1.0
+			if v.Currency != c.Currency {
+				r, ok := c.ExchangeRates[v.Currency]
+				if !ok {
+					at(cat.File, v.CurrencyAt, "vendors.currency", fmt.Errorf("%w: the quote is in %s but the case (in %s) gives no exchange rate for it; add %s = ... to [case.exchange_rates]",
+						catalog.ErrCurrency, v.Currency, c.Currency, v.Currency))
+				}
+				rate = r
+			}
+			if !v.ValidUntil.IsZero() && v.ValidUntil.Before(start) {
+				msg := fmt.Sprintf("quote %q of vendor %q expired on %s, before the first year %d", v.Quote, v.ID, v.ValidUntil.Format(time.DateOnly), c.FirstYear)
+				if c.PricesRollForward {
+					d.src.Warns = append(d.src.Warns, Warning{File: cat.File, Line: v.ValidAt.Line, Col: v.ValidAt.Col, Key: "vendors.valid_until",
+						Msg: msg + "; its prices are rolled forward (prices_roll_forward = true)"})
+				} else {
+					at(cat.File, v.ValidAt, "vendors.valid_until", fmt.Errorf("%w: %s; renew the quote or set prices_roll_forward = true in [case]", catalog.ErrExpired, msg))
+				}
+			}
+			vendorAt[v.ID] = len(c.Vendors)
+			c.Vendors = append(c.Vendors, Vendor{ID: v.ID, Name: v.Name, Quote: v.Quote, ValidUntil: v.ValidUntil,
+				Currency: v.Currency, Rate: rate, Catalog: ci})
+		}
+		for _, r := range cat.Tiers {
+			vi, ok := vendorAt[r.Vendor]
+			if !ok || vi < first {
+				continue
+			}
+			v := &c.Vendors[vi]
+			t := Tier{Threshold: r.Threshold, Discount: r.Discount, Basis: TierByUnits}
+			if r.Basis == catalog.BasisSpend {
+				t.Basis = TierBySpend
+				t.Threshold *= v.Rate
+			}
+			v.Tiers = append(v.Tiers, t)
+		}
+		for _, ci := range cat.Items {
+			vi, ok := vendorAt[ci.Vendor]
+			if !ok || vi < first {
+				continue
+			}
+			it := d.item(c, ci, vi)
+			fits := false
+			for _, cl := range it.Classes {
+				fits = fits || linkClasses[cl]
+			}
+			if !fits {
+				at(cat.File, ci.Pos, "items.classes", fmt.Errorf("%w: item %q fits no link: no link has class %s (link classes: %s)",
+					catalog.ErrUnused, ci.ID, quoteList(it.Classes), strings.Join(classList, ", ")))
+			}
+			c.Items = append(c.Items, it)
+		}
+	}
+	for i := range c.Vendors {
+		tiers := c.Vendors[i].Tiers
+		sort.SliceStable(tiers, func(a, b int) bool {
+			if tiers[a].Basis != tiers[b].Basis {
+				return tiers[a].Basis < tiers[b].Basis
+			}
+			return tiers[a].Threshold < tiers[b].Threshold
+		})
+	}
+	for li := range c.Links {
+		l := &c.Links[li]
+		l.Items = nil
+		for ii := range c.Items {
+			if c.Items[ii].Fits(l.Class) {
+				l.Items = append(l.Items, ii)
+			}
+		}
+	}
+	return errs
+}
+
+// item converts one catalog item into the case and derives its per-year
+// prices and in-service years.
+func (d *decoder) item(c *Case, ci catalog.Item, vendor int) Item {
+	rate := c.Vendors[vendor].Rate
+	it := Item{
+		ID: ci.ID, Vendor: vendor, Classes: ci.Classes, Gbps: ci.Gbps,
+		CapexPerUnit: ci.Capex * rate, CapexPerKM: ci.CapexPerKM * rate, Opex: ci.Opex * rate,
+		LeadMonths: ci.LeadMonths, BookLife: ci.BookLife, SlotsPerUnit: ci.SlotsPerUnit,
+		MaxUnits: ci.MaxUnits, Erosion: ci.Erosion,
+	}
+	if ci.Kind == catalog.KindLease {
+		it.Kind = Lease
+	}
+	T := c.Horizon
+	it.PriceFactor = make([]float64, T)
+	it.UnitCapex = make([]float64, T)
+	it.KMCapex = make([]float64, T)
+	it.OrderOpex = make([]float64, T)
+	it.InService = make([]int, T)
+	for i := range T {
+		f := math.Pow(1-ci.Erosion, float64(i))
+		it.PriceFactor[i] = f
+		it.UnitCapex[i] = it.CapexPerUnit * f
+		it.KMCapex[i] = it.CapexPerKM * f
+		it.OrderOpex[i] = it.Opex
+		if it.Kind == Lease {
+			it.OrderOpex[i] = it.Opex * f
+		}
+		it.InService[i] = c.InService(i, it.LeadMonths)
+	}
+	return it
+}
+
+func sortedKeys[V any](m map[string]V) []string {
+	out := make([]string, 0, len(m))
+	for k := range m {
+		out = append(out, k)
+	}
+	sort.Strings(out)
+	return out
+}
+
+func quoteList(s []string) string {
+	q := make([]string, len(s))
+	for i, x := range s {
+		q[i] = fmt.Sprintf("%q", x)
+	}
+	return strings.Join(q, ", ")
+}
+
+// checkNetwork reports demands whose two sites are not connected by any
+// link, not even through candidate links.
+func (d *decoder) checkNetwork(c *Case) {
+	parent := make([]int, len(c.Sites))
+	for i := range parent {
+		parent[i] = i
+	}
+	var find func(int) int
+	find = func(i int) int {
+		for parent[i] != i {
+			parent[i] = parent[parent[i]]
+			i = parent[i]
+		}
+		return i
+	}
+	for _, l := range c.Links {
+		if l.A < 0 || l.B < 0 {
+			return // a bad site reference: connectivity would be misleading
+		}
+		parent[find(l.A)] = find(l.B)
+	}
+	for i, dm := range c.Demands {
+		if dm.A < 0 || dm.B < 0 || dm.A == dm.B {
+			continue
+		}
+		if find(dm.A) != find(dm.B) {
+			d.src.ErrorAt(d.demandAt[i], "demands", fmt.Errorf("%w: between %s and %s, not even through candidate links",
+				catalog.ErrNoPath, c.Sites[dm.A].ID, c.Sites[dm.B].ID))
+		}
+	}
+}
+
+// warnings records the suspicious values of a checked case: link classes
+// that no catalog item fits, a mix of paying and non-paying demands, and
+// links already above their utilisation ceiling in the first year.
+func (d *decoder) warnings(c *Case) {
+	for i, l := range c.Links {
+		if len(l.Items) == 0 {
+			d.src.WarnAt(d.linkAt[i], "links.class", fmt.Sprintf("no catalog item fits link %q (class %q): it cannot be upgraded", l.ID, l.Class))
+		}
+		if l.Candidate != nil && len(l.Items) == 0 {
+			d.src.WarnAt(d.linkAt[i], "links.candidate", fmt.Sprintf("candidate link %q could never carry traffic: no item fits it", l.ID))
+		}
+	}
+	var free []int
+	paying := 0
+	for i, dm := range c.Demands {
+		pays := false
+		for _, p := range dm.Tariff {
+			pays = pays || p != 0
+		}
+		if pays {
+			paying++
+		} else {
+			free = append(free, i)
+		}
+	}
+	if paying > 0 && len(free) > 0 {
+		ids := make([]string, 0, len(free))
+		for _, i := range free {
+			ids = append(ids, c.Demands[i].ID)
+		}
+		d.src.WarnAt(d.demandAt[free[0]], "demands.tariff", fmt.Sprintf("%d of %d demands pay no tariff while the others do (%s): they earn nothing, so only their committed traffic is sure to be carried",
+			len(free), len(c.Demands), strings.Join(ids, ", ")))
+	}
+	util := c.FirstYearUtilisation()
+	for i, l := range c.Links {
+		if u := util[i]; u > l.Ceiling {
+			d.src.WarnAt(d.linkAt[i], "links", fmt.Sprintf("link %q is already at %.0f %% utilisation in %d on shortest-path routing, above its ceiling of %.0f %%",
+				l.ID, 100*u, c.FirstYear, 100*l.Ceiling))
+		}
+	}
+}
+
+// FirstYearUtilisation estimates each link's busy-hour utilisation in the
+// first year before any purchase: every demand's forecast is routed, in
+// each direction, on the shortest path by km over links with base capacity
+// (ties to the lower link index); the result is the busier direction's load
+// over the base capacity (+Inf for a loaded link with none, 0 when unused).
+// This is a rough screen, not the plan's routing. Cost: O(D·(L + S)·log S)
+// for D demands, L links, S sites.
+func (c *Case) FirstYearUtilisation() []float64 {
+	load := make([][2]float64, len(c.Links)) // [0]: A→B, [1]: B→A
+	for _, dm := range c.Demands {
+		if dm.Forecast[0] == 0 {
+			continue
+		}
+		for _, dir := range [2][2]int{{dm.A, dm.B}, {dm.B, dm.A}} {
+			for _, step := range c.shortestPath(dir[0], dir[1]) {
+				load[step.link][step.dir] += dm.Forecast[0]
+			}
+		}
+	}
+	util := make([]float64, len(c.Links))
+	for i, l := range c.Links {
+		peak := max(load[i][0], load[i][1])
+		switch {
+		case peak == 0:
+		case l.BaseCapacity[0] == 0:
+			util[i] = math.Inf(1)
+		default:
+			util[i] = peak / l.BaseCapacity[0]
+		}
+	}
+	return util
+}
+
+type pathStep struct{ link, dir int }
+
+// shortestPath returns the links of a shortest path by km from site s to
+// site t over links with first-year base capacity, or nil.
+func (c *Case) shortestPath(s, t int) []pathStep {
+	n := len(c.Sites)
+	dist := make([]float64, n)
+	prev := make([]pathStep, n)
+	for i := range dist {
+		dist[i] = math.Inf(1)
+		prev[i] = pathStep{-1, 0}
+	}
+	dist[s] = 0
+	q := &siteQueue{{s, 0}}
+	for q.Len() > 0 {
+		top := heap.Pop(q).(siteDist)
+		if top.d > dist[top.site] {
+			continue
+		}
+		for li, l := range c.Links {
+			if l.BaseCapacity[0] <= 0 {
+				continue
+			}
+			var next, dir int
+			switch top.site {
+			case l.A:
+				next, dir = l.B, 0
+			case l.B:
+				next, dir = l.A, 1
+			default:
+				continue
+			}
+			if nd := top.d + l.KM; nd < dist[next] {
+				dist[next] = nd
+				prev[next] = pathStep{li, dir}
+				heap.Push(q, siteDist{next, nd})
+			}
+		}
+	}
+	if math.IsInf(dist[t], 1) {
+		return nil
+	}
+	var path []pathStep
+	for v := t; v != s; {
+		st := prev[v]
+		path = append(path, st)
+		if st.dir == 0 {
+			v = c.Links[st.link].A
+		} else {
+			v = c.Links[st.link].B
+		}
+	}
+	return path
+}
+
+type siteDist struct {
+	site int
+	d    float64
+}
+
+type siteQueue []siteDist
+
+func (q siteQueue) Len() int { return len(q) }
+func (q siteQueue) Less(i, j int) bool {
+	if q[i].d != q[j].d {
+		return q[i].d < q[j].d
+	}
+	return q[i].site < q[j].site
+}
+func (q siteQueue) Swap(i, j int) { q[i], q[j] = q[j], q[i] }
+func (q *siteQueue) Push(x any)   { *q = append(*q, x.(siteDist)) }
+func (q *siteQueue) Pop() any {
+	old := *q
+	x := old[len(old)-1]
+	*q = old[:len(old)-1]
+	return x
+}
