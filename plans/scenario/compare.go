@@ -1,0 +1,368 @@
+package scenario
+
+import (
+	"context"
+	"fmt"
+	"math"
+	"sort"
+	"strings"
+
+	"netstage/plans"
+)
+
+// AllVariant is the name of the variant that may mix every catalog.
+const AllVariant = "all"
+
+// Break-even search settings (issue: the discount to 0.5 %).
+const (
+	// BreakEvenStep is the width, as a fraction of list price, to which the
+	// break-even multiplier is bracketed.
+	BreakEvenStep = 0.005
+	// BreakEvenNPVTolerance is how close, relative to the winner's NPV
+	// (at least 1 currency unit), the losing catalog's NPV must be at the
+	// reported discount.
+	BreakEvenNPVTolerance = 0.005
+	// breakEvenMaxSolves bounds the bisection (2^−30 is far below any
+	// price a quote states).
+	breakEvenMaxSolves = 30
+)
+
+// OnlyCatalog returns a copy of c restricted to the vendors and items of
+// catalog k (an index into c.Catalogs), which becomes the case's only
+// catalog. Links keep only the items of that catalog.
+func OnlyCatalog(c *plans.Case, k int) *plans.Case {
+	if k < 0 || k >= len(c.Catalogs) {
+		panic(fmt.Sprintf("scenario: catalog %d out of range [0, %d)", k, len(c.Catalogs)))
+	}
+	out := shallowCopy(c)
+	out.Catalogs = []plans.CatalogFile{c.Catalogs[k]}
+	vendorMap := make([]int, len(c.Vendors))
+	out.Vendors = nil
+	for i, v := range c.Vendors {
+		vendorMap[i] = -1
+		if v.Catalog == k {
+			vendorMap[i] = len(out.Vendors)
+			v.Catalog = 0
+			out.Vendors = append(out.Vendors, v)
+		}
+	}
+	itemMap := make([]int, len(c.Items))
+	out.Items = nil
+	for i, it := range c.Items {
+		itemMap[i] = -1
+		if vendorMap[it.Vendor] >= 0 {
+			itemMap[i] = len(out.Items)
+			it.Vendor = vendorMap[it.Vendor]
+			out.Items = append(out.Items, it)
+		}
+	}
+	out.Links = make([]plans.Link, len(c.Links))
+	for i, l := range c.Links {
+		var items []int
+		for _, it := range l.Items {
+			if itemMap[it] >= 0 {
+				items = append(items, itemMap[it])
+			}
+		}
+		l.Items = items
+		out.Links[i] = l
+	}
+	return out
+}
+
+// ScaleQuote returns a copy of c with every price of catalog k's quotes
+// multiplied by p: module capex, lease fees and spend-tier thresholds (so a
+// plan's cost of that quote scales by exactly p). Module opex (power,
+// space) is not a quoted price and does not change.
+func ScaleQuote(c *plans.Case, k int, p float64) *plans.Case {
+	out := shallowCopy(c)
+	which := make([]bool, len(c.Vendors))
+	for i, v := range c.Vendors {
+		which[i] = v.Catalog == k
+	}
+	scaleQuotes(out, which, p, true)
+	return out
+}
+
+// Variant is one solve of a comparison.
+type Variant struct {
+	// Name is the catalog file's name, or AllVariant.
+	Name string `json:"name"`
+	// Catalog indexes Case.Catalogs (−1 for AllVariant).
+	Catalog        int      `json:"-"`
+	Status         string   `json:"status"`
+	Objective      *float64 `json:"objective"`
+	Bound          *float64 `json:"bound"`
+	IncrementalNPV *float64 `json:"incremental_npv"`
+	IRR            *float64 `json:"irr"`
+	PaybackYear    *int     `json:"payback_year"`
+	Capex          float64  `json:"capex"`
+	// CapexByYear has one entry per year of the horizon.
+	CapexByYear []YearAmount `json:"capex_by_year"`
+	// UnitsByVendor counts module and lease units bought per vendor.
+	UnitsByVendor []VendorUnits `json:"units_by_vendor"`
+	// Infeasibility says why the variant has no plan.
+	Infeasibility []string `json:"infeasibility"`
+	// Winner marks the best single catalog.
+	Winner bool `json:"winner"`
+	// BreakEvenDiscount is, for a losing catalog, the uniform discount on
+	// its quote at which it would match the winner (0.1 = 10 % off list);
+	// nil for the winner, for all, and when no discount makes it win.
+	BreakEvenDiscount *float64 `json:"break_even_discount"`
+	// BreakEvenNPV is the catalog's NPV at that discount.
+	BreakEvenNPV *float64 `json:"break_even_npv"`
+	// BreakEvenNote explains a missing break-even discount.
+	BreakEvenNote string `json:"break_even_note,omitempty"`
+
+	// Result is the full solve (not in the JSON).
+	Result *plans.Result `json:"-"`
+}
+
+// YearAmount is an amount of money in one calendar year.
+type YearAmount struct {
+	Year   int     `json:"year"`
+	Amount float64 `json:"amount"`
+}
+
+// VendorUnits is the number of units bought from one vendor.
+type VendorUnits struct {
+	Vendor string `json:"vendor"`
+	Units  int    `json:"units"`
+}
+
+// Difference is one link and order year where the variants' plans differ:
+// Buys[i] is what variant i orders there ("" for nothing).
+type Difference struct {
+	Link string   `json:"link"`
+	Year int      `json:"year"`
+	Buys []string `json:"buys"`
+}
+
+// Comparison is the result of Compare.
+type Comparison struct {
+	Case     string    `json:"case"`
+	Currency string    `json:"currency"`
+	Variants []Variant `json:"variants"`
+	// Winner is the name of the best single catalog ("" when none has a plan).
+	Winner      string       `json:"winner"`
+	Differences []Difference `json:"differences"`
+}
+
+// CompareOptions tune Compare.
+type CompareOptions struct {
+	// Solve solves one variant (required).
+	Solve SolveFunc
+	// NoBreakEven skips the break-even search.
+	NoBreakEven bool
+}
+
+// Compare solves c once per catalog alone and once with all catalogs, and
+// for each losing catalog finds its break-even discount.
+func Compare(ctx context.Context, c *plans.Case, opts CompareOptions) (*Comparison, error) {
+	if opts.Solve == nil {
+		panic("scenario: Compare without a solve function")
+	}
+	cmp := &Comparison{Case: c.Name, Currency: c.Currency, Differences: []Difference{}}
+	for k, cf := range c.Catalogs {
+		res, err := opts.Solve(ctx, OnlyCatalog(c, k))
+		if err != nil {
+			return nil, fmt.Errorf("scenario: variant %s: %w", cf.Name, err)
+		}
+		cmp.Variants = append(cmp.Variants, newVariant(cf.Name, k, c, res))
+	}
+	res, err := opts.Solve(ctx, c)
+	if err != nil {
+		return nil, fmt.Errorf("scenario: variant %s: %w", AllVariant, err)
+	}
+	cmp.Variants = append(cmp.Variants, newVariant(AllVariant, -1, c, res))
+
+	win := -1
+	for i, v := range cmp.Variants {
+		if v.Catalog >= 0 && v.Objective != nil && (win < 0 || *v.Objective > *cmp.Variants[win].Objective) {
+			win = i
+		}
+	}
+	if win >= 0 {
+		cmp.Variants[win].Winner = true
+		cmp.Winner = cmp.Variants[win].Name
+	}
+	if !opts.NoBreakEven {
+		for i := range cmp.Variants {
+			v := &cmp.Variants[i]
+			if v.Catalog < 0 || i == win {
+				continue
+			}
+			if win < 0 {
+				v.BreakEvenNote = "no catalog alone has a plan"
+				continue
+			}
+			be, err := BreakEven(ctx, c, v.Catalog, *cmp.Variants[win].Objective, opts.Solve)
+			if err != nil {
+				return nil, err
+			}
+			v.BreakEvenDiscount, v.BreakEvenNPV, v.BreakEvenNote = be.Discount, be.NPV, be.Note
+		}
+	}
+	cmp.Differences = differences(cmp.Variants)
+	return cmp, nil
+}
+
+func newVariant(name string, k int, c *plans.Case, res *plans.Result) Variant {
+	v := Variant{Name: name, Catalog: k, Status: string(res.Status), Objective: res.Objective, Bound: res.Bound,
+		IncrementalNPV: res.IncrementalNPV, IRR: res.IRR, PaybackYear: res.PaybackYear,
+		CapexByYear: []YearAmount{}, UnitsByVendor: []VendorUnits{}, Infeasibility: []string{}, Result: res}
+	for _, row := range res.Infeasibility {
+		v.Infeasibility = append(v.Infeasibility, row.Message)
+	}
+	if res.Objective == nil {
+		return v
+	}
+	byYear := make([]float64, c.Horizon)
+	units := map[string]int{}
+	for _, row := range res.Plan {
+		if i := row.Year - c.FirstYear; i >= 0 && i < c.Horizon {
+			byYear[i] += row.Capex
+		}
+		v.Capex += row.Capex
+		if row.Kind != plans.KindBuild {
+			units[row.Vendor] += row.Units
+		}
+	}
+	for i, a := range byYear {
+		v.CapexByYear = append(v.CapexByYear, YearAmount{Year: c.Year(i), Amount: a})
+	}
+	for name, n := range units {
+		v.UnitsByVendor = append(v.UnitsByVendor, VendorUnits{Vendor: name, Units: n})
+	}
+	sort.Slice(v.UnitsByVendor, func(a, b int) bool { return v.UnitsByVendor[a].Vendor < v.UnitsByVendor[b].Vendor })
+	return v
+}
+
+// BreakEvenResult is the outcome of BreakEven.
+type BreakEvenResult struct {
+	// Discount is 1 − p at the multiplier p found (nil when none).
+	Discount *float64
+	// NPV is the catalog's NPV at that discount.
+	NPV *float64
+	// Note explains a nil Discount.
+	Note string
+	// Solves counts the solves the search took.
+	Solves int
+}
+
+// BreakEven finds the uniform discount on catalog k's quote at which the
+// catalog alone reaches target (the winner's NPV): it brackets the price
+// multiplier p in [0, 1] by bisection, keeping NPV(lo) ≥ target > NPV(hi),
+// until hi − lo ≤ BreakEvenStep and NPV(lo) is within
+// BreakEvenNPVTolerance of target, and reports the discount 1 − lo.
+// A price level with no plan counts as −∞ (a lower price can only add plans
+// within the budget).
+func BreakEven(ctx context.Context, c *plans.Case, k int, target float64, solve SolveFunc) (BreakEvenResult, error) {
+	var out BreakEvenResult
+	npv := func(p float64) (float64, error) {
+		out.Solves++
+		res, err := solve(ctx, OnlyCatalog(ScaleQuote(c, k, p), k))
+		if err != nil {
+			return 0, fmt.Errorf("scenario: break-even of %s at %.4g × list: %w", c.Catalogs[k].Name, p, err)
+		}
+		if res.Objective == nil {
+			return math.Inf(-1), nil
+		}
+		return *res.Objective, nil
+	}
+	tol := BreakEvenNPVTolerance * math.Max(math.Abs(target), 1)
+	lo, hi := 0.0, 1.0
+	flo, err := npv(lo)
+	if err != nil {
+		return out, err
+	}
+	if flo < target {
+		if math.IsInf(flo, -1) {
+			out.Note = "has no plan even at no cost"
+		} else {
+			out.Note = "does not win even at no cost"
+		}
+		return out, nil
+	}
+	for out.Solves < breakEvenMaxSolves && (hi-lo > BreakEvenStep || flo-target > tol) {
+		mid := (lo + hi) / 2
+		f, err := npv(mid)
+		if err != nil {
+			return out, err
+		}
+		if f >= target {
+			lo, flo = mid, f
+		} else {
+			hi = mid
+		}
+	}
+	d := 1 - lo
+	out.Discount, out.NPV = &d, &flo
+	return out, nil
+}
+
+// differences lists the links and order years where the variants with a
+// plan buy different things, sorted by link then year.
+func differences(vs []Variant) []Difference {
+	type key struct {
+		link string
+		year int
+	}
+	buys := make([]map[key][]string, len(vs))
+	keys := map[key]bool{}
+	for i, v := range vs {
+		buys[i] = map[key][]string{}
+		if v.Objective == nil {
+			continue
+		}
+		for _, row := range v.Result.Plan {
+			k := key{row.Link, row.Year}
+			var s string
+			if row.Kind == plans.KindBuild {
+				s = "build"
+			} else {
+				s = fmt.Sprintf("%d×%s (%s)", row.Units, row.Item, row.Vendor)
+			}
+			buys[i][k] = append(buys[i][k], s)
+			keys[k] = true
+		}
+	}
+	var out []Difference
+	for k := range keys {
+		d := Difference{Link: k.link, Year: k.year}
+		same := true
+		var first string
+		n := 0
+		for i, v := range vs {
+			s := ""
+			if b := buys[i][k]; len(b) > 0 {
+				b = append([]string(nil), b...)
+				sort.Strings(b)
+				s = strings.Join(b, " + ")
+			}
+			d.Buys = append(d.Buys, s)
+			if v.Objective == nil {
+				continue
+			}
+			if n == 0 {
+				first = s
+			} else if s != first {
+				same = false
+			}
+			n++
+		}
+		if !same {
+			out = append(out, d)
+		}
+	}
+	sort.Slice(out, func(a, b int) bool {
+		if out[a].Link != out[b].Link {
+			return out[a].Link < out[b].Link
+		}
+		return out[a].Year < out[b].Year
+	})
+	if out == nil {
+		out = []Difference{}
+	}
+	return out
+}
