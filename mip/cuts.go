@@ -1,0 +1,389 @@
+package mip
+
+import (
+	"fmt"
+	"math"
+	"sort"
+	"strings"
+
+	"netstage/lp"
+)
+
+// A cut is a row lower ≤ Σ val·x[idx] ≤ upper valid for every integer point
+// of the global domain.
+type cut struct {
+	idx          []int
+	val          []float64
+	lower, upper float64
+	kind         string // "cover" or "gomory", for statistics
+
+	lpRow int // row index in the LP, −1 when only in the pool
+	age   int // consecutive rounds the cut was slack
+}
+
+// Cut tolerances.
+const (
+	// minEfficacy is the smallest violation per unit of coefficient norm of a
+	// cut worth adding (common practice: 1e-4 … 1e-3).
+	minEfficacy = 1e-4
+	// maxCutDynamism is the largest ratio of the largest to the smallest
+	// nonzero coefficient of an accepted cut.
+	maxCutDynamism = 1e6
+	// minGomoryFrac keeps Gomory rows away from nearly integral right-hand
+	// sides, whose cuts are weak and numerically poor.
+	minGomoryFrac = 0.01
+	// cutAgeLimit is the number of rounds an inactive cut stays in the LP.
+	cutAgeLimit = 3
+	// maxCutsPerRound limits the rows added at once.
+	maxCutsPerRound = 200
+	// maxGomoryRows limits the tableau rows read per round.
+	maxGomoryRows = 100
+)
+
+// violation returns how much x violates c (0 when satisfied).
+func (c *cut) violation(x []float64) float64 {
+	a := 0.0
+	for k, j := range c.idx {
+		a += c.val[k] * x[j]
+	}
+	return math.Max(c.lower-a, a-c.upper)
+}
+
+func (c *cut) norm() float64 {
+	s := 0.0
+	for _, v := range c.val {
+		s += v * v
+	}
+	return math.Sqrt(s)
+}
+
+func (c *cut) efficacy(x []float64) float64 {
+	nrm := c.norm()
+	if nrm == 0 {
+		return 0
+	}
+	return c.violation(x) / nrm
+}
+
+func (c *cut) row(name string) lp.Row {
+	return lp.Row{Name: name, Lower: c.lower, Upper: c.upper, Index: c.idx, Value: c.val}
+}
+
+// key identifies a cut up to tiny differences, against duplicates.
+func (c *cut) key() string {
+	var b strings.Builder
+	for k, j := range c.idx {
+		fmt.Fprintf(&b, "%d:%.9g,", j, c.val[k])
+	}
+	fmt.Fprintf(&b, "|%.9g|%.9g", c.lower, c.upper)
+	return b.String()
+}
+
+// numericallySafe reports whether the cut's coefficients have a moderate
+// range and no NaN.
+func (c *cut) numericallySafe() bool {
+	if len(c.idx) == 0 {
+		return false
+	}
+	mx, mn := 0.0, math.Inf(1)
+	for _, v := range c.val {
+		if math.IsNaN(v) || math.IsInf(v, 0) {
+			return false
+		}
+		a := math.Abs(v)
+		mx = math.Max(mx, a)
+		mn = math.Min(mn, a)
+	}
+	if math.IsNaN(c.lower) || math.IsNaN(c.upper) {
+		return false
+	}
+	return mx/mn <= maxCutDynamism
+}
+
+// separateCover looks for a violated lifted (extended) cover inequality for
+// the row rl ≤ Σ val·x[idx] ≤ ru, using both sides. lo/up is the global
+// domain and x the LP point. Binary columns form the knapsack; other columns
+// are moved to the right-hand side at their worst bound.
+func separateCover(p *problem, idx []int, val []float64, rl, ru float64, lo, up, x []float64) []*cut {
+	var out []*cut
+	if !math.IsInf(ru, 1) {
+		if c := coverOnSide(p, idx, val, ru, lo, up, x, 1); c != nil {
+			out = append(out, c)
+		}
+	}
+	if !math.IsInf(rl, -1) {
+		if c := coverOnSide(p, idx, val, -rl, lo, up, x, -1); c != nil {
+			out = append(out, c)
+		}
+	}
+	return out
+}
+
+type knapItem struct {
+	col  int
+	w    float64 // weight > 0
+	y    float64 // LP value of the (possibly complemented) binary
+	comp bool    // y = 1 − x
+}
+
+// coverOnSide handles sign·(Σ val·x) ≤ b.
+func coverOnSide(p *problem, idx []int, val []float64, b float64, lo, up, x []float64, sign float64) *cut {
+	var items []knapItem
+	for k, j := range idx {
+		a := sign * val[k]
+		if lo[j] == up[j] {
+			b -= a * lo[j]
+			continue
+		}
+		if p.isInt[j] && lo[j] == 0 && up[j] == 1 {
+			if a > 0 {
+				items = append(items, knapItem{col: j, w: a, y: x[j]})
+			} else {
+				b -= a
+				items = append(items, knapItem{col: j, w: -a, y: 1 - x[j], comp: true})
+			}
+			continue
+		}
+		if a > 0 {
+			if math.IsInf(lo[j], -1) {
+				return nil
+			}
+			b -= a * lo[j]
+		} else {
+			if math.IsInf(up[j], 1) {
+				return nil
+			}
+			b -= a * up[j]
+		}
+	}
+	if len(items) < 2 || b < 0 {
+		return nil
+	}
+	total := 0.0
+	for _, it := range items {
+		total += it.w
+	}
+	eps := 1e-9 * math.Max(1, math.Abs(b))
+	if total <= b+eps {
+		return nil
+	}
+	// Greedy cover: cheapest (1 − y)/w first.
+	order := make([]int, len(items))
+	for i := range order {
+		order[i] = i
+	}
+	sort.SliceStable(order, func(a, c int) bool {
+		ia, ic := items[order[a]], items[order[c]]
+		return (1-ia.y)/ia.w < (1-ic.y)/ic.w
+	})
+	var cover []int
+	sum := 0.0
+	for _, i := range order {
+		cover = append(cover, i)
+		sum += items[i].w
+		if sum > b+eps {
+			break
+		}
+	}
+	if sum <= b+eps {
+		return nil
+	}
+	// Make it minimal: drop members with the smallest y while still a cover.
+	sort.SliceStable(cover, func(a, c int) bool { return items[cover[a]].y < items[cover[c]].y })
+	keep := cover[:0]
+	for k, i := range cover {
+		if sum-items[i].w > b+eps {
+			sum -= items[i].w
+			continue
+		}
+		keep = append(keep, cover[k])
+	}
+	cover = keep
+	if len(cover) < 1 {
+		return nil
+	}
+	inCover := make(map[int]bool, len(cover))
+	maxW := 0.0
+	lhs := 0.0
+	for _, i := range cover {
+		inCover[i] = true
+		maxW = math.Max(maxW, items[i].w)
+		lhs += items[i].y
+	}
+	// Extended cover: items at least as heavy as every cover member.
+	ext := append([]int(nil), cover...)
+	for i, it := range items {
+		if !inCover[i] && it.w >= maxW {
+			ext = append(ext, i)
+			lhs += it.y
+		}
+	}
+	rhs := float64(len(cover) - 1)
+	if lhs <= rhs+1e-6 {
+		return nil
+	}
+	sort.Ints(ext)
+	c := &cut{lower: math.Inf(-1), upper: rhs, kind: "cover", lpRow: -1}
+	coef := map[int]float64{}
+	var cols []int
+	for _, i := range ext {
+		it := items[i]
+		if _, ok := coef[it.col]; !ok {
+			cols = append(cols, it.col)
+		}
+		if it.comp {
+			coef[it.col] -= 1
+			c.upper -= 1
+		} else {
+			coef[it.col] += 1
+		}
+	}
+	sort.Ints(cols)
+	for _, j := range cols {
+		if coef[j] != 0 {
+			c.idx = append(c.idx, j)
+			c.val = append(c.val, coef[j])
+		}
+	}
+	return c
+}
+
+// lpRowInfo describes one LP row for cut derivation.
+type lpRowInfo struct {
+	idx          []int
+	val          []float64
+	lower, upper float64
+	intSlack     bool // the activity is integral at every integer point
+}
+
+// gomoryFromRow derives a Gomory mixed-integer cut from one tableau row
+// Σ_k row[k]·z[k] = 0 (z = columns then row activities; row[basic] = 1),
+// where the basic variable is an integer column with fractional value.
+// status gives the nonbasic positions; lo/up the column bounds in use.
+func gomoryFromRow(p *problem, row []float64, basic int, value float64, basis lp.Basis, lo, up []float64, rows []lpRowInfo) *cut {
+	n := p.n
+	f0 := value - math.Floor(value)
+	if f0 < minGomoryFrac || f0 > 1-minGomoryFrac {
+		return nil
+	}
+	// In terms of t_k ≥ 0 (distance from the active bound):
+	//   x_b + Σ ā_k t_k = β,   ā_k = row[k] at lower, −row[k] at upper.
+	// Cut: Σ g_k t_k ≥ 1, then substituted back into z.
+	coef := make(map[int]float64) // over columns
+	rhs := 1.0
+	addZ := func(k int, c float64) bool {
+		// add c·z_k to the cut's left side
+		if k < n {
+			coef[k] += c
+			return true
+		}
+		r := rows[k-n]
+		for q, j := range r.idx {
+			coef[j] += c * r.val[q]
+		}
+		return true
+	}
+	for k, a := range row {
+		if k == basic || a == 0 || math.Abs(a) < 1e-11 {
+			continue
+		}
+		var st lp.VarStatus
+		var l, u float64
+		var isInt bool
+		if k < n {
+			st = basis.Cols[k]
+			l, u = lo[k], up[k]
+			isInt = p.isInt[k]
+		} else {
+			st = basis.Rows[k-n]
+			r := rows[k-n]
+			l, u = r.lower, r.upper
+			isInt = r.intSlack
+		}
+		if st == lp.Basic {
+			continue
+		}
+		var abar, bnd float64
+		atUpper := false
+		switch {
+		case st == lp.Fixed || l == u:
+			continue // t_k = 0
+		case st == lp.AtLower:
+			abar, bnd = a, l
+		case st == lp.AtUpper:
+			abar, bnd, atUpper = -a, u, true
+		default:
+			return nil // a free nonbasic column: no cut from this row
+		}
+		if math.IsInf(bnd, 0) {
+			return nil
+		}
+		var g float64
+		if isInt && bnd == math.Round(bnd) {
+			fk := abar - math.Floor(abar)
+			if fk <= f0 {
+				g = fk / f0
+			} else {
+				g = (1 - fk) / (1 - f0)
+			}
+		} else {
+			if abar >= 0 {
+				g = abar / f0
+			} else {
+				g = -abar / (1 - f0)
+			}
+		}
+		if g == 0 {
+			continue
+		}
+		// g·t_k with t_k = z_k − l (lower) or u − z_k (upper)
+		if atUpper {
+			addZ(k, -g)
+			rhs -= g * bnd
+		} else {
+			addZ(k, g)
+			rhs += g * bnd
+		}
+	}
+	c := &cut{lower: rhs, upper: math.Inf(1), kind: "gomory", lpRow: -1}
+	cols := make([]int, 0, len(coef))
+	maxAbs := 0.0
+	for j, v := range coef {
+		cols = append(cols, j)
+		maxAbs = math.Max(maxAbs, math.Abs(v))
+	}
+	if maxAbs == 0 {
+		return nil
+	}
+	sort.Ints(cols)
+	for _, j := range cols {
+		v := coef[j]
+		if math.Abs(v) <= 1e-9*maxAbs {
+			// drop the tiny term, relaxing the right-hand side with a bound
+			if v > 0 {
+				if math.IsInf(up[j], 1) {
+					return nil
+				}
+				c.lower -= v * up[j]
+			} else if v < 0 {
+				if math.IsInf(lo[j], -1) {
+					return nil
+				}
+				c.lower -= v * lo[j]
+			}
+			continue
+		}
+		c.idx = append(c.idx, j)
+		c.val = append(c.val, v)
+	}
+	// Scale so the largest coefficient is 1 (better conditioned rows).
+	s := 1 / maxAbs
+	for k := range c.val {
+		c.val[k] *= s
+	}
+	c.lower *= s
+	if !c.numericallySafe() {
+		return nil
+	}
+	return c
+}

@@ -1,0 +1,60 @@
+// Package mip solves mixed-integer linear programs by branch-and-bound over
+// the LP relaxation of package lp.
+//
+// A problem is an lp.Model whose Integer marks say which columns must take
+// integer values:
+//
+//	minimise or maximise  c·x + constant
+//	subject to            rowLower ≤ A·x ≤ rowUpper
+//	                      colLower ≤ x ≤ colUpper,  x_j ∈ ℤ where Integer[j]
+//
+// Solve (or NewSolver and Solver.Solve) returns a Result with a Status
+// (optimal, feasible, infeasible, unbounded, limit), the best point found,
+// its objective and a proven bound, both in the model's own sense (for a
+// maximisation the bound is an upper bound). The gap is
+// |bound − objective| / max(|objective|, 1); the search stops as "optimal"
+// when it falls to Settings.RelGap (default 1e-4) or the absolute gap to
+// Settings.AbsGap (default 1e-6). A search stopped by a time or node limit
+// or by cancelling its context reports "feasible" with its gap when it has a
+// point, "limit" otherwise — never "optimal" unless the gap is closed.
+//
+// The search, internally a minimisation:
+//
+//   - Root: activity-based bound propagation, the LP relaxation, rounds of
+//     lifted (extended) knapsack cover cuts on the rows and Gomory
+//     mixed-integer cuts on tableau rows, with a small pool that ages slack
+//     cuts out of the LP; reduced-cost fixing of the global domain whenever
+//     the incumbent improves; rounding and diving heuristics.
+//   - Nodes: each node LP is warm-started from its parent's basis by the
+//     dual simplex, with the incumbent (minus the allowed gap) as objective
+//     cutoff; bounds are propagated on rows and on the objective cutoff, and
+//     reduced costs fix columns inside the subtree.
+//   - Branching: reliability branching — pseudocosts with the product score,
+//     strong branching with an iteration cap on columns whose pseudocosts
+//     have fewer than 8 observations (common practice).
+//   - Node selection: depth-first plunging into the preferred child while it
+//     stays promising, then best estimate, with a best-bound node taken
+//     every few picks so that the bound rises.
+//   - When the objective has integer coefficients on integer columns only,
+//     bounds are rounded up to the objective's lattice (multiples of the
+//     coefficients' gcd).
+//
+// Callers can give a starting solution (Settings.Start, Solver.AddSolution)
+// and propose solutions during the search (Settings.Heuristic, called with
+// the node's LP solution). Every candidate, and every incumbent, is checked
+// against the original model's bounds, rows and integrality; a candidate
+// that violates rows has its integer values fixed and its continuous
+// columns re-optimised by LP. Settings.Progress receives the incumbent,
+// bound, gap, nodes and elapsed time.
+//
+// The search is deterministic: the same model, settings and seed give the
+// same path and the same answer. A model whose LP relaxation is unbounded is
+// reported unbounded when it has a feasible point (with rational data, one
+// feasible point and an unbounded relaxation imply an unbounded MIP:
+// Meyer, Math. Programming 7, 1974), infeasible otherwise.
+//
+// References: Achterberg, Koch and Martin, "Branching rules revisited",
+// Oper. Res. Letters 33, 2005 (reliability branching); Nemhauser and
+// Wolsey, Integer and Combinatorial Optimization, 1988 (Gomory mixed-integer
+// and cover inequalities).
+package mip

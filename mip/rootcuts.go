@@ -1,0 +1,184 @@
+package mip
+
+import (
+	"fmt"
+	"math"
+	"sort"
+
+	"netstage/lp"
+)
+
+// rootCuts runs rounds of cover and Gomory cut separation at the root,
+// re-solving the LP after each round, until no violated cut is found or
+// the bound stalls. Cuts that stay slack are aged out of the LP into the
+// pool, from which they come back when violated. It returns the last LP
+// result (which may be non-optimal when a limit or the cutoff stopped it).
+func (s *search) rootCuts(r lp.Result) lp.Result {
+	p := s.p
+	stall := 0
+	lastObj := r.Objective
+	buf := make([]float64, 0)
+	for round := 0; round < maxCutRounds; round++ {
+		if s.limitReached() {
+			break
+		}
+		x := r.X
+		var found []*cut
+		// Pool cuts not in the LP.
+		for _, c := range s.pool {
+			if c.lpRow < 0 && c.efficacy(x) > minEfficacy {
+				found = append(found, c)
+			}
+		}
+		// Covers on the original rows.
+		for i := 0; i < p.m; i++ {
+			ri := s.rows[i]
+			for _, c := range separateCover(p, ri.idx, ri.val, ri.lower, ri.upper, s.lpLo, s.lpUp, x) {
+				found = s.addFound(found, c, x)
+			}
+		}
+		// Gomory mixed-integer cuts from tableau rows of fractional integer
+		// basic columns, most fractional first.
+		heads := s.lps.BasicVars()
+		type gpos struct {
+			pos  int
+			dist float64
+		}
+		var gps []gpos
+		for pos, v := range heads {
+			if v < p.n && p.isInt[v] {
+				f := x[v] - math.Floor(x[v])
+				if f > minGomoryFrac && f < 1-minGomoryFrac {
+					gps = append(gps, gpos{pos, math.Abs(f - 0.5)})
+				}
+			}
+		}
+		sort.SliceStable(gps, func(a, b int) bool { return gps[a].dist < gps[b].dist })
+		if len(gps) > maxGomoryRows {
+			gps = gps[:maxGomoryRows]
+		}
+		if len(gps) > 0 {
+			basis := s.lps.Basis()
+			width := p.n + s.lps.NumRows()
+			if cap(buf) < width {
+				buf = make([]float64, width)
+			}
+			buf = buf[:width]
+			for _, g := range gps {
+				for k := range buf {
+					buf[k] = 0
+				}
+				basic, value := s.lps.TableauRow(g.pos, buf)
+				if basic >= p.n || math.IsNaN(value) {
+					continue
+				}
+				if c := gomoryFromRow(p, buf, basic, value, basis, s.lpLo, s.lpUp, s.rows); c != nil {
+					found = s.addFound(found, c, x)
+				}
+			}
+		}
+		if len(found) == 0 {
+			break
+		}
+		sort.SliceStable(found, func(a, b int) bool { return found[a].efficacy(x) > found[b].efficacy(x) })
+		if len(found) > maxCutsPerRound {
+			found = found[:maxCutsPerRound]
+		}
+		rows := make([]lp.Row, 0, len(found))
+		for _, c := range found {
+			if c.lpRow >= 0 {
+				continue
+			}
+			c.lpRow = s.lps.NumRows() + len(rows)
+			c.age = 0
+			rows = append(rows, c.row(fmt.Sprintf("cut%d", s.nCuts)))
+			s.rows = append(s.rows, lpRowInfo{idx: c.idx, val: c.val, lower: c.lower, upper: c.upper, intSlack: c.kind == "cover"})
+			s.nCuts++
+		}
+		s.lps.AddRows(rows)
+		r = s.lpSolve(s.pruneLimit(), 0)
+		if r.Status != lp.Optimal {
+			return r
+		}
+		s.ageCuts(r, false)
+		if !s.set.NoHeuristics {
+			s.simpleRounding(r.X)
+		}
+		if r.Objective-lastObj <= cutStallRel*math.Max(1, math.Abs(r.Objective)) {
+			stall++
+			if stall >= cutStallRounds {
+				break
+			}
+		} else {
+			stall = 0
+		}
+		lastObj = r.Objective
+	}
+	// Leave only binding cuts in the LP for the tree.
+	if r.Status == lp.Optimal {
+		s.ageCuts(r, true)
+		r = s.lpSolve(s.pruneLimit(), 0)
+	}
+	return r
+}
+
+// addFound appends c to found when it is violated enough and new.
+func (s *search) addFound(found []*cut, c *cut, x []float64) []*cut {
+	if c.efficacy(x) <= minEfficacy || !c.numericallySafe() {
+		return found
+	}
+	k := c.key()
+	if s.poolKeys[k] {
+		return found
+	}
+	s.poolKeys[k] = true
+	c.lpRow = -1
+	s.pool = append(s.pool, c)
+	return append(found, c)
+}
+
+// ageCuts increases the age of cuts whose slack is basic and removes those
+// past cutAgeLimit (all slack ones when final) from the LP. Pool entries
+// stay for later rounds.
+func (s *search) ageCuts(r lp.Result, final bool) {
+	var drop []int
+	for _, c := range s.pool {
+		if c.lpRow < 0 {
+			continue
+		}
+		if r.Basis.Rows[c.lpRow] == lp.Basic {
+			c.age++
+		} else {
+			c.age = 0
+		}
+		if c.age > cutAgeLimit || (final && c.age > 0) {
+			drop = append(drop, c.lpRow)
+		}
+	}
+	if len(drop) == 0 {
+		return
+	}
+	sort.Ints(drop)
+	s.lps.RemoveRows(drop)
+	removed := make(map[int]bool, len(drop))
+	for _, i := range drop {
+		removed[i] = true
+	}
+	// Renumber the rows that stay.
+	newIndex := make([]int, len(s.rows))
+	var kept []lpRowInfo
+	for i := range s.rows {
+		if removed[i] {
+			newIndex[i] = -1
+			continue
+		}
+		newIndex[i] = len(kept)
+		kept = append(kept, s.rows[i])
+	}
+	s.rows = kept
+	for _, c := range s.pool {
+		if c.lpRow >= 0 {
+			c.lpRow = newIndex[c.lpRow]
+		}
+	}
+}

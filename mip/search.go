@@ -1,0 +1,490 @@
+package mip
+
+import (
+	"math"
+	"sort"
+	"time"
+
+	"netstage/lp"
+)
+
+// Search parameters (common practice values, tuned on small benchmarks).
+const (
+	maxCutRounds      = 20 // root cutting-plane rounds
+	cutStallRounds    = 3  // rounds without bound progress before cutting stops
+	cutStallRel       = 1e-4
+	maxStrongBranch   = 10  // strong-branching candidates per node
+	strongLookahead   = 4   // candidates without improvement before strong branching stops
+	minStrongIters    = 10  // iteration cap of one strong-branching LP, at least …
+	maxStrongIters    = 200 // … and at most
+	bestBoundEvery    = 5   // every this many selections the best-bound node is taken
+	plungeGapFraction = 0.5 // a plunge stops when the child's bound is this far into the gap
+	maxPlungeDepth    = 1000
+	maxDiveDepth      = 200
+	diveEvery         = 200 // nodes between two dives
+	diveIterFactor    = 4   // a dive's LP iteration cap, in mean iterations per node
+	maxNodeResolves   = 20  // re-solves of one node after strong branching fixes a column
+)
+
+// run performs the whole search and returns the result.
+func (s *search) run(starts [][]float64) Result {
+	p, ok := newProblem(modelOf(s), s.set.IntTol)
+	s.p = p
+	s.queue = newNodeQueue()
+	if !ok {
+		return s.result(Infeasible)
+	}
+	lps, err := lp.NewSolver(p.work, s.lpSet)
+	if err != nil {
+		// NewSolver validated the model already; this is unexpected.
+		s.stopped = LPFailure
+		return s.result(Limit)
+	}
+	s.lps = lps
+	n := p.n
+	s.glo = append([]float64(nil), p.lower...)
+	s.gup = append([]float64(nil), p.upper...)
+	s.lo = append([]float64(nil), s.glo...)
+	s.up = append([]float64(nil), s.gup...)
+	s.lpLo = append([]float64(nil), p.work.ColLower...)
+	s.lpUp = append([]float64(nil), p.work.ColUpper...)
+	s.prop = newPropagator(p)
+	s.pc = newPseudocosts(n)
+	s.poolKeys = map[string]bool{}
+	s.initRows()
+	s.initLocks()
+
+	// Root propagation on the global domain.
+	if !s.prop.propagate(s.glo, s.gup, nil, nil) {
+		return s.result(Infeasible)
+	}
+	copy(s.lo, s.glo)
+	copy(s.up, s.gup)
+	s.syncBounds()
+
+	for _, x := range starts {
+		s.tryCandidate(x)
+	}
+
+	// Root LP.
+	r := s.lpSolve(inf, 0)
+	s.nodes = 1
+	switch r.Status {
+	case lp.Optimal:
+	case lp.Infeasible:
+		return s.result(Infeasible)
+	case lp.Unbounded:
+		return s.unboundedOrInfeasible()
+	default:
+		if s.limitReached() || r.Status == lp.TimeLimit || r.Status == lp.Cancelled {
+			if r.Status == lp.TimeLimit {
+				s.stopped = TimeLimit
+			} else if r.Status == lp.Cancelled {
+				s.stopped = Cancelled
+			}
+			return s.finish()
+		}
+		s.stopped = LPFailure
+		return s.finish()
+	}
+	s.rootBound = p.roundBound(r.Objective)
+	s.curBound = s.rootBound
+	if !s.set.NoHeuristics {
+		s.simpleRounding(r.X)
+	}
+	s.callHeuristic(r.X)
+	if !s.set.NoCuts {
+		r = s.rootCuts(r)
+		if r.Status != lp.Optimal {
+			return s.afterRootFailure(r)
+		}
+		s.rootBound = p.roundBound(r.Objective)
+		s.curBound = s.rootBound
+	}
+	s.rootObj = r.Objective
+	s.rootRedCst = append([]float64(nil), r.ReducedCost...)
+	s.rootX = append([]float64(nil), r.X...)
+	s.rootFixing()
+	if !s.set.NoHeuristics {
+		s.dive(r.X)
+	}
+	s.progress(false)
+
+	root := &node{id: s.nextID(), branchVar: -1, bound: s.rootBound, estimate: s.rootBound}
+	b := s.lps.Basis()
+	root.basis = &b
+	s.curBound = inf
+	s.treeSearch(root)
+	return s.finish()
+}
+
+// modelOf returns the model the search was built for.
+func modelOf(s *search) *lp.Model { return s.model }
+
+func (s *search) nextID() int { s.ids++; return s.ids }
+
+// finish turns the search state into a Result.
+func (s *search) finish() Result {
+	s.curBound = inf
+	if s.stopped == Finished || s.stopped == LPFailure {
+		if s.queue.Len() == 0 {
+			if s.incX != nil {
+				if s.lpLost && s.gapOpen() {
+					s.stopped = LPFailure
+					return s.result(Feasible)
+				}
+				s.stopped = Finished
+				return s.result(Optimal)
+			}
+			if s.lpLost || s.stopped == LPFailure {
+				s.stopped = LPFailure
+				return s.result(Limit)
+			}
+			return s.result(Infeasible)
+		}
+	}
+	if s.incX != nil {
+		if !s.gapOpen() {
+			s.stopped = Finished
+			return s.result(Optimal)
+		}
+		return s.result(Feasible)
+	}
+	return s.result(Limit)
+}
+
+// gapOpen reports whether the proven bound is still further from the
+// incumbent than the gap settings allow.
+func (s *search) gapOpen() bool {
+	b := s.globalBound()
+	return s.incObj-b > s.gapTol()*(1+1e-9)
+}
+
+// afterRootFailure handles a root LP that stopped being optimal during
+// cutting (limits, cutoff, numerical trouble).
+func (s *search) afterRootFailure(r lp.Result) Result {
+	switch r.Status {
+	case lp.ObjectiveCutoff, lp.Infeasible:
+		// Valid cuts and the cutoff exclude every better point.
+		s.curBound = inf
+		if s.incX != nil {
+			s.notePruned(s.pruneLimit())
+			return s.result(Optimal)
+		}
+		return s.result(Infeasible)
+	case lp.TimeLimit:
+		s.stopped = TimeLimit
+	case lp.Cancelled:
+		s.stopped = Cancelled
+	default:
+		s.stopped = LPFailure
+	}
+	return s.finish()
+}
+
+// unboundedOrInfeasible decides a MIP whose LP relaxation is unbounded: with
+// rational data it is unbounded exactly when it has a feasible point, which
+// a search with a zero objective finds.
+func (s *search) unboundedOrInfeasible() Result {
+	m := s.p.work.Clone()
+	for j := range m.Obj {
+		m.Obj[j] = 0
+	}
+	m.Constant = 0
+	set := s.set
+	set.Progress = nil
+	set.Start = nil
+	if !s.deadline.IsZero() {
+		set.TimeLimit = time.Until(s.deadline)
+		if set.TimeLimit <= 0 {
+			set.TimeLimit = time.Nanosecond
+		}
+	}
+	sub := newSearch(s.ctx, m, set)
+	r := sub.run(nil)
+	s.nodes += r.Nodes
+	s.iters += r.LPIterations
+	switch r.Status {
+	case Optimal, Feasible:
+		x := r.X
+		s.incX = x
+		s.incObj = s.p.objective(x)
+		return s.result(Unbounded)
+	case Infeasible:
+		return s.result(Infeasible)
+	}
+	s.stopped = r.Stopped
+	return s.result(Limit)
+}
+
+// initRows records the original rows for cut derivation.
+func (s *search) initRows() {
+	p := s.p
+	s.rows = make([]lpRowInfo, p.m)
+	for i := 0; i < p.m; i++ {
+		idx := p.rows.Index[p.rows.Start[i]:p.rows.Start[i+1]]
+		val := p.rows.Value[p.rows.Start[i]:p.rows.Start[i+1]]
+		intSlack := true
+		for k, j := range idx {
+			if !p.isInt[j] || val[k] != math.Round(val[k]) {
+				intSlack = false
+				break
+			}
+		}
+		s.rows[i] = lpRowInfo{idx: idx, val: val, lower: p.rowLower[i], upper: p.rowUpper[i], intSlack: intSlack}
+	}
+}
+
+// initLocks counts, per column, the rows that may be violated by moving the
+// column down or up (for rounding).
+func (s *search) initLocks() {
+	p := s.p
+	s.downLocks = make([]int, p.n)
+	s.upLocks = make([]int, p.n)
+	for i := 0; i < p.m; i++ {
+		hasLo, hasUp := !math.IsInf(p.rowLower[i], -1), !math.IsInf(p.rowUpper[i], 1)
+		for q := p.rows.Start[i]; q < p.rows.Start[i+1]; q++ {
+			j, a := p.rows.Index[q], p.rows.Value[q]
+			if (a > 0 && hasLo) || (a < 0 && hasUp) {
+				s.downLocks[j]++
+			}
+			if (a > 0 && hasUp) || (a < 0 && hasLo) {
+				s.upLocks[j]++
+			}
+		}
+	}
+}
+
+// fractional lists the integer columns of x that are not integral.
+func (s *search) fractional(x []float64) []int {
+	var out []int
+	for j, v := range x {
+		if s.p.isInt[j] && math.Abs(v-math.Round(v)) > s.set.IntTol {
+			out = append(out, j)
+		}
+	}
+	return out
+}
+
+// rootFixing applies reduced-cost fixing with the root LP to the global
+// domain (valid for the whole tree). Called again whenever the incumbent
+// improves.
+func (s *search) rootFixing() {
+	if s.rootRedCst == nil || math.IsInf(s.incObj, 1) {
+		return
+	}
+	s.redCostFix(s.rootObj, s.rootX, s.rootRedCst, s.glo, s.gup)
+}
+
+// redCostFix tightens integer columns of lo/up: a column at a bound with
+// reduced cost d would raise the LP objective z by |d| per unit moved, so it
+// cannot move further than (limit − z)/|d|.
+func (s *search) redCostFix(z float64, x, d []float64, lo, up []float64) int {
+	limit := s.pruneLimit()
+	if math.IsInf(limit, 1) {
+		return 0
+	}
+	gap := limit - z
+	if gap < 0 {
+		gap = 0
+	}
+	fixed := 0
+	for j, dj := range d {
+		if !s.p.isInt[j] || lo[j] == up[j] || math.Abs(dj) < 1e-9 {
+			continue
+		}
+		if dj > 0 && math.Abs(x[j]-lo[j]) <= 1e-9*math.Max(1, math.Abs(lo[j])) {
+			nu := math.Floor(lo[j] + gap/dj + boundTol)
+			if nu < up[j] {
+				up[j] = math.Max(nu, lo[j])
+				fixed++
+			}
+		} else if dj < 0 && math.Abs(x[j]-up[j]) <= 1e-9*math.Max(1, math.Abs(up[j])) {
+			nl := math.Ceil(up[j] - gap/(-dj) - boundTol)
+			if nl > lo[j] {
+				lo[j] = math.Min(nl, up[j])
+				fixed++
+			}
+		}
+	}
+	return fixed
+}
+
+// tryCandidate checks a proposed point and makes it the incumbent if it is
+// feasible and better. A point that violates rows or bounds has its integer
+// values fixed and the continuous columns re-optimised by LP. It reports
+// whether the incumbent improved.
+func (s *search) tryCandidate(x []float64) bool {
+	p := s.p
+	if len(x) != p.n {
+		return false
+	}
+	y := p.snap(x)
+	if !p.check(y, s.set.FeasTol, s.set.IntTol) {
+		var ok bool
+		y, ok = s.complete(y)
+		if !ok {
+			return false
+		}
+	}
+	obj := p.objective(y)
+	if obj >= s.incObj-1e-9*math.Max(1, math.Abs(s.incObj)) {
+		return false
+	}
+	s.incX = y
+	s.incObj = obj
+	s.prop.cutoff = s.pruneLimit() - p.constant
+	if s.queue != nil {
+		if least := s.queue.prune(s.pruneLimit()); !math.IsInf(least, 1) {
+			s.notePruned(least)
+		}
+	}
+	s.rootFixing()
+	s.progress(true)
+	return true
+}
+
+// complete fixes the integer columns of y and solves the LP over the
+// continuous ones. It returns the completed point when it is feasible.
+func (s *search) complete(y []float64) ([]float64, bool) {
+	p := s.p
+	if p.nInt == p.n {
+		return nil, false
+	}
+	if s.completion == nil {
+		c, err := lp.NewSolver(p.work, s.lpSet)
+		if err != nil {
+			return nil, false
+		}
+		s.completion = c
+	}
+	for j := 0; j < p.n; j++ {
+		if p.isInt[j] {
+			v := y[j]
+			if v < p.work.ColLower[j] || v > p.work.ColUpper[j] {
+				return nil, false
+			}
+			s.completion.SetColBounds(j, v, v)
+		}
+	}
+	set := s.lpSet
+	if !s.deadline.IsZero() {
+		set.TimeLimit = time.Until(s.deadline)
+		if set.TimeLimit <= 0 {
+			return nil, false
+		}
+	}
+	s.completion.SetSettings(set)
+	r := s.completion.Solve(s.ctx)
+	s.iters += r.Iterations
+	if r.Status != lp.Optimal {
+		return nil, false
+	}
+	z := append([]float64(nil), r.X...)
+	for j := 0; j < p.n; j++ {
+		if p.isInt[j] {
+			z[j] = y[j]
+		}
+	}
+	if !p.check(z, s.set.FeasTol, s.set.IntTol) {
+		return nil, false
+	}
+	return z, true
+}
+
+// callHeuristic asks the caller's Heuristic for candidates.
+func (s *search) callHeuristic(x []float64) {
+	if s.set.Heuristic == nil {
+		return
+	}
+	for _, c := range s.set.Heuristic(append([]float64(nil), x...)) {
+		s.tryCandidate(c)
+	}
+}
+
+// simpleRounding rounds each fractional column in a direction no row
+// objects to (no locks); then rounds to nearest. Cost O(nonzeros).
+func (s *search) simpleRounding(x []float64) {
+	p := s.p
+	y := append([]float64(nil), x...)
+	ok := true
+	for j := range y {
+		if !p.isInt[j] {
+			continue
+		}
+		v := y[j]
+		if math.Abs(v-math.Round(v)) <= s.set.IntTol {
+			y[j] = math.Round(v)
+			continue
+		}
+		switch {
+		case s.downLocks[j] == 0:
+			y[j] = math.Floor(v)
+		case s.upLocks[j] == 0:
+			y[j] = math.Ceil(v)
+		default:
+			ok = false
+			y[j] = math.Round(v)
+		}
+	}
+	if ok || p.nInt < p.n {
+		s.tryCandidate(y)
+		return
+	}
+	if p.check(y, s.set.FeasTol, s.set.IntTol) {
+		s.tryCandidate(y)
+	}
+}
+
+// loadDomain sets the current domain to the global one with the node's
+// changes applied. It returns false when the result is empty.
+func (s *search) loadDomain(nd *node) bool {
+	copy(s.lo, s.glo)
+	copy(s.up, s.gup)
+	for _, c := range nd.changes {
+		if c.lo > s.lo[c.col] {
+			s.lo[c.col] = c.lo
+		}
+		if c.up < s.up[c.col] {
+			s.up[c.col] = c.up
+		}
+		if s.lo[c.col] > s.up[c.col] {
+			return false
+		}
+	}
+	return true
+}
+
+// domainChanges lists the integer columns whose current domain differs
+// from the global one.
+func (s *search) domainChanges(extra int) []boundChange {
+	var out []boundChange
+	for j := 0; j < s.p.n; j++ {
+		if s.p.isInt[j] && (s.lo[j] != s.glo[j] || s.up[j] != s.gup[j]) {
+			out = append(out, boundChange{col: j, lo: s.lo[j], up: s.up[j]})
+		}
+	}
+	return append(make([]boundChange, 0, len(out)+extra), out...)
+}
+
+// slackBasis returns the basis with every row's slack basic and every
+// column at a finite bound.
+func (s *search) slackBasis() lp.Basis {
+	b := lp.Basis{Cols: make([]lp.VarStatus, s.p.n), Rows: make([]lp.VarStatus, s.lps.NumRows())}
+	for j := range b.Cols {
+		switch {
+		case s.lpLo[j] == s.lpUp[j]:
+			b.Cols[j] = lp.Fixed
+		case !math.IsInf(s.lpLo[j], -1):
+			b.Cols[j] = lp.AtLower
+		case !math.IsInf(s.lpUp[j], 1):
+			b.Cols[j] = lp.AtUpper
+		default:
+			b.Cols[j] = lp.AtZero
+		}
+	}
+	return b
+}
+
+// sortInts sorts in place (deterministic order helper).
+func sortInts(a []int) { sort.Ints(a) }

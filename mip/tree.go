@@ -1,0 +1,452 @@
+package mip
+
+import (
+	"math"
+	"sort"
+
+	"netstage/lp"
+)
+
+// treeSearch explores the tree from root: it plunges depth-first into the
+// preferred child while the child stays promising, and otherwise picks an
+// open node by estimate, taking the best-bound node every bestBoundEvery
+// picks so that the global bound keeps rising.
+func (s *search) treeSearch(root *node) {
+	var cur *node = root
+	warm := false // the LP holds the parent's final basis
+	picks := 0
+	for {
+		if cur == nil {
+			if s.queue.Len() == 0 {
+				return
+			}
+			picks++
+			if s.incX != nil && picks%bestBoundEvery == 0 {
+				cur = s.queue.popBest()
+			} else {
+				cur = s.queue.popEstimate()
+			}
+			warm = false
+			if cur.bound >= s.pruneLimit() {
+				s.notePruned(cur.bound)
+				cur = nil
+				continue
+			}
+		}
+		if s.limitReached() {
+			s.queue.push(cur)
+			return
+		}
+		s.curBound = cur.bound
+		kids, ok := s.processNode(cur, warm)
+		s.curBound = inf
+		if !ok {
+			// Limit inside the LP: keep the node so the bound stays honest.
+			s.queue.push(cur)
+			return
+		}
+		s.progress(false)
+		if len(kids) == 0 {
+			cur = nil
+			continue
+		}
+		// kids[0] is the preferred child.
+		next := kids[0]
+		if s.plungeOn(next) {
+			s.queue.push(kids[1])
+			cur, warm = next, true
+		} else {
+			s.queue.push(kids[0])
+			s.queue.push(kids[1])
+			cur = nil
+		}
+	}
+}
+
+// plungeOn decides whether to continue depth-first into child c.
+func (s *search) plungeOn(c *node) bool {
+	if c.depth > maxPlungeDepth {
+		return false
+	}
+	if s.incX == nil {
+		return true
+	}
+	lb := math.Min(s.queue.minBound(), c.bound)
+	lb = math.Min(lb, s.prunedMin)
+	return c.bound <= lb+plungeGapFraction*(s.incObj-lb)
+}
+
+// processNode solves a node's LP and branches. It returns the children
+// (preferred first) or none when the node is pruned or solved; ok is false
+// when a limit stopped the LP before it finished.
+func (s *search) processNode(nd *node, warm bool) (kids []*node, ok bool) {
+	p := s.p
+	if !s.loadDomain(nd) {
+		return nil, true
+	}
+	changed := make([]int, 0, len(nd.changes))
+	for _, c := range nd.changes {
+		changed = append(changed, c.col)
+	}
+	if !s.prop.propagate(s.lo, s.up, changed, nil) {
+		return nil, true
+	}
+	s.syncBounds()
+	if !warm && nd.basis != nil {
+		_ = s.lps.SetBasis(*nd.basis)
+	}
+	first := true
+	for round := 0; round < maxNodeResolves; round++ {
+		limit := s.pruneLimit()
+		r := s.lpSolve(limit, 0)
+		if first {
+			s.nodes++
+			s.nodeIters += (float64(r.Iterations) - s.nodeIters) / float64(s.nodes)
+		}
+		switch r.Status {
+		case lp.Optimal:
+		case lp.Infeasible:
+			return nil, true
+		case lp.ObjectiveCutoff:
+			s.notePruned(limit)
+			return nil, true
+		case lp.TimeLimit:
+			s.stopped = TimeLimit
+			return nil, false
+		case lp.Cancelled:
+			s.stopped = Cancelled
+			return nil, false
+		default:
+			// Retry once from the slack basis.
+			_ = s.lps.SetBasis(s.slackBasis())
+			r = s.lpSolve(limit, 0)
+			switch r.Status {
+			case lp.Optimal:
+			case lp.Infeasible:
+				return nil, true
+			case lp.ObjectiveCutoff:
+				s.notePruned(limit)
+				return nil, true
+			default:
+				return s.branchBlind(nd), true
+			}
+		}
+		if first && nd.branchVar >= 0 {
+			s.pc.update(nd.branchVar, nd.branchUp, nd.branchDist, r.Objective-nd.parentObj)
+		}
+		first = false
+		bound := math.Max(p.roundBound(r.Objective), nd.bound)
+		if bound >= s.pruneLimit() {
+			s.notePruned(bound)
+			return nil, true
+		}
+		frac := s.fractional(r.X)
+		if len(frac) == 0 {
+			if !s.tryCandidate(r.X) && p.objective(p.snap(r.X)) < s.incObj-s.gapTol() {
+				// Integral LP point the check rejects (tolerances): give the
+				// node up honestly.
+				s.lpLost = true
+				s.notePruned(bound)
+			}
+			return nil, true
+		}
+		// Reduced-cost fixing inside the subtree.
+		if s.incX != nil {
+			if s.redCostFix(r.Objective, r.X, r.ReducedCost, s.lo, s.up) > 0 {
+				s.syncBounds()
+			}
+		}
+		if !s.set.NoHeuristics {
+			s.simpleRounding(r.X)
+			if s.nodes%diveEvery == 0 {
+				s.dive(r.X)
+			}
+		}
+		if s.set.Heuristic != nil && s.nodes%s.set.HeuristicFreq == 0 {
+			s.callHeuristic(r.X)
+		}
+		if bound >= s.pruneLimit() {
+			s.notePruned(bound)
+			return nil, true
+		}
+		br := s.chooseBranch(r, frac, bound)
+		switch br.outcome {
+		case branchPrune:
+			s.notePruned(math.Max(bound, br.pruneBound))
+			return nil, true
+		case branchResolve:
+			if !s.prop.propagate(s.lo, s.up, br.fixed, nil) {
+				return nil, true
+			}
+			s.syncBounds()
+			continue
+		}
+		return s.makeChildren(nd, r, bound, br), true
+	}
+	// Too many re-solves: branch on the most fractional column.
+	r := s.lpSolve(s.pruneLimit(), 0)
+	if r.Status != lp.Optimal {
+		return s.branchBlind(nd), true
+	}
+	frac := s.fractional(r.X)
+	if len(frac) == 0 {
+		s.tryCandidate(r.X)
+		return nil, true
+	}
+	br := branchChoice{col: frac[0], downGain: math.NaN(), upGain: math.NaN()}
+	return s.makeChildren(nd, r, math.Max(p.roundBound(r.Objective), nd.bound), br), true
+}
+
+// branchBlind splits a node whose LP failed on the unfixed integer column
+// with the widest domain, keeping the parent's bound; when every integer
+// column is fixed the node is given up and its bound kept in the result.
+func (s *search) branchBlind(nd *node) []*node {
+	best, width := -1, 0.0
+	for j := 0; j < s.p.n; j++ {
+		if s.p.isInt[j] && s.up[j]-s.lo[j] > width {
+			best, width = j, s.up[j]-s.lo[j]
+		}
+	}
+	if best < 0 || math.IsInf(width, 1) {
+		s.lpLost = true
+		s.notePruned(nd.bound)
+		return nil
+	}
+	mid := math.Floor((s.lo[best] + s.up[best]) / 2)
+	base := s.domainChanges(1)
+	down := &node{id: s.nextID(), depth: nd.depth + 1, bound: nd.bound, estimate: nd.bound, branchVar: -1}
+	down.changes = append(append([]boundChange(nil), base...), boundChange{best, s.lo[best], mid})
+	up := &node{id: s.nextID(), depth: nd.depth + 1, bound: nd.bound, estimate: nd.bound, branchVar: -1}
+	up.changes = append(append([]boundChange(nil), base...), boundChange{best, mid + 1, s.up[best]})
+	return []*node{down, up}
+}
+
+type branchOutcome int8
+
+const (
+	branchOn      branchOutcome = iota // branch on col
+	branchResolve                      // columns were fixed; re-solve the node
+	branchPrune                        // both children of some column are empty
+)
+
+type branchChoice struct {
+	outcome          branchOutcome
+	col              int
+	downGain, upGain float64 // strong-branching gains (NaN when unknown)
+	fixed            []int
+	pruneBound       float64
+}
+
+// chooseBranch picks the branching column by reliability branching:
+// pseudocost product scores, with strong branching on columns whose
+// pseudocosts have too few observations.
+func (s *search) chooseBranch(r lp.Result, frac []int, bound float64) branchChoice {
+	x := r.X
+	type cand struct {
+		j     int
+		f     float64
+		score float64
+	}
+	cands := make([]cand, len(frac))
+	for k, j := range frac {
+		f := x[j] - math.Floor(x[j])
+		d, u := s.pc.get(j)
+		cands[k] = cand{j, f, score(d*f, u*(1-f))}
+	}
+	sort.SliceStable(cands, func(a, b int) bool {
+		if cands[a].score != cands[b].score {
+			return cands[a].score > cands[b].score
+		}
+		return cands[a].j < cands[b].j
+	})
+	best := branchChoice{col: cands[0].j, downGain: math.NaN(), upGain: math.NaN()}
+	bestScore := -1.0
+	if s.set.NoStrongBranching {
+		best.col = cands[0].j
+		return best
+	}
+	var state *lp.State
+	sbDone, noImprove := 0, 0
+	iterCap := int(math.Min(maxStrongIters, math.Max(minStrongIters, 2*s.nodeIters)))
+	limit := s.pruneLimit()
+	for _, c := range cands {
+		sc := c.score
+		dg, ug := math.NaN(), math.NaN()
+		if !s.pc.reliable(c.j) && sbDone < maxStrongBranch && noImprove < strongLookahead {
+			if state == nil {
+				state = s.lps.SaveState()
+			}
+			sbDone++
+			j := c.j
+			lo, up := s.lpLo[j], s.lpUp[j]
+			fl := math.Floor(x[j])
+			// down
+			s.lps.SetColBounds(j, lo, fl)
+			rd := s.lpSolve(limit, iterCap)
+			s.lps.RestoreState(state)
+			s.lps.SetColBounds(j, fl+1, up)
+			ru := s.lpSolve(limit, iterCap)
+			s.lps.RestoreState(state)
+			downDead := rd.Status == lp.Infeasible || rd.Status == lp.ObjectiveCutoff
+			upDead := ru.Status == lp.Infeasible || ru.Status == lp.ObjectiveCutoff
+			if rd.Status == lp.TimeLimit || rd.Status == lp.Cancelled || ru.Status == lp.TimeLimit || ru.Status == lp.Cancelled {
+				break
+			}
+			switch {
+			case downDead && upDead:
+				return branchChoice{outcome: branchPrune, pruneBound: limit}
+			case downDead:
+				s.lo[j] = fl + 1
+				return branchChoice{outcome: branchResolve, fixed: []int{j}}
+			case upDead:
+				s.up[j] = fl
+				return branchChoice{outcome: branchResolve, fixed: []int{j}}
+			}
+			if usable(rd) {
+				dg = math.Max(rd.Objective-r.Objective, 0)
+				s.pc.update(j, false, c.f, dg)
+			}
+			if usable(ru) {
+				ug = math.Max(ru.Objective-r.Objective, 0)
+				s.pc.update(j, true, 1-c.f, ug)
+			}
+			d, u := s.pc.get(j)
+			gd, gu := d*c.f, u*(1-c.f)
+			if !math.IsNaN(dg) {
+				gd = dg
+			}
+			if !math.IsNaN(ug) {
+				gu = ug
+			}
+			sc = score(gd, gu)
+		}
+		if sc > bestScore {
+			bestScore = sc
+			best = branchChoice{col: c.j, downGain: dg, upGain: ug}
+			noImprove = 0
+		} else {
+			noImprove++
+		}
+		if sbDone >= maxStrongBranch || noImprove >= strongLookahead {
+			// remaining candidates: pseudocost scores only, already sorted
+			break
+		}
+	}
+	if state != nil {
+		// Bounds were restored; the LP's iterate is the node's again once
+		// re-solved (the next solve is warm).
+		s.lps.RestoreState(state)
+	}
+	return best
+}
+
+// usable reports whether a limited LP solve gives an objective worth using
+// as a branching estimate.
+func usable(r lp.Result) bool {
+	return (r.Status == lp.Optimal || r.Status == lp.IterationLimit) && !math.IsNaN(r.Objective) && !math.IsInf(r.Objective, 0)
+}
+
+// makeChildren creates the two children of a node branching on br.col, the
+// preferred one first.
+func (s *search) makeChildren(nd *node, r lp.Result, bound float64, br branchChoice) []*node {
+	j := br.col
+	x := r.X[j]
+	f := x - math.Floor(x)
+	pd, pu := s.pc.get(j)
+	gd, gu := pd*f, pu*(1-f)
+	if !math.IsNaN(br.downGain) {
+		gd = br.downGain
+	}
+	if !math.IsNaN(br.upGain) {
+		gu = br.upGain
+	}
+	// Estimate: bound plus the cheaper rounding of every fractional column.
+	est := bound
+	for _, k := range s.fractional(r.X) {
+		fk := r.X[k] - math.Floor(r.X[k])
+		d, u := s.pc.get(k)
+		est += math.Min(d*fk, u*(1-fk))
+	}
+	est -= math.Min(gd, gu)
+	base := s.domainChanges(1)
+	b := s.lps.Basis()
+	down := &node{id: s.nextID(), depth: nd.depth + 1, basis: &b, branchVar: j, branchUp: false,
+		branchDist: f, parentObj: r.Objective}
+	down.changes = append(append([]boundChange(nil), base...), boundChange{j, s.lo[j], math.Floor(x)})
+	down.bound = bound
+	if br.outcome == branchOn && !math.IsNaN(br.downGain) && false {
+		down.bound = s.p.roundBound(r.Objective + br.downGain)
+	}
+	down.estimate = est + gd
+	up := &node{id: s.nextID(), depth: nd.depth + 1, basis: &b, branchVar: j, branchUp: true,
+		branchDist: 1 - f, parentObj: r.Objective}
+	up.changes = append(base, boundChange{j, math.Ceil(x), s.up[j]})
+	up.bound = bound
+	up.estimate = est + gu
+	if gu < gd || (gu == gd && f >= 0.5) {
+		return []*node{up, down}
+	}
+	return []*node{down, up}
+}
+
+// dive is a fractional diving heuristic: it repeatedly rounds the least
+// fractional column to its nearest integer, propagates and re-solves the
+// LP, until the LP point is integral, infeasible or no longer promising.
+func (s *search) dive(x0 []float64) {
+	p := s.p
+	state := s.lps.SaveState()
+	saveLo := append([]float64(nil), s.lo...)
+	saveUp := append([]float64(nil), s.up...)
+	saveLpLo := append([]float64(nil), s.lpLo...)
+	saveLpUp := append([]float64(nil), s.lpUp...)
+	defer func() {
+		s.lps.RestoreState(state)
+		copy(s.lo, saveLo)
+		copy(s.up, saveUp)
+		copy(s.lpLo, saveLpLo)
+		copy(s.lpUp, saveLpUp)
+	}()
+	x := x0
+	iterCap := int(math.Max(100, diveIterFactor*s.nodeIters))
+	for depth := 0; depth < maxDiveDepth; depth++ {
+		if s.limitReached() {
+			return
+		}
+		frac := s.fractional(x)
+		if len(frac) == 0 {
+			s.tryCandidate(x)
+			return
+		}
+		s.simpleRounding(x)
+		best, bestDist := -1, 2.0
+		for _, j := range frac {
+			f := x[j] - math.Floor(x[j])
+			d := math.Min(f, 1-f)
+			// prefer columns that rounding in that direction cannot hurt
+			if (f < 0.5 && s.downLocks[j] == 0) || (f >= 0.5 && s.upLocks[j] == 0) {
+				d -= 1
+			}
+			if d < bestDist {
+				best, bestDist = j, d
+			}
+		}
+		j := best
+		if x[j]-math.Floor(x[j]) < 0.5 {
+			s.up[j] = math.Floor(x[j])
+		} else {
+			s.lo[j] = math.Ceil(x[j])
+		}
+		if !s.prop.propagate(s.lo, s.up, []int{j}, nil) {
+			return
+		}
+		s.syncBounds()
+		r := s.lpSolve(s.pruneLimit(), iterCap)
+		if r.Status != lp.Optimal {
+			return
+		}
+		if p.roundBound(r.Objective) >= s.pruneLimit() {
+			return
+		}
+		x = r.X
+	}
+}
