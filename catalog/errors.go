@@ -125,10 +125,9 @@ type Warning struct {
 	Msg  string
 }
 
-// String formats w like an Error, prefixed with "warning: ".
+// String formats w like an Error: "file:line:col: key: message".
 func (w Warning) String() string {
 	var b strings.Builder
-	b.WriteString("warning: ")
 	if w.File != "" {
 		b.WriteString(w.File)
 		if w.Line > 0 {
