@@ -83,6 +83,12 @@ type Result struct {
 	Infeasibility []InfeasibilityRow `json:"infeasibility"`
 	Warnings      []string           `json:"warnings"`
 	Stats         SolverStats        `json:"solver"`
+
+	// Kept for checks: the model, the final point (integer decisions
+	// fixed, routing chosen) and the MIP's own objective value.
+	model        *Model
+	x            []float64
+	mipObjective float64
 }
 
 // Kinds of PlanRow.

@@ -1,0 +1,323 @@
+package plans
+
+import (
+	"context"
+	"errors"
+	"fmt"
+	"math"
+	"time"
+
+	"netstage/lp"
+	"netstage/mip"
+)
+
+// Tolerances of the solve pipeline.
+const (
+	// holdObjectiveTol is how far (relative to max(|optimum|, 1)) a
+	// follow-up LP may let the previous objective slip when it picks, among
+	// equally good solutions, the one with the fewest Gbps·km.
+	holdObjectiveTol = 1e-9
+	// valueTol: flows, served traffic and shortfalls below this many Gbps
+	// are reported as zero.
+	valueTol = 1e-6
+	// shadowTol: shadow values smaller than this (case currency per Gbps)
+	// are reported as nil (the link does not bind).
+	shadowTol = 1e-6
+	// explainTimeShare is the part of the time limit (or explainTimeLimit
+	// without one) the elastic model may use to explain infeasibility.
+	explainTimeLimit = 30 * time.Second
+)
+
+// mipSolve is the branch-and-bound used by Solve (a variable so that tests
+// can compare it with brute-force enumeration on tiny cases).
+var mipSolve = mip.Solve
+
+// Export returns the exact model Solve solves for c with these options (a
+// minimisation of −NPV in case currency, integer columns with explicit
+// bounds, cut-set rows included), for writing as MPS.
+func Export(c *Case, opts BuildOptions) (*lp.Model, error) {
+	m, err := BuildModel(c, opts)
+	if err != nil {
+		return nil, err
+	}
+	return m.LP, nil
+}
+
+// Solve builds the planning MIP of c, solves it with package mip, and
+// decodes the best plan found into a Result with its NPV breakdown, the
+// do-nothing baseline and the incremental figures. Limits, infeasibility
+// and unboundedness are statuses of the Result; errors are failures only.
+//
+// Pipeline: MIP (with the rounding heuristic and cut-sets unless turned
+// off) → LP with the integer decisions fixed (capacity duals give the value
+// of one more Gbps) → LP holding that NPV and minimising Gbps·km (a unique
+// routing) → cash flows recomputed from the decisions alone. An infeasible
+// case is explained by an elastic model (explain.go).
+func Solve(ctx context.Context, c *Case, opts SolveOptions) (*Result, error) {
+	start := time.Now()
+	m, err := BuildModel(c, BuildOptions{NoCutSets: opts.NoCutSets})
+	if err != nil {
+		return nil, err
+	}
+	res := &Result{
+		Case:     c.Name,
+		Currency: c.Currency,
+		CostMode: c.CostMode(),
+		Stats: SolverStats{
+			Rows:     m.LP.NumRows(),
+			Columns:  m.LP.NumCols(),
+			Integers: countTrue(m.LP.Integer),
+		},
+	}
+	set := mip.Settings{TimeLimit: opts.TimeLimit, RelGap: opts.Gap}
+	if opts.Progress != nil {
+		set.Progress = func(p mip.Progress) {
+			opts.Progress(Progress{
+				Objective: -p.Incumbent, Bound: -p.Bound, Gap: p.Gap,
+				HasIncumbent: p.HasIncumbent, Nodes: p.Nodes, Elapsed: p.Elapsed,
+			})
+		}
+	}
+	if !opts.NoHeuristic {
+		set.Heuristic = m.roundUpHeuristic
+	}
+	mr, err := mipSolve(ctx, m.LP, set)
+	if err != nil {
+		return nil, fmt.Errorf("plans: %w", err)
+	}
+	res.Stats.Nodes, res.Stats.Iterations = mr.Nodes, mr.LPIterations
+	res.mipObjective = mr.Objective
+
+	base, err := solveBaseline(ctx, c)
+	if err != nil {
+		return nil, err
+	}
+	if base != nil {
+		res.BaselineCashflow = base.cashflow
+		res.Shortfall = base.shortfall
+		npv := sumPV(base.cashflow)
+		res.BaselineNPV = &npv
+	}
+
+	switch mr.Status {
+	case mip.Optimal:
+		res.Status = StatusOptimal
+	case mip.Feasible:
+		res.Status = StatusFeasible
+	case mip.Infeasible:
+		res.Status = StatusInfeasible
+		limit := explainTimeLimit
+		if opts.TimeLimit > 0 {
+			limit = min(limit, opts.TimeLimit)
+		}
+		res.Infeasibility, err = explainInfeasible(ctx, c, limit)
+		if err != nil {
+			return nil, err
+		}
+		res.Stats.Seconds = time.Since(start).Seconds()
+		return res, nil
+	case mip.Unbounded:
+		res.Status = StatusUnbounded
+		res.Stats.Seconds = time.Since(start).Seconds()
+		return res, nil
+	default:
+		res.Status = StatusLimit
+		res.Stats.Seconds = time.Since(start).Seconds()
+		return res, nil
+	}
+
+	res.model = m
+	if err := m.decode(ctx, res, mr.X, base); err != nil {
+		return nil, err
+	}
+	bound := -mr.Bound
+	if res.Status == StatusOptimal && bound < *res.Objective {
+		bound = *res.Objective // the fixed LP may add a rounding-size gain
+	}
+	res.Bound = &bound
+	gap := math.Abs(bound-*res.Objective) / math.Max(math.Abs(*res.Objective), 1)
+	res.Gap = &gap
+	res.Stats.Seconds = time.Since(start).Seconds()
+	return res, nil
+}
+
+func countTrue(b []bool) int {
+	n := 0
+	for _, v := range b {
+		if v {
+			n++
+		}
+	}
+	return n
+}
+
+func sumPV(rows []CashflowRow) float64 {
+	s := 0.0
+	for _, r := range rows {
+		s += r.PV
+	}
+	return s
+}
+
+// lexResult is the outcome of a lexicographic LP: the point of the last
+// stage and the row duals of the first.
+type lexResult struct {
+	x         []float64
+	firstDual []float64
+	firstObj  float64
+}
+
+// solveLex solves model with its own objective, then, for each further
+// objective in turn, holds the previous optimum (within holdObjectiveTol)
+// and optimises the next one. It returns nil with no error when the first
+// LP is not optimal (infeasible or limit).
+func solveLex(ctx context.Context, model *lp.Model, next ...[]float64) (*lexResult, error) {
+	sv, err := lp.NewSolver(model, lp.Settings{})
+	if err != nil {
+		return nil, fmt.Errorf("plans: %w", err)
+	}
+	r := sv.Solve(ctx)
+	if r.Status != lp.Optimal {
+		return nil, nil
+	}
+	out := &lexResult{x: r.X, firstDual: r.Dual, firstObj: r.Objective}
+	cur := append([]float64(nil), model.Obj...)
+	curObj := r.Objective
+	for _, obj := range next {
+		row := lp.Row{Name: "hold"}
+		for j, v := range cur {
+			if v != 0 {
+				row.Index = append(row.Index, j)
+				row.Value = append(row.Value, v)
+			}
+		}
+		row.Lower = -lp.Inf
+		row.Upper = curObj - model.Constant + holdObjectiveTol*math.Max(math.Abs(curObj), 1)
+		sv.AddRows([]lp.Row{row})
+		sv.SetObjective(obj)
+		r = sv.Solve(ctx)
+		if r.Status != lp.Optimal {
+			// Keep the previous stage's point: it is optimal for what
+			// matters; only the tie-break failed.
+			break
+		}
+		out.x = r.X
+		cur, curObj = append([]float64(nil), obj...), r.Objective
+	}
+	return out, nil
+}
+
+// kmObjective returns the objective Σ km·flow over all flow columns.
+func (m *Model) kmObjective() []float64 {
+	obj := make([]float64, m.LP.NumCols())
+	for si := range m.flow {
+		for a, ys := range m.flow[si] {
+			km := m.Case.Links[a/2].KM
+			for _, j := range ys {
+				if j >= 0 {
+					obj[j] = math.Max(km, 0)
+				}
+			}
+		}
+	}
+	return obj
+}
+
+// fixIntegers returns a copy of m.LP with every integer column fixed at
+// the rounded value in x.
+func (m *Model) fixIntegers(x []float64) *lp.Model {
+	fixed := m.LP.Clone()
+	for j, isInt := range fixed.Integer {
+		if isInt {
+			v := math.Round(x[j])
+			v = math.Max(fixed.ColLower[j], math.Min(fixed.ColUpper[j], v))
+			fixed.ColLower[j], fixed.ColUpper[j] = v, v
+			fixed.Integer[j] = false
+		}
+	}
+	return fixed
+}
+
+// baselineSolution is the do-nothing plan.
+type baselineSolution struct {
+	m         *Model
+	x         []float64
+	cashflow  []CashflowRow
+	shortfall []ShortfallRow
+}
+
+// solveBaseline solves the do-nothing LP in three stages: best NPV (revenue
+// less SLA penalty), then the least committed shortfall at that NPV, then
+// the fewest Gbps·km, so that what is reported is unique.
+func solveBaseline(ctx context.Context, c *Case) (*baselineSolution, error) {
+	m, err := BuildModel(c, BuildOptions{baseline: true})
+	if err != nil {
+		return nil, err
+	}
+	short := make([]float64, m.LP.NumCols())
+	for _, ks := range m.shortfall {
+		for _, j := range ks {
+			if j >= 0 {
+				short[j] = 1
+			}
+		}
+	}
+	lr, err := solveLex(ctx, m.LP, short, m.kmObjective())
+	if err != nil || lr == nil {
+		return nil, err
+	}
+	b := &baselineSolution{m: m, x: lr.x}
+	served := m.servedValues(lr.x)
+	b.cashflow = cashflowOf(c, nil, served, nil)
+	// Shortfall and its penalty, from served traffic alone.
+	costMode := c.CostMode()
+	for k, d := range c.Demands {
+		for t := 0; t < c.Horizon; t++ {
+			need := d.Committed[t]
+			if costMode {
+				need = d.Forecast[t]
+			}
+			gap := need - served[k][t]
+			if gap <= valueTol {
+				continue
+			}
+			row := ShortfallRow{
+				Demand: d.ID, From: c.Sites[d.A].ID, To: c.Sites[d.B].ID, Year: c.Year(t),
+				Committed: need, Carried: served[k][t], Shortfall: gap,
+				Penalty:       12 * c.SLAPenalty * gap,
+				RevenueAtRisk: 12 * d.Tariff[t] * gap,
+			}
+			b.shortfall = append(b.shortfall, row)
+		}
+	}
+	b.cashflow = cashflowOf(c, nil, served, b.shortfall)
+	return b, nil
+}
+
+// servedValues returns served[k][t] from a solution (values below valueTol
+// above the lower bound snapped to it).
+func (m *Model) servedValues(x []float64) [][]float64 {
+	out := make([][]float64, len(m.served))
+	for k, cols := range m.served {
+		out[k] = make([]float64, len(cols))
+		for t, j := range cols {
+			out[k][t] = snap(x[j], m.LP.ColLower[j], m.LP.ColUpper[j])
+		}
+	}
+	return out
+}
+
+// snap clamps v into [lo, hi] and moves it onto a bound within valueTol.
+func snap(v, lo, hi float64) float64 {
+	switch {
+	case v <= lo+valueTol:
+		return lo
+	case v >= hi-valueTol:
+		return hi
+	}
+	return v
+}
+
+// errNoFixedLP reports that the LP with the MIP's integer decisions fixed
+// could not be solved, which should not happen for a point mip accepted.
+var errNoFixedLP = errors.New("plans: the routing LP with the plan's decisions fixed has no optimum")
