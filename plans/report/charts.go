@@ -1,0 +1,608 @@
+package report
+
+import (
+	"bytes"
+	"fmt"
+	"image/color"
+	"math"
+	"regexp"
+	"strconv"
+	"strings"
+
+	xfont "golang.org/x/image/font"
+	"gonum.org/v1/plot"
+	"gonum.org/v1/plot/font"
+	"gonum.org/v1/plot/plotter"
+	"gonum.org/v1/plot/text"
+	"gonum.org/v1/plot/vg"
+	"gonum.org/v1/plot/vg/draw"
+	"gonum.org/v1/plot/vg/vgsvg"
+
+	"netstage/plans"
+)
+
+// The report's own palette. Utilisation uses one blue hue from light to
+// dark (readable in grey print and by readers with any common colour-vision
+// deficiency), and a burnt orange, far from every blue in lightness and
+// hue, marks links at their ceiling. Upgrades are marked by a shape as well
+// as a colour.
+var (
+	inkColor     = color.RGBA{0x22, 0x26, 0x2e, 0xff} // text and axes
+	gridColor    = color.RGBA{0xd8, 0xdc, 0xe2, 0xff}
+	capexColor   = color.RGBA{0x2f, 0x5a, 0x8c, 0xff}
+	budgetColor  = color.RGBA{0x22, 0x26, 0x2e, 0xff}
+	gainColor    = color.RGBA{0x2f, 0x5a, 0x8c, 0xff}
+	lossColor    = color.RGBA{0xb8, 0x5a, 0x1e, 0xff}
+	cumColor     = color.RGBA{0x22, 0x26, 0x2e, 0xff}
+	baseColor    = color.RGBA{0x8a, 0x90, 0x99, 0xff}
+	ceilingColor = color.RGBA{0xc4, 0x54, 0x1b, 0xff}
+	noCapColor   = color.RGBA{0xf2, 0xf2, 0xf2, 0xff}
+	siteColor    = color.RGBA{0x22, 0x26, 0x2e, 0xff}
+	// utilRamp holds the colours of the utilisation bins, light to dark.
+	utilRamp = []color.RGBA{
+		{0xe3, 0xeb, 0xf5, 0xff},
+		{0xb4, 0xc9, 0xe2, 0xff},
+		{0x7d, 0xa1, 0xca, 0xff},
+		{0x45, 0x6f, 0xa8, 0xff},
+		{0x1f, 0x3d, 0x6e, 0xff},
+	}
+	// utilBins are the upper ends of the ramp's bins (fractions); the last
+	// bin runs up to the ceiling.
+	utilBins = []float64{0.2, 0.4, 0.6, 0.8}
+)
+
+// chartFont is the typeface of every chart: sans serif reads better at
+// small sizes. Liberation Sans has the metrics of Arial and Helvetica, which
+// the HTML names as fallbacks, so that layout holds on machines without it.
+var chartFont = font.Font{Typeface: "Liberation", Variant: "Sans"}
+
+// Chart sizes: the width fits the printable width of A4 and Letter with
+// 15 mm margins.
+const (
+	chartWidth  = 17 * vg.Centimeter
+	chartHeight = 8.5 * vg.Centimeter
+)
+
+// utilBin returns the ramp index of utilisation u, or −1 at the ceiling.
+func utilBin(u, ceiling float64) int {
+	if atCeiling(u, ceiling) {
+		return -1
+	}
+	for i, top := range utilBins {
+		if u < top {
+			return i
+		}
+	}
+	return len(utilRamp) - 1
+}
+
+func utilColor(u, ceiling float64) color.Color {
+	if b := utilBin(u, ceiling); b >= 0 {
+		return utilRamp[b]
+	}
+	return ceilingColor
+}
+
+// utilBinLabel names bin i for legends.
+func utilBinLabel(i int) string {
+	lo := 0.0
+	if i > 0 {
+		lo = utilBins[i-1]
+	}
+	if i >= len(utilBins) {
+		return fmt.Sprintf("%.0f%% up to the ceiling", 100*lo)
+	}
+	return fmt.Sprintf("%.0f–%.0f%%", 100*lo, 100*utilBins[i])
+}
+
+// darkBackground reports whether text on c should be white.
+func darkBackground(c color.Color) bool {
+	r, g, b, _ := c.RGBA()
+	// relative luminance, ITU-R BT.709 weights
+	l := (0.2126*float64(r) + 0.7152*float64(g) + 0.0722*float64(b)) / 0xffff
+	return l < 0.45
+}
+
+// moneyScale picks the unit in which a chart shows money so that tick
+// labels stay short.
+func moneyScale(maxAbs float64, currency string) (float64, string) {
+	switch {
+	case maxAbs >= 1e9:
+		return 1e9, currency + " billion"
+	case maxAbs >= 1e6:
+		return 1e6, currency + " million"
+	case maxAbs >= 1e4:
+		return 1e3, currency + " thousand"
+	}
+	return 1, currency
+}
+
+// newPlot returns a plot with the report's fonts and colours.
+func newPlot(title, xLabel, yLabel string) *plot.Plot {
+	p := plot.New()
+	p.Title.Text = title
+	p.Title.TextStyle.Font = font.From(chartFont, 12)
+	p.Title.TextStyle.Color = inkColor
+	for _, a := range []*plot.Axis{&p.X, &p.Y} {
+		a.Label.TextStyle.Font = font.From(chartFont, 10)
+		a.Label.TextStyle.Color = inkColor
+		a.Tick.Label.Font = font.From(chartFont, 9)
+		a.Tick.Label.Color = inkColor
+		a.Color = inkColor
+		a.Tick.Color = inkColor
+	}
+	p.X.Label.Text = xLabel
+	p.Y.Label.Text = yLabel
+	p.Legend.TextStyle.Font = font.From(chartFont, 9)
+	p.Legend.TextStyle.Color = inkColor
+	return p
+}
+
+// yearTicks labels every year (every second one on long horizons).
+type yearTicks struct{ first, last int }
+
+func (t yearTicks) Ticks(min, max float64) []plot.Tick {
+	step := 1
+	if t.last-t.first >= 12 {
+		step = 2
+	}
+	var ticks []plot.Tick
+	for y := t.first; y <= t.last; y++ {
+		label := ""
+		if (y-t.first)%step == 0 {
+			label = strconv.Itoa(y)
+		}
+		ticks = append(ticks, plot.Tick{Value: float64(y), Label: label})
+	}
+	return ticks
+}
+
+// numberTicks is gonum's default tick placement with labels that use
+// thousands separators and the minus sign.
+type numberTicks struct{}
+
+func (numberTicks) Ticks(min, max float64) []plot.Tick {
+	ticks := plot.DefaultTicks{}.Ticks(min, max)
+	for i := range ticks {
+		if ticks[i].Label == "" {
+			continue
+		}
+		v := ticks[i].Value
+		dec := 0
+		if s := ticks[i].Label; strings.Contains(s, ".") {
+			dec = len(s) - strings.Index(s, ".") - 1
+		}
+		if dec > 3 || strings.ContainsAny(ticks[i].Label, "e") {
+			dec = 3
+		}
+		ticks[i].Label = formatFixed(v, dec)
+	}
+	return ticks
+}
+
+// svgOf draws p (or a grid of plots) to an inline SVG element.
+func svgOf(w, h vg.Length, draw func(dc draw.Canvas)) (string, error) {
+	c := vgsvg.NewWith(vgsvg.UseWH(w, h), vgsvg.EmbedFonts(false))
+	draw(drawCanvas(c))
+	var buf bytes.Buffer
+	if _, err := c.WriteTo(&buf); err != nil {
+		return "", fmt.Errorf("report: writing svg: %w", err)
+	}
+	return inlineSVG(buf.String()), nil
+}
+
+func drawCanvas(c vg.CanvasSizer) draw.Canvas { return draw.New(c) }
+
+var (
+	xmlHeader  = regexp.MustCompile(`(?s)^<\?xml[^>]*\?>\s*(<!--.*?-->\s*)?`)
+	svgSize    = regexp.MustCompile(`<svg width="[^"]*" height="[^"]*"`)
+	fontFamily = regexp.MustCompile(`font-family:Liberation Sans;`)
+)
+
+// inlineSVG turns a standalone SVG document into an element for an HTML
+// page: no XML prolog, a size that follows the page width, and a font list
+// with metric-compatible fallbacks (the report embeds no fonts).
+func inlineSVG(s string) string {
+	s = xmlHeader.ReplaceAllString(s, "")
+	s = svgSize.ReplaceAllString(s, `<svg class="chart" role="img"`)
+	s = fontFamily.ReplaceAllString(s, `font-family:'Liberation Sans',Arial,Helvetica,sans-serif;`)
+	return strings.TrimSpace(s)
+}
+
+// capexChart draws capex by order year against the yearly budget.
+func capexChart(c *plans.Case, r *plans.Result) (chart, error) {
+	maxAbs := 0.0
+	for _, cf := range r.Cashflow {
+		maxAbs = math.Max(maxAbs, cf.Capex)
+		if cf.Budget != nil {
+			maxAbs = math.Max(maxAbs, *cf.Budget)
+		}
+	}
+	scale, unit := moneyScale(maxAbs, r.Currency)
+	p := newPlot("", "Order year", "Capex ("+unit+")")
+	first, last := c.FirstYear, c.FirstYear+c.Horizon-1
+	p.X.Tick.Marker = yearTicks{first, last}
+	p.Y.Tick.Marker = numberTicks{}
+	p.X.Min, p.X.Max = float64(first)-0.7, float64(last)+0.7
+	p.Add(hGrid())
+
+	bars := make(plotter.XYs, 0, len(r.Cashflow))
+	var budget plotter.XYs
+	capped := false
+	for _, cf := range r.Cashflow {
+		bars = append(bars, plotter.XY{X: float64(cf.Year), Y: cf.Capex / scale})
+		if cf.Budget != nil {
+			capped = true
+			budget = append(budget, plotter.XY{X: float64(cf.Year), Y: *cf.Budget / scale})
+		}
+	}
+	b := &barPlot{XYs: bars, Width: 0.6, Fill: capexColor}
+	p.Add(b)
+	p.Legend.Add("capex in the order year", b)
+	if capped {
+		seg := &budgetSteps{XYs: budget, Line: draw.LineStyle{Color: budgetColor, Width: vg.Points(1.6), Dashes: []vg.Length{vg.Points(5), vg.Points(3)}}}
+		p.Add(seg)
+		p.Legend.Add("yearly budget cap", seg)
+	}
+	p.Legend.Top = true
+	p.Legend.Left = true
+	p.Y.Min = 0
+	p.Y.Max = maxAbs / scale * 1.25
+	if p.Y.Max == 0 {
+		p.Y.Max = 1
+	}
+	s, err := svgOf(chartWidth, chartHeight, func(dc draw.Canvas) { p.Draw(dc) })
+	caption := "Capex paid in each order year (after volume discounts), with the yearly budget cap as a dashed step line."
+	if !capped {
+		caption = "Capex paid in each order year (after volume discounts). The case sets no yearly budget cap."
+	}
+	return chart{ID: "chart-capex", Title: "Capex by year against the budget", Caption: caption, SVG: s}, err
+}
+
+// hGrid returns light horizontal grid lines only.
+func hGrid() *plotter.Grid {
+	g := plotter.NewGrid()
+	g.Vertical.Color = nil
+	g.Horizontal.Color = gridColor
+	g.Horizontal.Width = vg.Points(0.6)
+	return g
+}
+
+// barPlot draws one bar per point at its x, from zero to y.
+type barPlot struct {
+	XYs   plotter.XYs
+	Width float64 // in x units
+	Fill  color.Color
+	// NegFill, when set, colours bars below zero.
+	NegFill color.Color
+}
+
+func (b *barPlot) Plot(c draw.Canvas, p *plot.Plot) {
+	trX, trY := p.Transforms(&c)
+	for _, pt := range b.XYs {
+		if pt.Y == 0 {
+			continue
+		}
+		x0, x1 := trX(pt.X-b.Width/2), trX(pt.X+b.Width/2)
+		y0, y1 := trY(0), trY(pt.Y)
+		fill := b.Fill
+		if pt.Y < 0 && b.NegFill != nil {
+			fill = b.NegFill
+		}
+		poly := c.ClipPolygonY([]vg.Point{{X: x0, Y: y0}, {X: x1, Y: y0}, {X: x1, Y: y1}, {X: x0, Y: y1}})
+		c.FillPolygon(fill, poly)
+	}
+}
+
+func (b *barPlot) DataRange() (xmin, xmax, ymin, ymax float64) {
+	xmin, xmax, ymin, ymax = math.Inf(1), math.Inf(-1), 0, 0
+	for _, pt := range b.XYs {
+		xmin = math.Min(xmin, pt.X-b.Width/2)
+		xmax = math.Max(xmax, pt.X+b.Width/2)
+		ymin = math.Min(ymin, pt.Y)
+		ymax = math.Max(ymax, pt.Y)
+	}
+	return
+}
+
+func (b *barPlot) Thumbnail(c *draw.Canvas) {
+	r := c.Rectangle
+	c.FillPolygon(b.Fill, []vg.Point{r.Min, {X: r.Max.X, Y: r.Min.Y}, r.Max, {X: r.Min.X, Y: r.Max.Y}})
+}
+
+// budgetSteps draws each year's cap as a horizontal segment over the
+// year's bar slot, joined into steps where consecutive years are capped.
+type budgetSteps struct {
+	XYs  plotter.XYs
+	Line draw.LineStyle
+}
+
+func (s *budgetSteps) Plot(c draw.Canvas, p *plot.Plot) {
+	trX, trY := p.Transforms(&c)
+	var line []vg.Point
+	flush := func() {
+		if len(line) > 1 {
+			c.StrokeLines(s.Line, c.ClipLinesXY(line)...)
+		}
+		line = nil
+	}
+	for i, pt := range s.XYs {
+		if i > 0 && s.XYs[i-1].X != pt.X-1 {
+			flush()
+		}
+		line = append(line, vg.Point{X: trX(pt.X - 0.5), Y: trY(pt.Y)}, vg.Point{X: trX(pt.X + 0.5), Y: trY(pt.Y)})
+	}
+	flush()
+}
+
+func (s *budgetSteps) DataRange() (xmin, xmax, ymin, ymax float64) {
+	return plotter.XYRange(s.XYs)
+}
+
+func (s *budgetSteps) Thumbnail(c *draw.Canvas) {
+	y := (c.Min.Y + c.Max.Y) / 2
+	c.StrokeLine2(s.Line, c.Min.X, y, c.Max.X, y)
+}
+
+// cashChart draws the yearly net cash flow as bars with the cumulative
+// discounted cash flow of the plan and of doing nothing as lines.
+func cashChart(c *plans.Case, r *plans.Result) (chart, error) {
+	maxAbs := 0.0
+	for _, cf := range r.Cashflow {
+		maxAbs = math.Max(maxAbs, math.Max(math.Abs(cf.Net), math.Abs(cf.CumulativePV)))
+	}
+	for _, cf := range r.BaselineCashflow {
+		maxAbs = math.Max(maxAbs, math.Abs(cf.CumulativePV))
+	}
+	scale, unit := moneyScale(maxAbs, r.Currency)
+	p := newPlot("", "Year", "Cash ("+unit+")")
+	first, last := c.FirstYear, c.FirstYear+c.Horizon-1
+	p.X.Tick.Marker = yearTicks{first, last}
+	p.Y.Tick.Marker = numberTicks{}
+	p.X.Min, p.X.Max = float64(first)-0.7, float64(last)+0.7
+	p.Add(hGrid())
+	var net, cum, base plotter.XYs
+	for _, cf := range r.Cashflow {
+		net = append(net, plotter.XY{X: float64(cf.Year), Y: cf.Net / scale})
+		cum = append(cum, plotter.XY{X: float64(cf.Year), Y: cf.CumulativePV / scale})
+	}
+	for _, cf := range r.BaselineCashflow {
+		base = append(base, plotter.XY{X: float64(cf.Year), Y: cf.CumulativePV / scale})
+	}
+	zero, _ := plotter.NewLine(plotter.XYs{{X: float64(first) - 0.7, Y: 0}, {X: float64(last) + 0.7, Y: 0}})
+	zero.Color = inkColor
+	zero.Width = vg.Points(0.8)
+	bars := &barPlot{XYs: net, Width: 0.6, Fill: gainColor, NegFill: lossColor}
+	p.Add(bars, zero)
+	p.Legend.Add("net cash flow of the year (plan)", bars)
+	if neg := hasNegative(net); neg {
+		p.Legend.Add("net cash flow below zero", &barPlot{Fill: lossColor})
+	}
+	if len(base) > 0 {
+		l, s, err := plotter.NewLinePoints(base)
+		if err != nil {
+			return chart{}, fmt.Errorf("report: baseline line: %w", err)
+		}
+		l.Color, l.Width, l.Dashes = baseColor, vg.Points(1.5), []vg.Length{vg.Points(4), vg.Points(3)}
+		s.Shape, s.Color, s.Radius = draw.TriangleGlyph{}, baseColor, vg.Points(3)
+		p.Add(l, s)
+		p.Legend.Add("cumulative discounted cash flow, doing nothing", l, s)
+	}
+	l, s, err := plotter.NewLinePoints(cum)
+	if err != nil {
+		return chart{}, fmt.Errorf("report: cumulative line: %w", err)
+	}
+	l.Color, l.Width = cumColor, vg.Points(1.8)
+	s.Shape, s.Color, s.Radius = draw.CircleGlyph{}, cumColor, vg.Points(3)
+	p.Add(l, s)
+	p.Legend.Add("cumulative discounted cash flow, plan", l, s)
+	p.Legend.Top, p.Legend.Left = true, true
+	ymin, ymax := 0.0, 0.0
+	for _, set := range []plotter.XYs{net, cum, base} {
+		for _, pt := range set {
+			ymin, ymax = math.Min(ymin, pt.Y), math.Max(ymax, pt.Y)
+		}
+	}
+	span := ymax - ymin
+	if span == 0 {
+		span = 1
+	}
+	p.Y.Min, p.Y.Max = ymin-0.05*span, ymax+0.45*span // room for the legend
+	svg, err := svgOf(chartWidth, chartHeight, func(dc draw.Canvas) { p.Draw(dc) })
+	return chart{
+		ID:    "chart-cash",
+		Title: "Net cash flow and cumulative discounted cash flow",
+		Caption: "Bars: the plan's net cash flow of each year (revenue − opex − capex − tax, plus salvage in the last year). " +
+			"Lines: the running sum of the discounted cash flow, for the plan and for doing nothing; where the plan's line ends is its NPV.",
+		SVG: svg,
+	}, err
+}
+
+func hasNegative(xy plotter.XYs) bool {
+	for _, p := range xy {
+		if p.Y < 0 {
+			return true
+		}
+	}
+	return false
+}
+
+// utilChart draws the link × year grid of peak utilisation, before the plan
+// (top) and after it (bottom).
+func utilChart(c *plans.Case, r *plans.Result) (chart, error) {
+	var links []string
+	index := map[string]int{}
+	for _, ly := range r.Links {
+		if _, ok := index[ly.Link]; !ok {
+			index[ly.Link] = len(links)
+			links = append(links, ly.Link)
+		}
+	}
+	first, last := c.FirstYear, c.FirstYear+c.Horizon-1
+	mk := func(title string, after bool) *plot.Plot {
+		p := newPlot(title, "Year", "Link")
+		p.Title.TextStyle.Font = font.From(chartFont, 11)
+		p.X.Tick.Marker = yearTicks{first, last}
+		var ticks []plot.Tick
+		for i, l := range links {
+			ticks = append(ticks, plot.Tick{Value: float64(len(links) - 1 - i), Label: l})
+		}
+		p.Y.Tick.Marker = plot.ConstantTicks(ticks)
+		p.Y.Tick.Length = 0
+		p.X.Tick.Length = 0
+		p.Y.Padding, p.X.Padding = 0, 0
+		p.X.Min, p.X.Max = float64(first)-0.5, float64(last)+0.5
+		p.Y.Min, p.Y.Max = -0.5, float64(len(links))-0.5
+		p.Add(&utilGridPlot{r: r, index: index, n: len(links), after: after})
+		return p
+	}
+	before := mk("Before the plan (doing nothing)", false)
+	after := mk("After the plan", true)
+	rowH := 0.62 * vg.Centimeter
+	panelH := vg.Length(len(links))*rowH + 2.2*vg.Centimeter
+	legendH := 2.6 * vg.Centimeter
+	h := 2*panelH + legendH
+	svg, err := svgOf(chartWidth, h, func(dc draw.Canvas) {
+		top := draw.Crop(dc, 0, 0, h-panelH, 0)
+		mid := draw.Crop(dc, 0, 0, legendH, -panelH)
+		bottom := draw.Crop(dc, 0, 0, 0, -(h - legendH))
+		before.Draw(top)
+		after.Draw(mid)
+		legendArea := draw.Crop(bottom, 0.4*vg.Centimeter, 0, 0, 0)
+		drawLegendColumns(legendArea, utilLegend, 2)
+	})
+	return chart{
+		ID:    "chart-utilisation",
+		Title: "Peak utilisation by link and year, before and after the plan",
+		Caption: "Each cell is the link's peak utilisation in the busier direction in that year, as a share of its capacity. " +
+			"Orange cells with bold figures are at the utilisation ceiling: without more capacity, traffic there is turned away. " +
+			"A corner mark shows capacity added by the plan.",
+		SVG: svg,
+	}, err
+}
+
+// drawLegendColumns draws the entries of l in cols columns.
+func drawLegendColumns(c draw.Canvas, entries []namedThumb, cols int) {
+	per := (len(entries) + cols - 1) / cols
+	w := (c.Max.X - c.Min.X) / vg.Length(cols)
+	for k := 0; k < cols; k++ {
+		lo := k * per
+		hi := min(lo+per, len(entries))
+		if lo >= hi {
+			break
+		}
+		sub := plot.NewLegend()
+		sub.TextStyle.Font = font.From(chartFont, 9)
+		sub.TextStyle.Color = inkColor
+		sub.Top, sub.Left = true, true
+		for _, e := range entries[lo:hi] {
+			sub.Add(e.name, e.thumb)
+		}
+		col := draw.Crop(c, vg.Length(k)*w, -(vg.Length(cols-1-k) * w), 0, 0)
+		sub.Draw(col)
+	}
+}
+
+type namedThumb struct {
+	name  string
+	thumb plot.Thumbnailer
+}
+
+// utilLegend is the fixed legend of the utilisation grid.
+var utilLegend = func() []namedThumb {
+	var out []namedThumb
+	for i := range utilRamp {
+		out = append(out, namedThumb{utilBinLabel(i), swatch{fill: utilRamp[i]}})
+	}
+	out = append(out,
+		namedThumb{"at the utilisation ceiling (bold figure)", swatch{fill: ceilingColor}},
+		namedThumb{"capacity added by the plan (corner mark)", swatch{fill: utilRamp[1], mark: true}},
+		namedThumb{"no capacity (link not built)", swatch{fill: noCapColor}},
+	)
+	return out
+}()
+
+// swatch is a legend thumbnail: a filled square, optionally with the
+// upgrade corner mark.
+type swatch struct {
+	fill color.Color
+	mark bool
+}
+
+func (s swatch) Thumbnail(c *draw.Canvas) {
+	r := c.Rectangle
+	side := math.Min(float64(r.Max.X-r.Min.X), float64(r.Max.Y-r.Min.Y))
+	x0 := r.Min.X
+	y0 := r.Min.Y
+	x1, y1 := x0+vg.Length(side), y0+vg.Length(side)
+	c.FillPolygon(s.fill, []vg.Point{{X: x0, Y: y0}, {X: x1, Y: y0}, {X: x1, Y: y1}, {X: x0, Y: y1}})
+	c.StrokeLines(draw.LineStyle{Color: gridColor, Width: vg.Points(0.5)}, []vg.Point{{X: x0, Y: y0}, {X: x1, Y: y0}, {X: x1, Y: y1}, {X: x0, Y: y1}, {X: x0, Y: y0}})
+	if s.mark {
+		drawCornerMark(c, x1, y1, vg.Length(side)*0.55)
+	}
+}
+
+// drawCornerMark draws the "capacity added" mark: a dark triangle in the
+// top-right corner at (x, y).
+func drawCornerMark(c *draw.Canvas, x, y, size vg.Length) {
+	c.FillPolygon(inkColor, []vg.Point{{X: x - size, Y: y}, {X: x, Y: y}, {X: x, Y: y - size}})
+}
+
+// utilGridPlot draws the cells of one utilisation panel.
+type utilGridPlot struct {
+	r     *plans.Result
+	index map[string]int
+	n     int
+	after bool
+}
+
+func (g *utilGridPlot) Plot(c draw.Canvas, p *plot.Plot) {
+	trX, trY := p.Transforms(&c)
+	for _, ly := range g.r.Links {
+		row := float64(g.n - 1 - g.index[ly.Link])
+		x0, x1 := trX(float64(ly.Year)-0.5), trX(float64(ly.Year)+0.5)
+		y0, y1 := trY(row-0.5), trY(row+0.5)
+		capacity, u := ly.CapacityBefore, ly.UtilisationBefore
+		if g.after {
+			capacity, u = ly.CapacityAfter, ly.UtilisationAfter
+		}
+		fill := color.Color(noCapColor)
+		label := "—"
+		bold := false
+		if capacity > 0 {
+			fill = utilColor(u, ly.Ceiling)
+			label = formatFixed(100*u, 1)
+			bold = atCeiling(u, ly.Ceiling)
+		}
+		cell := []vg.Point{{X: x0, Y: y0}, {X: x1, Y: y0}, {X: x1, Y: y1}, {X: x0, Y: y1}}
+		c.FillPolygon(fill, cell)
+		c.StrokeLines(draw.LineStyle{Color: color.White, Width: vg.Points(1.2)}, append(cell, cell[0]))
+		txt := color.Color(inkColor)
+		if darkBackground(fill) {
+			txt = color.White
+		}
+		f := font.From(chartFont, 8)
+		if bold {
+			f.Weight = xfont.WeightBold
+		}
+		sty := text.Style{Color: txt, Font: f, XAlign: draw.XCenter, YAlign: draw.YCenter, Handler: p.TextHandler}
+		c.FillText(sty, vg.Point{X: (x0 + x1) / 2, Y: (y0 + y1) / 2}, label)
+		if g.after && ly.CapacityAfter > ly.CapacityBefore {
+			mark := txt
+			drawCornerMarkColor(&c, x1-vg.Points(1), y1-vg.Points(1), 0.28*(y1-y0), mark)
+		}
+	}
+}
+
+func drawCornerMarkColor(c *draw.Canvas, x, y, size vg.Length, clr color.Color) {
+	c.FillPolygon(clr, []vg.Point{{X: x - size, Y: y}, {X: x, Y: y}, {X: x, Y: y - size}})
+}
+
+func (g *utilGridPlot) DataRange() (xmin, xmax, ymin, ymax float64) {
+	xmin, xmax = math.Inf(1), math.Inf(-1)
+	for _, ly := range g.r.Links {
+		xmin = math.Min(xmin, float64(ly.Year)-0.5)
+		xmax = math.Max(xmax, float64(ly.Year)+0.5)
+	}
+	return xmin, xmax, -0.5, float64(g.n) - 0.5
+}

@@ -1,0 +1,92 @@
+package report
+
+import (
+	"bufio"
+	"fmt"
+	"io"
+	"strings"
+
+	"netstage/plans"
+)
+
+// Format is an output format of the report.
+type Format int
+
+const (
+	// HTML is one self-contained page: inline CSS and SVG, no scripts.
+	HTML Format = iota
+	// Markdown is plain Markdown (tables, no images) for wikis and email.
+	Markdown
+)
+
+// String returns the format's name as the --format flag spells it.
+func (f Format) String() string {
+	switch f {
+	case HTML:
+		return "html"
+	case Markdown:
+		return "md"
+	}
+	return "unknown"
+}
+
+// ParseFormat reads a format name: "html", or "md" (or "markdown").
+func ParseFormat(s string) (Format, error) {
+	switch strings.ToLower(strings.TrimSpace(s)) {
+	case "html", "htm":
+		return HTML, nil
+	case "md", "markdown":
+		return Markdown, nil
+	}
+	return 0, fmt.Errorf("report: unknown format %q (allowed: html, md)", s)
+}
+
+// Write renders the report of the solved plan r for the case c in format f.
+// It fails only when c or r is nil, a chart cannot be drawn, or w fails.
+func Write(w io.Writer, c *plans.Case, r *plans.Result, f Format) error {
+	v, err := buildView(c, r)
+	if err != nil {
+		return err
+	}
+	bw := bufio.NewWriter(w)
+	switch f {
+	case HTML:
+		if v.HasPlan {
+			if err := addCharts(v, c, r); err != nil {
+				return err
+			}
+		}
+		err = writeHTML(bw, v)
+	case Markdown:
+		err = writeMarkdown(bw, v)
+	default:
+		return fmt.Errorf("report: unknown format %d", int(f))
+	}
+	if err != nil {
+		return err
+	}
+	if err := bw.Flush(); err != nil {
+		return fmt.Errorf("report: %w", err)
+	}
+	return nil
+}
+
+// addCharts draws the HTML charts: capex, cash flow, utilisation, and the
+// map when the case has coordinates.
+func addCharts(v *view, c *plans.Case, r *plans.Result) error {
+	for _, f := range []func(*plans.Case, *plans.Result) (chart, error){capexChart, cashChart, utilChart} {
+		ch, err := f(c, r)
+		if err != nil {
+			return err
+		}
+		v.Charts = append(v.Charts, ch)
+	}
+	if v.MapNote == "" {
+		ch, err := mapChart(c, r)
+		if err != nil {
+			return err
+		}
+		v.Charts = append(v.Charts, ch)
+	}
+	return nil
+}
