@@ -96,7 +96,9 @@ func (s *search) rootCuts(r lp.Result) lp.Result {
 			s.nCuts++
 		}
 		s.lps.AddRows(rows)
-		r = s.lpSolve(s.pruneLimit(), 0)
+		// No cutoff right after a change of rows: lp (version of 2026-12)
+		// may stop with a false ObjectiveCutoff on the repaired basis.
+		r = s.lpSolve(inf, 0)
 		if r.Status != lp.Optimal {
 			return r
 		}
@@ -117,7 +119,7 @@ func (s *search) rootCuts(r lp.Result) lp.Result {
 	// Leave only binding cuts in the LP for the tree.
 	if r.Status == lp.Optimal {
 		s.ageCuts(r, true)
-		r = s.lpSolve(s.pruneLimit(), 0)
+		r = s.lpSolve(inf, 0)
 	}
 	return r
 }
