@@ -9,6 +9,7 @@ import (
 	"os"
 	"strconv"
 	"strings"
+	"unicode"
 )
 
 // mpsInfinity: bound and right-hand-side values at least this large are
@@ -106,8 +107,8 @@ func ReadMPS(r io.Reader, format MPSFormat) (*Model, error) {
 	ended := false
 	for sc.Scan() {
 		p.line++
-		line := strings.TrimRight(sc.Text(), " \t\r")
-		if line == "" || line[0] == '*' {
+		line := strings.TrimRightFunc(sc.Text(), unicode.IsSpace)
+		if line == "" || line[0] == '*' || len(strings.Fields(line)) == 0 {
 			continue
 		}
 		if line[0] != ' ' && line[0] != '\t' {
