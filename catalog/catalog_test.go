@@ -246,11 +246,12 @@ func TestSuggest(t *testing.T) {
 
 func TestEditDistance(t *testing.T) {
 	// source: the Levenshtein distance of kitten/sitting is 3, a textbook
-	// example (from memory).
+	// example (from memory); with transpositions (optimal string alignment)
+	// "ca"/"abc" is 3 and "metor"/"metro" is 1 (from memory).
 	tests := []struct {
 		a, b string
 		want int
-	}{{"kitten", "sitting", 3}, {"", "abc", 3}, {"flaw", "lawn", 2}, {"same", "same", 0}}
+	}{{"kitten", "sitting", 3}, {"", "abc", 3}, {"flaw", "lawn", 2}, {"same", "same", 0}, {"ca", "abc", 3}, {"metor", "metro", 1}}
 	for _, tc := range tests {
 		if got := editDistance(tc.a, tc.b); got != tc.want {
 			t.Errorf("editDistance(%q, %q): got %d, want %d", tc.a, tc.b, got, tc.want)

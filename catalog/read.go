@@ -452,24 +452,31 @@ func Suggest(word string, candidates []string) string {
 	return ""
 }
 
-// editDistance is the Levenshtein distance between a and b (bytes).
-// Cost: O(len(a)·len(b)).
+// editDistance is the optimal string alignment distance between a and b
+// (bytes): insertions, deletions, substitutions and transpositions of two
+// neighbours each cost 1, so the common typo "metor" for "metro" is one
+// edit. Cost: O(len(a)·len(b)).
 func editDistance(a, b string) int {
-	prev := make([]int, len(b)+1)
-	cur := make([]int, len(b)+1)
-	for j := range prev {
-		prev[j] = j
+	rows := make([][]int, len(a)+1)
+	for i := range rows {
+		rows[i] = make([]int, len(b)+1)
+		rows[i][0] = i
+	}
+	for j := range rows[0] {
+		rows[0][j] = j
 	}
 	for i := 1; i <= len(a); i++ {
-		cur[0] = i
 		for j := 1; j <= len(b); j++ {
 			cost := 1
 			if a[i-1] == b[j-1] {
 				cost = 0
 			}
-			cur[j] = min(prev[j]+1, cur[j-1]+1, prev[j-1]+cost)
+			d := min(rows[i-1][j]+1, rows[i][j-1]+1, rows[i-1][j-1]+cost)
+			if i > 1 && j > 1 && a[i-1] == b[j-2] && a[i-2] == b[j-1] {
+				d = min(d, rows[i-2][j-2]+1)
+			}
+			rows[i][j] = d
 		}
-		prev, cur = cur, prev
 	}
-	return prev[len(b)]
+	return rows[len(a)][len(b)]
 }
