@@ -125,7 +125,6 @@ func (s *search) nextID() int { s.ids++; return s.ids }
 
 // finish turns the search state into a Result.
 func (s *search) finish() Result {
-	s.curBound = inf
 	if s.stopped == Finished || s.stopped == LPFailure {
 		if s.queue.Len() == 0 {
 			if s.incX != nil {

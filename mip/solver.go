@@ -130,7 +130,7 @@ type search struct {
 }
 
 func newSearch(ctx context.Context, m *lp.Model, set Settings) *search {
-	s := &search{model: m, ctx: ctx, set: set, started: time.Now(), incObj: inf, prunedMin: inf, curBound: inf}
+	s := &search{model: m, ctx: ctx, set: set, started: time.Now(), incObj: inf, prunedMin: inf, curBound: math.Inf(-1)}
 	if set.TimeLimit > 0 {
 		s.deadline = s.started.Add(set.TimeLimit)
 	}

@@ -45,9 +45,9 @@ func (s *search) treeSearch(root *node) {
 			s.queue.push(cur)
 			return
 		}
-		s.progress(false)
 		if len(kids) == 0 {
 			cur = nil
+			s.progress(false)
 			continue
 		}
 		// kids[0] is the preferred child.
@@ -55,11 +55,13 @@ func (s *search) treeSearch(root *node) {
 		if s.plungeOn(next) {
 			s.queue.push(kids[1])
 			cur, warm = next, true
+			s.curBound = cur.bound
 		} else {
 			s.queue.push(kids[0])
 			s.queue.push(kids[1])
 			cur = nil
 		}
+		s.progress(false)
 	}
 }
 

@@ -1,0 +1,267 @@
+package mip
+
+import (
+	"context"
+	"fmt"
+	"math"
+	"math/rand"
+	"testing"
+	"time"
+
+	"netstage/lp"
+)
+
+// hardKnapsack is a multi-dimensional 0/1 knapsack (maximise) with n items
+// and k capacity rows at half the total weight: easy to find good points,
+// slow to prove optimal for n ≈ 80.
+func hardKnapsack(n, k int, seed int64) *lp.Model {
+	rng := rand.New(rand.NewSource(seed))
+	m := lp.NewModel("knapsack")
+	m.Sense = lp.Maximize
+	for j := 0; j < n; j++ {
+		m.AddIntCol(fmt.Sprintf("x%d", j), float64(50+rng.Intn(50)), 0, 1)
+	}
+	for i := 0; i < k; i++ {
+		cols := make([]int, n)
+		vals := make([]float64, n)
+		sum := 0.0
+		for j := 0; j < n; j++ {
+			cols[j] = j
+			vals[j] = float64(20 + rng.Intn(80))
+			sum += vals[j]
+		}
+		m.AddRow(fmt.Sprintf("cap%d", i), math.Inf(-1), math.Floor(sum/2), cols, vals)
+	}
+	return m
+}
+
+func TestTimeLimitHonoured(t *testing.T) {
+	m := hardKnapsack(80, 10, 7)
+	limit := 200 * time.Millisecond
+	start := time.Now()
+	r, err := Solve(context.Background(), m, Settings{TimeLimit: limit, RelGap: 1e-9})
+	took := time.Since(start)
+	if err != nil {
+		t.Fatal(err)
+	}
+	// A small margin for the last LP solve and the result assembly.
+	if took > limit+time.Second {
+		t.Errorf("search took %v with a time limit of %v", took, limit)
+	}
+	if r.Status != Feasible {
+		t.Fatalf("status %v, want feasible (stopped at the limit with a point)", r.Status)
+	}
+	if r.Stopped != TimeLimit {
+		t.Errorf("stopped %v, want time limit", r.Stopped)
+	}
+	checkIncumbent(t, m, r)
+	if !(r.Bound >= r.Objective) || r.Gap <= 1e-9 || math.IsInf(r.Gap, 0) {
+		t.Errorf("bound %v objective %v gap %v: want a finite open gap with bound ≥ objective", r.Bound, r.Objective, r.Gap)
+	}
+	want := math.Abs(r.Bound-r.Objective) / math.Max(math.Abs(r.Objective), 1)
+	if math.Abs(r.Gap-want) > 1e-12 {
+		t.Errorf("gap %v, want %v", r.Gap, want)
+	}
+}
+
+func TestNodeLimit(t *testing.T) {
+	m := hardKnapsack(80, 10, 8)
+	r, err := Solve(context.Background(), m, Settings{NodeLimit: 50, RelGap: 1e-9})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if r.Status != Feasible || r.Stopped != NodeLimit {
+		t.Fatalf("status %v stopped %v, want feasible at the node limit", r.Status, r.Stopped)
+	}
+	if r.Nodes > 50 {
+		t.Errorf("%d nodes, limit 50", r.Nodes)
+	}
+	checkIncumbent(t, m, r)
+}
+
+func TestCancelReturnsBest(t *testing.T) {
+	m := hardKnapsack(80, 10, 9)
+	ctx, cancel := context.WithCancel(context.Background())
+	defer cancel()
+	incumbents := 0
+	r, err := Solve(ctx, m, Settings{RelGap: 1e-9, Progress: func(p Progress) {
+		if p.NewIncumbent {
+			incumbents++
+			cancel()
+		}
+	}})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if incumbents == 0 {
+		t.Fatal("no incumbent reported through Progress")
+	}
+	if r.Status != Feasible || r.Stopped != Cancelled {
+		t.Fatalf("status %v stopped %v, want feasible and cancelled", r.Status, r.Stopped)
+	}
+	checkIncumbent(t, m, r)
+}
+
+func TestProgressReports(t *testing.T) {
+	m := readSample(t, "p0033")
+	var last Progress
+	calls := 0
+	r, err := Solve(context.Background(), m, Settings{ProgressInterval: time.Nanosecond, Progress: func(p Progress) {
+		calls++
+		if p.HasIncumbent && p.Bound > p.Incumbent+1e-9 {
+			t.Errorf("minimisation: bound %v above incumbent %v", p.Bound, p.Incumbent)
+		}
+		if p.Bound < last.Bound-1e-9 {
+			t.Errorf("bound fell from %v to %v", last.Bound, p.Bound)
+		}
+		last = p
+	}})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if calls == 0 || !last.HasIncumbent {
+		t.Fatalf("%d progress calls, last %+v", calls, last)
+	}
+	if last.Incumbent < r.Objective-1e-9 {
+		t.Errorf("progress incumbent %v better than the result %v", last.Incumbent, r.Objective)
+	}
+}
+
+func TestDeterministic(t *testing.T) {
+	m := readSample(t, "lseu")
+	a, _ := Solve(context.Background(), m, Settings{Seed: 3})
+	b, _ := Solve(context.Background(), m, Settings{Seed: 3})
+	if a.Nodes != b.Nodes || a.LPIterations != b.LPIterations || a.Objective != b.Objective {
+		t.Fatalf("two runs differ: %d/%d nodes, %d/%d iterations, %v/%v", a.Nodes, b.Nodes, a.LPIterations, b.LPIterations, a.Objective, b.Objective)
+	}
+	for j := range a.X {
+		if a.X[j] != b.X[j] {
+			t.Fatalf("x[%d] differs: %v and %v", j, a.X[j], b.X[j])
+		}
+	}
+}
+
+func TestStartAndHeuristic(t *testing.T) {
+	m := readSample(t, "p0033")
+	full, err := Solve(context.Background(), m, Settings{})
+	if err != nil || full.Status != Optimal {
+		t.Fatalf("reference solve: %v %v", full.Status, err)
+	}
+	// With the optimum as the start and a one-node limit, the result is
+	// the start itself.
+	r, _ := Solve(context.Background(), m, Settings{Start: full.X, NodeLimit: 1, NoHeuristics: true, NoCuts: true})
+	if r.X == nil || r.Objective != full.Objective {
+		t.Errorf("with start: objective %v, want %v", r.Objective, full.Objective)
+	}
+	// An infeasible start (every column at 1 violates rows of p0033) is
+	// ignored, not returned.
+	bad := make([]float64, m.NumCols())
+	for j := range bad {
+		bad[j] = 1
+	}
+	if viol, _ := m.MaxViolation(bad, DefaultIntTol); viol <= DefaultFeasTol {
+		t.Skip("the all-ones point is feasible; pick another bad start")
+	}
+	r, _ = Solve(context.Background(), m, Settings{Start: bad, NodeLimit: 1, NoHeuristics: true, NoCuts: true})
+	if r.X != nil {
+		checkIncumbent(t, m, r)
+	}
+	// The caller's heuristic proposes the optimum at the root.
+	called := 0
+	r, _ = Solve(context.Background(), m, Settings{NodeLimit: 1, NoHeuristics: true, NoCuts: true,
+		Heuristic: func(x []float64) [][]float64 {
+			called++
+			if len(x) != m.NumCols() {
+				t.Errorf("heuristic got %d values, want %d", len(x), m.NumCols())
+			}
+			return [][]float64{full.X}
+		}})
+	if called == 0 || r.Objective != full.Objective {
+		t.Errorf("heuristic called %d times, objective %v, want %v", called, r.Objective, full.Objective)
+	}
+	checkIncumbent(t, m, r)
+}
+
+// TestCompletion checks that a candidate whose continuous part is wrong is
+// repaired by re-optimising the continuous columns.
+func TestCompletion(t *testing.T) {
+	// minimise 3y + 2z with y ≥ 1.5·x, z ≥ 4 − y, x integer in [0, 3].
+	// By construction: x = 1 gives y = 1.5, z = 2.5, objective 9.5.
+	m := lp.NewModel("completion")
+	x := m.AddIntCol("x", 0, 0, 3)
+	y := m.AddCol("y", 3, 0, lp.Inf)
+	z := m.AddCol("z", 2, 0, lp.Inf)
+	m.AddRow("link", 0, lp.Inf, []int{y, x}, []float64{1, -1.5})
+	m.AddRow("cover", 4, lp.Inf, []int{z, y}, []float64{1, 1})
+	r, err := Solve(context.Background(), m, Settings{NodeLimit: 1, NoHeuristics: true, NoCuts: true,
+		Start: []float64{1, 0, 0}})
+	if err != nil {
+		t.Fatal(err)
+	}
+	checkIncumbent(t, m, r)
+	// The optimum (x = 0, y = 0, z = 4, objective 8) may be found by the
+	// root LP itself; the completed start must at least be no worse than 9.5.
+	if r.Objective > 9.5+1e-9 {
+		t.Errorf("objective %v, want ≤ 9.5 (completed start)", r.Objective)
+	}
+}
+
+// TestUnboundedInteger covers unbounded relaxations decided by a
+// feasibility search (values by construction).
+func TestUnboundedInteger(t *testing.T) {
+	cases := []struct {
+		name  string
+		build func() *lp.Model
+		want  Status
+	}{
+		{"ray in integers", func() *lp.Model {
+			// maximise x + y with x − y = 0, x, y ≥ 0 integer: unbounded.
+			m := lp.NewModel("ray")
+			m.Sense = lp.Maximize
+			x := m.AddIntCol("x", 1, 0, lp.Inf)
+			y := m.AddIntCol("y", 1, 0, lp.Inf)
+			m.AddRow("eq", 0, 0, []int{x, y}, []float64{1, -1})
+			return m
+		}, Unbounded},
+		{"no integer point", func() *lp.Model {
+			// minimise −y with 2x = 1 (no integer x), y ≥ 0 free above.
+			m := lp.NewModel("odd")
+			x := m.AddIntCol("x", 0, 0, 10)
+			y := m.AddCol("y", -1, 0, lp.Inf)
+			m.AddRow("odd", 1, 1, []int{x}, []float64{2})
+			m.AddRow("y", 0, lp.Inf, []int{y}, []float64{1})
+			return m
+		}, Infeasible},
+	}
+	for _, tc := range cases {
+		t.Run(tc.name, func(t *testing.T) {
+			m := tc.build()
+			r, err := Solve(context.Background(), m, Settings{})
+			if err != nil {
+				t.Fatal(err)
+			}
+			if r.Status != tc.want {
+				t.Fatalf("status %v, want %v", r.Status, tc.want)
+			}
+			if tc.want == Unbounded {
+				checkIncumbent(t, m, r)
+			}
+		})
+	}
+}
+
+func TestBadInput(t *testing.T) {
+	m := lp.NewModel("bad")
+	m.AddIntCol("x", 1, 2, 1)
+	if _, err := Solve(context.Background(), m, Settings{}); err == nil {
+		t.Error("lower > upper: no error")
+	}
+	m2 := lp.NewModel("ok")
+	m2.AddIntCol("x", 1, 0, 1)
+	if _, err := Solve(context.Background(), m2, Settings{Start: []float64{1, 2}}); err == nil {
+		t.Error("start of the wrong length: no error")
+	}
+	if _, err := Solve(context.Background(), nil, Settings{}); err == nil {
+		t.Error("nil model: no error")
+	}
+}
