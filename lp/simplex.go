@@ -320,7 +320,7 @@ func (s *Solver) run(ctx context.Context) Status {
 	}
 	copy(s.work, s.cost)
 	perturbed := false
-	if !s.solved && !s.set.NoPerturbation {
+	if !s.warm && !s.set.NoPerturbation {
 		s.perturb()
 		perturbed = true
 	}
@@ -369,7 +369,6 @@ func (s *Solver) run(ctx context.Context) Status {
 			}
 		}
 		if s.maxPrimalInfeasibility() <= ptol && s.maxDualInfeasibility() <= dtol {
-			s.solved = true
 			return Optimal
 		}
 	}
@@ -397,7 +396,6 @@ func (s *Solver) solveNoRows() Status {
 		s.x[j] = s.boundValue(j, s.stat[j])
 		s.d[j] = c
 	}
-	s.solved = true
 	return Optimal
 }
 
@@ -545,7 +543,6 @@ func (s *Solver) unboundedOrInfeasible(lim *limits) Status {
 			return NumericalTrouble
 		}
 		if s.maxPrimalInfeasibility() <= s.primalTol() && s.maxDualInfeasibility() <= s.dualTol() {
-			s.solved = true
 			return Optimal
 		}
 		return NumericalTrouble

@@ -67,7 +67,7 @@ type Solver struct {
 	iterations int // in the current solve
 	ray        []float64
 	status     Status
-	solved     bool // a solve has finished since the last change of shape
+	warm       bool // the basis comes from an earlier solve: no perturbation
 
 	// scratch
 	rho, alphaRow, alphaCol, tau []float64
@@ -163,7 +163,6 @@ func (s *Solver) SetColBounds(j int, lower, upper float64) {
 	}
 	s.model.ColLower[j], s.model.ColUpper[j] = lower, upper
 	s.lo[j], s.up[j] = lower/s.colScale[j], upper/s.colScale[j]
-	s.solved = false
 }
 
 // ColBounds returns the current bounds of column j (model units).
@@ -181,7 +180,6 @@ func (s *Solver) SetRowBounds(i int, lower, upper float64) {
 	}
 	s.model.RowLower[i], s.model.RowUpper[i] = lower, upper
 	s.lo[s.n+i], s.up[s.n+i] = lower*s.rowScale[i], upper*s.rowScale[i]
-	s.solved = false
 }
 
 // SetObjective replaces the objective coefficients (model units and sense;
@@ -193,7 +191,6 @@ func (s *Solver) SetObjective(c []float64) {
 	}
 	copy(s.model.Obj, c)
 	s.setCosts()
-	s.solved = false
 }
 
 // AddRows appends rows (cuts). Their slacks become basic, so the current
@@ -217,7 +214,6 @@ func (s *Solver) AddRows(rows []Row) {
 	}
 	s.resizeScratch()
 	s.facValid = false
-	s.solved = false
 }
 
 // RemoveRows deletes the rows whose indices are listed (any order,
@@ -317,7 +313,6 @@ func (s *Solver) RemoveRows(idx []int) {
 	s.rebuildMatrix(s.m)
 	s.resizeScratch()
 	s.facValid = false
-	s.solved = false
 }
 
 // keepRows returns a copy of m with only the listed rows, renumbered.
@@ -405,7 +400,6 @@ func (s *Solver) SetBasis(b Basis) error {
 		s.dse[p] = 1
 	}
 	s.facValid = false
-	s.solved = false
 	return nil
 }
 
@@ -492,7 +486,6 @@ func (s *Solver) RestoreState(st *State) {
 	copy(s.stat, st.stat)
 	copy(s.dse, st.dse)
 	s.facValid = false
-	s.solved = false
 }
 
 // Solve runs the simplex method from the current basis and returns the
@@ -506,6 +499,9 @@ func (s *Solver) Solve(ctx context.Context) Result {
 	}
 	s.ray = nil
 	st := s.run(ctx)
+	if st != NumericalTrouble && st != Cancelled {
+		s.warm = true
+	}
 	s.status = st
 	return s.result(st)
 }

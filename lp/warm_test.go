@@ -1,0 +1,322 @@
+package lp
+
+import (
+	"context"
+	"math"
+	"testing"
+)
+
+// interiorColumn returns a column strictly between its bounds at the
+// optimum, with the largest distance to its lower bound.
+func interiorColumn(m *Model, r Result) int {
+	best, bestGap := -1, 0.0
+	for j, x := range r.X {
+		gap := math.Min(x-m.ColLower[j], m.ColUpper[j]-x)
+		if gap > 1e-3 && gap > bestGap {
+			best, bestGap = j, gap
+		}
+	}
+	return best
+}
+
+func solveOK(t *testing.T, m *Model, r Result) {
+	t.Helper()
+	if err := verifyOptimal(m, r); err != nil {
+		t.Fatal(err)
+	}
+}
+
+// TestWarmStartBoundChange tightens one bound after an optimal solve and
+// checks that the warm re-solve reaches the cold optimum in far fewer
+// iterations. The ratio 1/4 is this test's own bar (common practice for
+// branch-and-bound re-solves is a handful of pivots).
+func TestWarmStartBoundChange(t *testing.T) {
+	for _, name := range []string{"afiro", "brandy", "e226", "finnis"} {
+		t.Run(name, func(t *testing.T) {
+			m := readSample(t, name)
+			sv, err := NewSolver(m, Settings{})
+			if err != nil {
+				t.Fatal(err)
+			}
+			r0 := sv.Solve(context.Background())
+			solveOK(t, m, r0)
+			j := interiorColumn(m, r0)
+			if j < 0 {
+				t.Fatal("no interior column")
+			}
+			// Branch down as branch-and-bound would: one unit below the
+			// value, or halfway to the lower bound when that is closer.
+			newUp := r0.X[j] - math.Min(1, (r0.X[j]-m.ColLower[j])/2)
+			sv.SetColBounds(j, m.ColLower[j], newUp)
+			warm := sv.Solve(context.Background())
+
+			child := m.Clone()
+			child.ColUpper[j] = newUp
+			cold, err := Solve(context.Background(), child, Settings{})
+			if err != nil {
+				t.Fatal(err)
+			}
+			if cold.Status != warm.Status {
+				t.Fatalf("warm status %v, cold %v", warm.Status, cold.Status)
+			}
+			if cold.Status == Optimal {
+				solveOK(t, child, warm)
+				solveOK(t, child, cold)
+				if !close(warm.Objective, cold.Objective, 1e-9) {
+					t.Fatalf("warm objective %v, cold %v", warm.Objective, cold.Objective)
+				}
+			}
+			t.Logf("column %d: cold %d iterations, warm %d", j, cold.Iterations, warm.Iterations)
+			if warm.Iterations*4 > cold.Iterations {
+				t.Fatalf("warm re-solve took %d iterations, cold %d: want at most a quarter", warm.Iterations, cold.Iterations)
+			}
+			// Back to the original bounds: the optimum returns.
+			sv.SetColBounds(j, m.ColLower[j], m.ColUpper[j])
+			back := sv.Solve(context.Background())
+			solveOK(t, m, back)
+			if !close(back.Objective, r0.Objective, 1e-9) {
+				t.Fatalf("after undoing the bound: %v, want %v", back.Objective, r0.Objective)
+			}
+		})
+	}
+}
+
+// TestSaveRestoreState runs a strong-branching round: save, branch both
+// ways, restore; after restoring, the original optimum comes back with no
+// pivots.
+func TestSaveRestoreState(t *testing.T) {
+	m := readSample(t, "brandy")
+	sv, err := NewSolver(m, Settings{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	r0 := sv.Solve(context.Background())
+	solveOK(t, m, r0)
+	j := interiorColumn(m, r0)
+	st := sv.SaveState()
+	for _, up := range []bool{false, true} {
+		lo, hi := m.ColLower[j], math.Floor(r0.X[j])
+		if up {
+			lo, hi = math.Ceil(r0.X[j]), m.ColUpper[j]
+		}
+		if lo > hi {
+			continue
+		}
+		sv.SetColBounds(j, lo, hi)
+		r := sv.Solve(context.Background())
+		if r.Status == Optimal {
+			child := m.Clone()
+			child.ColLower[j], child.ColUpper[j] = lo, hi
+			solveOK(t, child, r)
+		}
+		sv.RestoreState(st)
+	}
+	r := sv.Solve(context.Background())
+	solveOK(t, m, r)
+	if r.Iterations != 0 || !close(r.Objective, r0.Objective, 1e-9) {
+		t.Fatalf("after restore: %d iterations, objective %v; want 0 and %v", r.Iterations, r.Objective, r0.Objective)
+	}
+}
+
+// TestAddRemoveRows adds a cut that removes the optimum, checks the warm
+// re-solve against a cold solve of the extended model, then removes the cut.
+func TestAddRemoveRows(t *testing.T) {
+	for _, name := range []string{"afiro", "e226"} {
+		t.Run(name, func(t *testing.T) {
+			m := readSample(t, name)
+			sv, err := NewSolver(m, Settings{})
+			if err != nil {
+				t.Fatal(err)
+			}
+			r0 := sv.Solve(context.Background())
+			solveOK(t, m, r0)
+			// Cut: the objective's own row, c·x ≥ optimum + 1% (minimisation).
+			var idx []int
+			var val []float64
+			for j, c := range m.Obj {
+				if c != 0 {
+					idx = append(idx, j)
+					val = append(val, c)
+				}
+			}
+			cx := r0.Objective - m.Constant
+			bound := cx + 0.01*math.Abs(cx) + 0.01
+			sv.AddRows([]Row{{Name: "cut", Lower: bound, Upper: math.Inf(1), Index: idx, Value: val}})
+			warm := sv.Solve(context.Background())
+			ext := m.Clone()
+			ext.AddRow("cut", bound, math.Inf(1), idx, val)
+			solveOK(t, ext, warm)
+			cold, _ := Solve(context.Background(), ext, Settings{})
+			solveOK(t, ext, cold)
+			if !close(warm.Objective, cold.Objective, 1e-9) || !close(warm.Objective-m.Constant, bound, 1e-9) {
+				t.Fatalf("with cut: warm %v, cold %v, want c·x = %v", warm.Objective, cold.Objective, bound)
+			}
+			t.Logf("cut: warm %d iterations, cold %d", warm.Iterations, cold.Iterations)
+			sv.RemoveRows([]int{m.NumRows()})
+			if sv.NumRows() != m.NumRows() {
+				t.Fatalf("%d rows after removal, want %d", sv.NumRows(), m.NumRows())
+			}
+			back := sv.Solve(context.Background())
+			solveOK(t, m, back)
+			if !close(back.Objective, r0.Objective, 1e-9) {
+				t.Fatalf("after removing the cut: %v, want %v", back.Objective, r0.Objective)
+			}
+			// Removing an original row whose slack is nonbasic must repair
+			// the basis: compare with a cold solve of the smaller model.
+			drop := -1
+			for i, st := range back.Basis.Rows {
+				if st != Basic {
+					drop = i
+					break
+				}
+			}
+			sv.RemoveRows([]int{drop})
+			small := m.keepRows(without(m.NumRows(), drop))
+			rs := sv.Solve(context.Background())
+			cs, _ := Solve(context.Background(), small, Settings{})
+			if rs.Status != cs.Status {
+				t.Fatalf("after dropping row %d: status %v, cold %v", drop, rs.Status, cs.Status)
+			}
+			if cs.Status == Optimal {
+				solveOK(t, small, rs)
+				if !close(rs.Objective, cs.Objective, 1e-9) {
+					t.Fatalf("after dropping row %d: %v, cold %v", drop, rs.Objective, cs.Objective)
+				}
+			}
+		})
+	}
+}
+
+func without(n, drop int) []int {
+	var keep []int
+	for i := 0; i < n; i++ {
+		if i != drop {
+			keep = append(keep, i)
+		}
+	}
+	return keep
+}
+
+// TestSetObjective changes the costs and re-solves from the old basis.
+func TestSetObjective(t *testing.T) {
+	m := readSample(t, "brandy")
+	sv, err := NewSolver(m, Settings{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	solveOK(t, m, sv.Solve(context.Background()))
+	c := append([]float64(nil), m.Obj...)
+	for j := range c {
+		c[j] *= 1 + 0.1*math.Sin(float64(j))
+	}
+	sv.SetObjective(c)
+	warm := sv.Solve(context.Background())
+	m2 := m.Clone()
+	copy(m2.Obj, c)
+	cold, _ := Solve(context.Background(), m2, Settings{})
+	solveOK(t, m2, warm)
+	solveOK(t, m2, cold)
+	if !close(warm.Objective, cold.Objective, 1e-9) {
+		t.Fatalf("warm %v, cold %v", warm.Objective, cold.Objective)
+	}
+	t.Logf("new costs: warm %d iterations, cold %d", warm.Iterations, cold.Iterations)
+}
+
+// TestTableauRow checks each tableau row against its definition: a row of
+// B⁻¹[A | −I] is ρᵀ[A | −I] for some ρ (here ρ = −out[slacks]), has 1 at
+// its basic variable and 0 at the other basic variables, and the point
+// found satisfies it.
+func TestTableauRow(t *testing.T) {
+	m := readSample(t, "afiro")
+	sv, err := NewSolver(m, Settings{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	r := sv.Solve(context.Background())
+	solveOK(t, m, r)
+	n, rows := m.NumCols(), m.NumRows()
+	z := append(append([]float64(nil), r.X...), r.RowActivity...)
+	out := make([]float64, n+rows)
+	heading := sv.BasicVars()
+	cols := m.Columns()
+	for pos := range heading {
+		basic, value := sv.TableauRow(pos, out)
+		if basic != heading[pos] {
+			t.Fatalf("position %d: basic %d, heading says %d", pos, basic, heading[pos])
+		}
+		if !close(value, z[basic], 1e-9) {
+			t.Fatalf("position %d: value %v, solution %v", pos, value, z[basic])
+		}
+		for _, v := range heading {
+			want := 0.0
+			if v == basic {
+				want = 1
+			}
+			if out[v] != want {
+				t.Fatalf("position %d: entry of basic %d is %v, want %v", pos, v, out[v], want)
+			}
+		}
+		scale, sum := 1.0, 0.0
+		for j := 0; j < n; j++ {
+			// out[j] must equal Σ_i ρ_i a_ij with ρ_i = −out[n+i], except
+			// at basic columns where the row has been set exactly.
+			want := 0.0
+			for p := cols.Start[j]; p < cols.Start[j+1]; p++ {
+				want -= out[n+cols.Index[p]] * cols.Value[p]
+			}
+			if r.Basis.Cols[j] == Basic {
+				want = out[j]
+			}
+			if !close(out[j], want, 1e-9) {
+				t.Fatalf("position %d column %d: %v, want ρᵀa_j = %v", pos, j, out[j], want)
+			}
+		}
+		for k := range out {
+			sum += out[k] * z[k]
+			scale = math.Max(scale, math.Abs(out[k]*z[k]))
+		}
+		if math.Abs(sum) > 1e-9*scale {
+			t.Fatalf("position %d: row·z = %v", pos, sum)
+		}
+	}
+}
+
+// TestObjectiveCutoff stops a warm re-solve whose optimum is worse than the
+// cutoff.
+func TestObjectiveCutoff(t *testing.T) {
+	m := readSample(t, "afiro")
+	sv, err := NewSolver(m, Settings{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	r0 := sv.Solve(context.Background())
+	solveOK(t, m, r0)
+	j := interiorColumn(m, r0)
+	child := m.Clone()
+	child.ColUpper[j] = m.ColLower[j]
+	cold, _ := Solve(context.Background(), child, Settings{})
+	if cold.Status != Optimal || cold.Objective <= r0.Objective+1 {
+		t.Skipf("branch on column %d does not worsen the optimum enough (%v)", j, cold.Objective)
+	}
+	sv.SetSettings(Settings{HasCutoff: true, ObjectiveCutoff: (r0.Objective + cold.Objective) / 2})
+	sv.SetColBounds(j, m.ColLower[j], m.ColLower[j])
+	r := sv.Solve(context.Background())
+	if r.Status != ObjectiveCutoff {
+		t.Fatalf("status %v (objective %v), want objective cutoff", r.Status, r.Objective)
+	}
+}
+
+// TestLimits checks the iteration limit and cancellation statuses.
+func TestLimits(t *testing.T) {
+	m := readSample(t, "finnis")
+	r, _ := Solve(context.Background(), m, Settings{MaxIterations: 10})
+	if r.Status != IterationLimit || r.Iterations != 10 {
+		t.Fatalf("status %v after %d iterations, want iteration limit after 10", r.Status, r.Iterations)
+	}
+	ctx, cancel := context.WithCancel(context.Background())
+	cancel()
+	r, _ = Solve(ctx, m, Settings{})
+	if r.Status != Cancelled {
+		t.Fatalf("status %v, want cancelled", r.Status)
+	}
+}
