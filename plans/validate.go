@@ -28,16 +28,19 @@ func (d *decoder) resolveCatalogs(c *Case, cats []*catalog.Catalog) ErrorList {
 		errs = append(errs, &Error{File: file, Line: p.Line, Col: p.Col, Key: key, Err: err})
 	}
 	linkClasses := map[string]bool{}
+	classesKnown := true // false when a link's class is missing (already an error)
 	for _, l := range c.Links {
 		if l.Class != "" {
 			linkClasses[l.Class] = true
+		} else {
+			classesKnown = false
 		}
 	}
 	classList := sortedKeys(linkClasses)
 
 	// Class ceilings must name classes that links use.
 	for _, k := range sortedKeys(d.classAt) {
-		if !linkClasses[k] {
+		if !linkClasses[k] && classesKnown {
 			hint := ""
 			if s := catalog.Suggest(k, classList); s != "" {
 				hint = fmt.Sprintf(" (did you mean %q?)", s)
@@ -107,7 +110,7 @@ func (d *decoder) resolveCatalogs(c *Case, cats []*catalog.Catalog) ErrorList {
 			for _, cl := range it.Classes {
 				fits = fits || linkClasses[cl]
 			}
-			if !fits {
+			if !fits && classesKnown {
 				at(cat.File, ci.Pos, "items.classes", fmt.Errorf("%w: item %q fits no link: no link has class %s (link classes: %s)",
 					catalog.ErrUnused, ci.ID, quoteList(it.Classes), strings.Join(classList, ", ")))
 			}
