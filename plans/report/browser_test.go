@@ -1,0 +1,143 @@
+package report
+
+import (
+	"context"
+	"image"
+	"image/png"
+	"math"
+	"os"
+	"os/exec"
+	"path/filepath"
+	"strings"
+	"testing"
+	"time"
+)
+
+// browserTimeout bounds one headless chromium run; a cold start on a busy
+// CI machine takes a few seconds.
+const browserTimeout = 90 * time.Second
+
+// minLumaStdDev is the least standard deviation of pixel brightness (0–255)
+// a rendered report must show. A blank or single-colour page has 0; text,
+// tables and charts on white give well above 20. 10 is a safe floor
+// (common practice for "not blank" checks, chosen by us).
+const minLumaStdDev = 10
+
+// minInkShare is the least share of pixels that are not near-white.
+const minInkShare = 0.02
+
+// findChromium returns the path of Debian's chromium (or chromium-browser).
+func findChromium() string {
+	for _, name := range []string{"chromium", "chromium-browser"} {
+		if p, err := exec.LookPath(name); err == nil {
+			return p
+		}
+	}
+	return ""
+}
+
+// TestBrowserRender renders the demo report in headless chromium, checks
+// that the screenshot is not blank, and that the page has the report's
+// sections in order and at least four SVG charts.
+func TestBrowserRender(t *testing.T) {
+	bin := findChromium()
+	if bin == "" {
+		t.Skip("chromium is not installed (apt-get install -y chromium; .ci/run installs it): browser rendering not checked")
+	}
+	if testing.Short() {
+		t.Skip("browser rendering takes tens of seconds; it runs in the full suite (go test without -short)")
+	}
+	c, r := solvedDemo(t)
+	page := render(t, c, r, HTML)
+	checkSections(t, page, sectionIDs)
+	if n := strings.Count(page, "<svg"); n < 4 {
+		t.Errorf("html has %d <svg> charts, want at least 4", n)
+	}
+
+	dir := t.TempDir()
+	htmlPath := filepath.Join(dir, "report.html")
+	if err := os.WriteFile(htmlPath, []byte(page), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	shot := filepath.Join(dir, "report.png")
+	ctx, cancel := context.WithTimeout(context.Background(), browserTimeout)
+	defer cancel()
+	cmd := exec.CommandContext(ctx, bin,
+		"--headless", "--no-sandbox", "--disable-gpu", "--no-first-run",
+		"--disable-background-networking", "--disable-component-update",
+		"--disable-sync", "--disable-quic", "--hide-scrollbars",
+		"--user-data-dir="+filepath.Join(dir, "profile"),
+		"--window-size=1100,3000",
+		"--screenshot="+shot,
+		"file://"+htmlPath)
+	out, err := cmd.CombinedOutput()
+	if err != nil {
+		t.Fatalf("chromium: %v\n%s", err, out)
+	}
+	f, err := os.Open(shot)
+	if err != nil {
+		t.Fatalf("chromium wrote no screenshot: %v\n%s", err, out)
+	}
+	defer f.Close()
+	img, err := png.Decode(f)
+	if err != nil {
+		t.Fatalf("screenshot: %v", err)
+	}
+	std, ink := lumaStats(img)
+	t.Logf("screenshot %v: brightness standard deviation %.1f, ink share %.3f", img.Bounds().Size(), std, ink)
+	if std < minLumaStdDev {
+		t.Errorf("screenshot brightness standard deviation %.2f < %d: the page looks blank", std, minLumaStdDev)
+	}
+	if ink < minInkShare {
+		t.Errorf("only %.3f of the screenshot is not white, want at least %.2f", ink, minInkShare)
+	}
+	// The charts must have drawn colour: the utilisation ramp's darkest
+	// blue or the ceiling orange must appear somewhere.
+	if !hasColour(img) {
+		t.Error("screenshot has no chart colours: the SVG charts did not render")
+	}
+}
+
+// lumaStats returns the standard deviation of pixel brightness and the
+// share of pixels darker than near-white.
+func lumaStats(img image.Image) (std, ink float64) {
+	b := img.Bounds()
+	var sum, sum2 float64
+	n, dark := 0, 0
+	for y := b.Min.Y; y < b.Max.Y; y += 2 {
+		for x := b.Min.X; x < b.Max.X; x += 2 {
+			r, g, bl, _ := img.At(x, y).RGBA()
+			l := (0.2126*float64(r) + 0.7152*float64(g) + 0.0722*float64(bl)) / 257
+			sum += l
+			sum2 += l * l
+			n++
+			if l < 235 {
+				dark++
+			}
+		}
+	}
+	mean := sum / float64(n)
+	v := sum2/float64(n) - mean*mean
+	if v < 0 {
+		v = 0
+	}
+	return math.Sqrt(v), float64(dark) / float64(n)
+}
+
+// hasColour reports whether the image contains clearly saturated pixels
+// (the report's text and tables are grey; only the charts are coloured).
+func hasColour(img image.Image) bool {
+	b := img.Bounds()
+	count := 0
+	for y := b.Min.Y; y < b.Max.Y; y += 3 {
+		for x := b.Min.X; x < b.Max.X; x += 3 {
+			r, g, bl, _ := img.At(x, y).RGBA()
+			hi := max(r, g, bl) >> 8
+			lo := min(r, g, bl) >> 8
+			if hi-lo > 60 {
+				count++
+			}
+		}
+	}
+	return count > 500
+}

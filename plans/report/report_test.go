@@ -1,0 +1,507 @@
+package report
+
+import (
+	"bytes"
+	"context"
+	"encoding/json"
+	"flag"
+	"html"
+	"math"
+	"os"
+	"path/filepath"
+	"regexp"
+	"strings"
+	"sync"
+	"testing"
+
+	"netstage/plans"
+)
+
+var update = flag.Bool("update", false, "rewrite the golden files under testdata/report")
+
+// goldenDir holds the report goldens (the repository's top-level testdata).
+var goldenDir = filepath.Join("..", "..", "testdata", "report")
+
+var (
+	demoOnce   sync.Once
+	demoCase   *plans.Case
+	demoResult *plans.Result
+	demoErr    error
+)
+
+// solvedDemo loads and solves the embedded demo once per test binary.
+func solvedDemo(t *testing.T) (*plans.Case, *plans.Result) {
+	t.Helper()
+	demoOnce.Do(func() {
+		demoCase, _, demoErr = plans.LoadDemo()
+		if demoErr != nil {
+			return
+		}
+		demoResult, demoErr = plans.Solve(context.Background(), demoCase, plans.SolveOptions{})
+	})
+	if demoErr != nil {
+		t.Fatalf("demo: %v", demoErr)
+	}
+	if demoResult.Objective == nil {
+		t.Fatalf("demo: status %s, want a plan", demoResult.Status)
+	}
+	return demoCase, demoResult
+}
+
+func render(t *testing.T, c *plans.Case, r *plans.Result, f Format) string {
+	t.Helper()
+	var buf bytes.Buffer
+	if err := Write(&buf, c, r, f); err != nil {
+		t.Fatalf("Write %s: %v", f, err)
+	}
+	return buf.String()
+}
+
+// TestMarkdownGolden guards the demo's Markdown report against unintended
+// change. It is a regression guard of our own output, not a proof; the
+// numbers are checked against the Result in TestNumbersMatchResult.
+func TestMarkdownGolden(t *testing.T) {
+	c, r := solvedDemo(t)
+	got := render(t, c, r, Markdown)
+	path := filepath.Join(goldenDir, "demo.md")
+	if *update {
+		if err := os.MkdirAll(goldenDir, 0o755); err != nil {
+			t.Fatal(err)
+		}
+		if err := os.WriteFile(path, []byte(got), 0o644); err != nil {
+			t.Fatal(err)
+		}
+	}
+	want, err := os.ReadFile(path)
+	if err != nil {
+		t.Fatalf("%v (run go test ./plans/report -run TestMarkdownGolden -update)", err)
+	}
+	if got != string(want) {
+		gl, wl := strings.Split(got, "\n"), strings.Split(string(want), "\n")
+		for i := 0; i < len(gl) || i < len(wl); i++ {
+			var g, w string
+			if i < len(gl) {
+				g = gl[i]
+			}
+			if i < len(wl) {
+				w = wl[i]
+			}
+			if g != w {
+				t.Fatalf("%s differs from the golden file at line %d:\ngot:  %s\nwant: %s\n(rerun with -update and read the diff)", path, i+1, g, w)
+			}
+		}
+	}
+}
+
+// TestDeterministic renders twice: same input, same bytes (DESIGN.md §5).
+func TestDeterministic(t *testing.T) {
+	c, r := solvedDemo(t)
+	for _, f := range []Format{HTML, Markdown} {
+		if a, b := render(t, c, r, f), render(t, c, r, f); a != b {
+			t.Errorf("%s report differs between two renderings of the same result", f)
+		}
+	}
+}
+
+// jsonOf returns the Result as the generic JSON value that `solve --json`
+// consumers parse.
+func jsonOf(t *testing.T, r *plans.Result) map[string]any {
+	t.Helper()
+	b, err := json.Marshal(r)
+	if err != nil {
+		t.Fatal(err)
+	}
+	var m map[string]any
+	if err := json.Unmarshal(b, &m); err != nil {
+		t.Fatal(err)
+	}
+	return m
+}
+
+// table is a parsed report table: header cells and body rows.
+type table struct {
+	head []string
+	rows [][]string
+}
+
+func (tb table) col(name string) int {
+	for i, h := range tb.head {
+		if h == name {
+			return i
+		}
+	}
+	return -1
+}
+
+// mdTable returns the first table after the heading line in a Markdown
+// report.
+func mdTable(t *testing.T, md, heading string) table {
+	t.Helper()
+	i := strings.Index(md, "\n"+heading+"\n")
+	if i < 0 {
+		t.Fatalf("markdown has no heading %q", heading)
+	}
+	var tb table
+	started := false
+	for _, line := range strings.Split(md[i+1:], "\n")[1:] {
+		if !strings.HasPrefix(line, "|") {
+			if started {
+				break
+			}
+			continue
+		}
+		cells := splitMDRow(line)
+		switch {
+		case !started:
+			tb.head, started = cells, true
+		case strings.Trim(strings.Join(cells, ""), "-:") == "":
+		default:
+			tb.rows = append(tb.rows, cells)
+		}
+	}
+	return tb
+}
+
+func splitMDRow(line string) []string {
+	line = strings.TrimSpace(line)
+	line = strings.TrimPrefix(strings.TrimSuffix(line, "|"), "|")
+	parts := strings.Split(line, " | ")
+	for i := range parts {
+		parts[i] = strings.Trim(strings.TrimSpace(parts[i]), "*")
+	}
+	return parts
+}
+
+var (
+	trRE   = regexp.MustCompile(`(?s)<tr[^>]*>(.*?)</tr>`)
+	cellRE = regexp.MustCompile(`(?s)<t[hd][^>]*>(.*?)</t[hd]>`)
+	tagRE  = regexp.MustCompile(`<[^>]+>`)
+)
+
+// htmlTable returns the first table of the section with the given id.
+func htmlTable(t *testing.T, page, id string) table {
+	t.Helper()
+	i := strings.Index(page, `<section id="`+id+`"`)
+	if i < 0 {
+		t.Fatalf("html has no section %q", id)
+	}
+	sec := page[i:]
+	sec = sec[:strings.Index(sec, "</section>")]
+	start := strings.Index(sec, "<table")
+	if start < 0 {
+		t.Fatalf("section %q has no table", id)
+	}
+	sec = sec[start : strings.Index(sec, "</table>")+len("</table>")]
+	var tb table
+	for k, m := range trRE.FindAllStringSubmatch(sec, -1) {
+		var cells []string
+		for _, c := range cellRE.FindAllStringSubmatch(m[1], -1) {
+			cells = append(cells, strings.TrimSpace(html.UnescapeString(tagRE.ReplaceAllString(c[1], ""))))
+		}
+		if k == 0 {
+			tb.head = cells
+		} else {
+			tb.rows = append(tb.rows, cells)
+		}
+	}
+	return tb
+}
+
+func num(t *testing.T, s string) float64 {
+	t.Helper()
+	v, ok := parseNumber(s)
+	if !ok {
+		t.Fatalf("cannot read %q as a number", s)
+	}
+	return v
+}
+
+func jnum(t *testing.T, m map[string]any, key string) float64 {
+	t.Helper()
+	v, ok := m[key].(float64)
+	if !ok {
+		t.Fatalf("json field %q = %v, want a number", key, m[key])
+	}
+	return v
+}
+
+// Tolerances of the comparison: what the report's rounding allows.
+const (
+	moneyTol   = 0.5 + 1e-6    // whole currency units
+	percentTol = 0.0005 + 1e-9 // one decimal of a percentage, as a fraction
+	factorTol  = 0.00005 + 1e-12
+	gbpsTol    = 0.05 + 1e-9
+)
+
+func checkClose(t *testing.T, what string, got, want, tol float64) {
+	t.Helper()
+	if math.Abs(got-want) > tol {
+		t.Errorf("%s: report says %v, solve JSON says %v (tolerance %v)", what, got, want, tol)
+	}
+}
+
+// TestNumbersMatchResult reads the numbers back from both reports of the
+// demo and compares them with the JSON of the same Result (the schema of
+// `solve --json`, DESIGN.md §4), within the report's printed rounding.
+func TestNumbersMatchResult(t *testing.T) {
+	c, r := solvedDemo(t)
+	j := jsonOf(t, r)
+	md := render(t, c, r, Markdown)
+	page := render(t, c, r, HTML)
+
+	type reader struct {
+		name  string
+		table func(t *testing.T, heading, id string) table
+		keys  func(t *testing.T) table
+	}
+	readers := []reader{
+		{"markdown", func(t *testing.T, heading, _ string) table { return mdTable(t, md, heading) },
+			func(t *testing.T) table { return mdTable(t, md, "## Decision") }},
+		{"html", func(t *testing.T, _, id string) table { return htmlTable(t, page, id) },
+			func(t *testing.T) table { return htmlKeys(t, page) }},
+	}
+	for _, rd := range readers {
+		t.Run(rd.name, func(t *testing.T) {
+			// Key figures.
+			keys := rd.keys(t)
+			fig := map[string]string{}
+			for _, row := range keys.rows {
+				if len(row) >= 2 {
+					fig[row[0]] = row[1]
+				}
+			}
+			for label, key := range map[string]string{
+				"NPV of the plan": "objective", "NPV of doing nothing": "baseline_npv",
+				"Incremental NPV": "incremental_npv", "Total capex": "total_capex",
+			} {
+				checkClose(t, label, num(t, fig[label]), jnum(t, j, key), moneyTol)
+			}
+			if j["irr"] != nil {
+				checkClose(t, "IRR", num(t, fig["IRR"]), jnum(t, j, "irr"), percentTol)
+			}
+			if j["payback_year"] != nil {
+				checkClose(t, "payback year", num(t, fig["Payback year"]), jnum(t, j, "payback_year"), 0)
+			}
+			if j["profitability_index"] != nil {
+				checkClose(t, "profitability index", num(t, fig["Profitability index"]), jnum(t, j, "profitability_index"), 0.005+1e-9)
+			}
+
+			// Staged plan: every row in order, then the stage and total rows.
+			plan := rd.table(t, "## Staged plan", "plan")
+			jplan, _ := j["plan"].([]any)
+			var rows [][]string
+			for _, row := range plan.rows {
+				if len(row) == len(plan.head) && row[1] != "stage total" && row[0] != "Total" && row[0] != "Total capex" && !strings.HasPrefix(row[1], "stage total") {
+					rows = append(rows, row)
+				}
+			}
+			if len(rows) != len(jplan) {
+				t.Fatalf("plan table has %d purchase rows, JSON has %d", len(rows), len(jplan))
+			}
+			for i, jr := range jplan {
+				p := jr.(map[string]any)
+				row := rows[i]
+				checkClose(t, "plan year", num(t, row[plan.col("Order year")]), jnum(t, p, "year"), 0)
+				if got := row[plan.col("Link")]; got != p["link"] {
+					t.Errorf("plan row %d link %q, JSON %q", i, got, p["link"])
+				}
+				if got, want := row[plan.col("Item")], p["item"].(string); !strings.HasPrefix(got, want) {
+					t.Errorf("plan row %d item %q, JSON %q", i, got, want)
+				}
+				if p["kind"] != plans.KindBuild && row[plan.col("Vendor")] != p["vendor"] {
+					t.Errorf("plan row %d vendor %q, JSON %q", i, row[plan.col("Vendor")], p["vendor"])
+				}
+				checkClose(t, "plan units", num(t, row[plan.col("Units")]), jnum(t, p, "units"), 0)
+				checkClose(t, "plan Gbps", num(t, row[plan.col("Capacity added")]), jnum(t, p, "gbps"), gbpsTol)
+				checkClose(t, "plan capex", num(t, row[plan.col("Capex")]), jnum(t, p, "capex"), moneyTol)
+				checkClose(t, "plan in service", num(t, row[plan.col("In service")]), jnum(t, p, "in_service"), 0)
+			}
+
+			// Cash flow: every year and field the table shows.
+			cash := rd.table(t, "## Cash flow", "cashflow")
+			jcash, _ := j["cashflow"].([]any)
+			if len(cash.rows) != len(jcash)+1 {
+				t.Fatalf("cash-flow table has %d rows, want %d years and a total", len(cash.rows), len(jcash))
+			}
+			fields := []struct {
+				head, key string
+				tol       float64
+			}{
+				{"Revenue", "revenue", moneyTol}, {"Opex", "opex", moneyTol}, {"Capex", "capex", moneyTol},
+				{"Tax", "tax", moneyTol}, {"Salvage", "salvage", moneyTol}, {"Net", "net", moneyTol},
+				{"Discount factor", "discount_factor", factorTol}, {"PV", "pv", moneyTol},
+				{"Cumulative PV", "cumulative_pv", moneyTol}, {"vs doing nothing", "incremental", moneyTol},
+			}
+			sumPV := 0.0
+			for i, jr := range jcash {
+				cf := jr.(map[string]any)
+				row := cash.rows[i]
+				checkClose(t, "cash year", num(t, row[cash.col("Year")]), jnum(t, cf, "year"), 0)
+				for _, f := range fields {
+					k := cash.col(f.head)
+					if k < 0 {
+						t.Fatalf("cash-flow table has no column %q (head %q)", f.head, cash.head)
+					}
+					checkClose(t, "cash "+f.key+" "+row[0], num(t, row[k]), jnum(t, cf, f.key), f.tol)
+				}
+				sumPV += jnum(t, cf, "pv")
+			}
+			total := cash.rows[len(cash.rows)-1]
+			checkClose(t, "total PV", num(t, total[cash.col("PV")]), sumPV, moneyTol)
+			// DESIGN.md §4: objective = Σ cashflow[].pv.
+			checkClose(t, "total PV against objective", num(t, total[cash.col("PV")]), jnum(t, j, "objective"), moneyTol)
+		})
+	}
+}
+
+var keyRE = regexp.MustCompile(`(?s)<div class="label">(.*?)</div><div class="value">(.*?)</div>`)
+
+// htmlKeys reads the key-figure boxes of the HTML report as a table.
+func htmlKeys(t *testing.T, page string) table {
+	t.Helper()
+	var tb table
+	for _, m := range keyRE.FindAllStringSubmatch(page, -1) {
+		tb.rows = append(tb.rows, []string{html.UnescapeString(m[1]), html.UnescapeString(m[2])})
+	}
+	if len(tb.rows) == 0 {
+		t.Fatal("html has no key figures")
+	}
+	return tb
+}
+
+// TestHTMLSelfContained checks the page needs nothing from outside: no
+// scripts, no external links, images, style sheets or web fonts.
+func TestHTMLSelfContained(t *testing.T) {
+	c, r := solvedDemo(t)
+	page := render(t, c, r, HTML)
+	for _, bad := range []string{"<script", "<link", "<img", "@import", "@font-face", "url(", `src="`, `href="http`, `xlink:href="http`} {
+		if strings.Contains(page, bad) {
+			t.Errorf("html contains %q: the report must be self-contained", bad)
+		}
+	}
+	for _, want := range []string{"@media print", "@page", "break-inside:avoid"} {
+		if !strings.Contains(page, want) {
+			t.Errorf("html lacks %q (print layout)", want)
+		}
+	}
+}
+
+// sectionIDs are the sections of a report with a plan, in order (issue 6).
+var sectionIDs = []string{"decision", "charts", "plan", "cashflow", "why", "assumptions", "caution"}
+
+func checkSections(t *testing.T, page string, ids []string) {
+	t.Helper()
+	last := -1
+	for _, id := range ids {
+		i := strings.Index(page, `<section id="`+id+`"`)
+		if i < 0 {
+			t.Errorf("html has no section %q", id)
+			continue
+		}
+		if i < last {
+			t.Errorf("section %q is out of order", id)
+		}
+		last = i
+	}
+}
+
+func TestHTMLSectionsAndCharts(t *testing.T) {
+	c, r := solvedDemo(t)
+	page := render(t, c, r, HTML)
+	checkSections(t, page, sectionIDs)
+	if n := strings.Count(page, "<svg"); n < 4 {
+		t.Errorf("html has %d <svg> charts, want at least 4 (the demo has site coordinates)", n)
+	}
+	// Every chart axis is labelled with its unit.
+	for _, label := range []string{"Capex (" + r.Currency, "Cash (" + r.Currency, "Order year", "Latitude (degrees north)", "Longitude (degrees east)"} {
+		if !strings.Contains(page, label) {
+			t.Errorf("charts lack the axis label %q", label)
+		}
+	}
+	if !strings.Contains(page, "review") || !strings.Contains(page, "finance and engineering") {
+		t.Error("html lacks the caution about review by finance and engineering")
+	}
+}
+
+// TestNoCoordinates: without site coordinates the map is skipped with a
+// sentence saying so, and the other three charts remain.
+func TestNoCoordinates(t *testing.T) {
+	c, r := solvedDemo(t)
+	bare := *c
+	bare.Sites = append([]plans.Site(nil), c.Sites...)
+	for i := range bare.Sites {
+		bare.Sites[i].HasLatLon, bare.Sites[i].HasXY = false, false
+	}
+	page := render(t, &bare, r, HTML)
+	if n := strings.Count(page, "<svg"); n != 3 {
+		t.Errorf("html has %d <svg> charts, want 3 without coordinates", n)
+	}
+	if !strings.Contains(page, "no site coordinates") {
+		t.Error("html does not say why the map is missing")
+	}
+	md := render(t, &bare, r, Markdown)
+	if !strings.Contains(md, "no site coordinates") {
+		t.Error("markdown does not say why the map is missing")
+	}
+}
+
+// TestInfeasibleResult: a result without a plan still gives a report that
+// says why, with the assumptions and the caution, and no charts.
+func TestInfeasibleResult(t *testing.T) {
+	c, _ := solvedDemo(t)
+	r := &plans.Result{
+		Case: c.Name, Currency: c.Currency, Status: plans.StatusInfeasible,
+		Infeasibility: []plans.InfeasibilityRow{{
+			Kind: plans.InfeasibleDemand, Name: "HAV-KOR", Year: c.FirstYear + 2, Amount: 12.5,
+			Message: "committed traffic HAV-KOR cannot be carried in that year",
+		}},
+	}
+	page := render(t, c, r, HTML)
+	checkSections(t, page, []string{"decision", "infeasibility", "assumptions", "caution"})
+	if strings.Contains(page, "<svg") {
+		t.Error("html of an infeasible case draws charts")
+	}
+	if !strings.Contains(page, "no set of purchases meets the committed demands") || !strings.Contains(page, "12.5 Gbps") {
+		t.Error("html does not explain the infeasibility")
+	}
+	md := render(t, c, r, Markdown)
+	if !strings.Contains(md, "## What blocks a plan") || !strings.Contains(md, "HAV-KOR") {
+		t.Error("markdown does not explain the infeasibility")
+	}
+}
+
+func TestParseFormat(t *testing.T) {
+	for _, tt := range []struct {
+		in   string
+		want Format
+		ok   bool
+	}{{"html", HTML, true}, {"md", Markdown, true}, {"Markdown", Markdown, true}, {"pdf", 0, false}} {
+		got, err := ParseFormat(tt.in)
+		if (err == nil) != tt.ok || (tt.ok && got != tt.want) {
+			t.Errorf("ParseFormat(%q) = %v, %v; want %v, ok %v", tt.in, got, err, tt.want, tt.ok)
+		}
+	}
+}
+
+func TestOrderBy(t *testing.T) {
+	c := &plans.Case{ReadyByMonth: 9}
+	c.Items = []plans.Item{{ID: "x", Vendor: -1, LeadMonths: 3}, {ID: "y", Vendor: -1, LeadMonths: 14}, {ID: "z", Vendor: -1, LeadMonths: 9}}
+	// DESIGN.md §2 lead-time rule: an order at the start of year t with lead
+	// m serves from t + max(0, ⌈(m − c)/12⌉); the latest order month keeps
+	// the capacity live by the end of month c of that year.
+	for _, tt := range []struct {
+		item       string
+		year, serv int
+		want       string
+	}{
+		{"x", 2027, 2027, "Jul 2027"}, // 3 months before the end of September
+		{"y", 2027, 2028, "Aug 2027"}, // 14 months before the end of September 2028
+		{"z", 2027, 2027, "Jan 2027"}, // 9 months: order at the start of the year
+	} {
+		got := orderBy(c, plans.PlanRow{Year: tt.year, InService: tt.serv, Item: tt.item, Kind: plans.KindModule})
+		if got != tt.want {
+			t.Errorf("orderBy(%s, %d) = %q, want %q", tt.item, tt.year, got, tt.want)
+		}
+	}
+}
+
