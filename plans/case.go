@@ -79,9 +79,6 @@ type Case struct {
 	// by index into Vendors. Items are in catalog order, then file order.
 	Vendors []Vendor
 	Items   []Item
-
-	// discount holds DF_t for each year index (derived at load).
-	discount []float64
 }
 
 // Budget holds the capex caps of a case, in case currency. A cap applies to
@@ -398,11 +395,9 @@ func inServiceDelay(leadMonths, readyBy int) int {
 }
 
 // DiscountFactor returns DF for year index i: (1+r)^−(i+1) at end of year,
-// (1+r)^−(i+0.5) in mid-year mode.
+// (1+r)^−(i+0.5) in mid-year mode. It is computed from DiscountRate on each
+// call (nothing cached), so a copy of a Case with another rate is consistent.
 func (c *Case) DiscountFactor(i int) float64 {
-	if c.discount != nil {
-		return c.discount[i]
-	}
 	return discountFactor(c.DiscountRate, c.MidYear, i)
 }
 

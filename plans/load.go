@@ -218,12 +218,6 @@ func (d *decoder) decodeCase(root *catalog.Table) *Case {
 		c.Demands = append(c.Demands, dm)
 		d.demandAt = append(d.demandAt, t.Pos(""))
 	}
-	if horizonOK {
-		c.discount = make([]float64, c.Horizon)
-		for i := range c.discount {
-			c.discount[i] = discountFactor(c.DiscountRate, c.MidYear, i)
-		}
-	}
 	return c
 }
 
