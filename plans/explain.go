@@ -9,19 +9,31 @@ import (
 	"netstage/mip"
 )
 
-// explainInfeasible solves the elastic model of c (committed demand,
-// budgets and slots may give, at a weighted cost; BuildOptions.elastic) and
-// lists every limit that had to give, plus the links that are full at their
-// largest possible capacity in the years where committed demand falls
-// short. limit bounds the elastic search.
+// explainInfeasible solves elastic versions of c's model and lists every
+// limit that had to give: first with committed demand kept and budgets and
+// slots allowed to grow (a plan that more money or slots would make
+// possible); when even that has no solution, with committed demand allowed
+// to fall short while money is nearly free, adding the links that are full
+// at their largest possible capacity in the years where demand falls short.
+// limit bounds the elastic searches together.
 func explainInfeasible(ctx context.Context, c *Case, limit time.Duration) ([]InfeasibilityRow, error) {
-	m, err := BuildModel(c, BuildOptions{elastic: true})
-	if err != nil {
-		return nil, err
-	}
-	mr, err := mipSolve(ctx, m.LP, mip.Settings{TimeLimit: limit})
-	if err != nil {
-		return nil, fmt.Errorf("plans: %w", err)
+	// Stage 1: committed demand hard; can more budget or slots make it
+	// feasible? Stage 2 (when not): demand gives, money is nearly free.
+	var m *Model
+	var mr mip.Result
+	for _, demandSoft := range []bool{false, true} {
+		var err error
+		m, err = BuildModel(c, BuildOptions{elastic: true, elasticDemand: demandSoft})
+		if err != nil {
+			return nil, err
+		}
+		mr, err = mipSolve(ctx, m.LP, mip.Settings{TimeLimit: limit / 2})
+		if err != nil {
+			return nil, fmt.Errorf("plans: %w", err)
+		}
+		if mr.X != nil {
+			break
+		}
 	}
 	if mr.X == nil {
 		return []InfeasibilityRow{{Message: "no plan meets the committed demands, unit limits and budgets; the elastic model found no explanation within its limit (" + mr.Status.String() + ")"}}, nil
@@ -37,6 +49,9 @@ func explainInfeasible(ctx context.Context, c *Case, limit time.Duration) ([]Inf
 		r := InfeasibilityRow{Kind: s.kind, Name: s.name, Amount: v}
 		if s.year >= 0 {
 			r.Year = c.Year(s.year)
+		}
+		if s.kind != InfeasibleDemand && s.kind != InfeasibleLink && x[s.col]*s.perUnit < explainMoneyTol {
+			continue
 		}
 		switch s.kind {
 		case InfeasibleDemand:
@@ -84,6 +99,9 @@ func explainInfeasible(ctx context.Context, c *Case, limit time.Duration) ([]Inf
 	}
 	return rows, nil
 }
+
+// explainMoneyTol: budget slacks under one currency unit are noise.
+const explainMoneyTol = 1
 
 // InfeasibleLinkRow describes a link that is full at its largest possible
 // capacity (Gbps per direction) in a year.

@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"math"
 	"sort"
+	"strings"
 
 	"netstage/lp"
 )
@@ -165,18 +166,20 @@ type BuildOptions struct {
 	// baseline builds the do-nothing LP: no purchases, committed traffic
 	// that cannot be carried becomes shortfall charged the SLA penalty.
 	baseline bool
-	// elastic adds slacks to committed demand, budget and slot rows and
-	// minimises their weighted sum (infeasibility explanation).
-	elastic bool
+	// elastic adds slacks to budget and slot rows (and, with
+	// elasticDemand, to committed demand) and minimises their weighted sum
+	// (infeasibility explanation).
+	elastic, elasticDemand bool
 }
 
-// Elastic slack weights: one Gbps of committed demand dropped weighs as much
-// as one percent of the year's budget or one slot. A choice, not a fact:
-// the explanation lists every slack that is used.
+// Elastic slack weights (per Gbps of committed demand, per thousand of
+// budget, per slot). In the first elastic stage committed demand is hard
+// and budgets and slots give; in the second, demand gives and budgets and
+// slots are nearly free, so what is left short is what no money can buy.
 const (
 	elasticDemandWeight = 1.0
-	elasticBudgetWeight = 100.0 // per whole budget (so 1 % ≈ 1 Gbps)
-	elasticSlotWeight   = 1.0
+	elasticLimitWeight  = 1.0
+	elasticFreeWeight   = 1e-6
 )
 
 // BuildModel builds the planning MIP of c (see Model for its rows and
@@ -307,7 +310,22 @@ func BuildModel(c *Case, opts BuildOptions) (*Model, error) {
 	if !opts.NoCutSets && !opts.baseline && !opts.elastic {
 		m.addCutSets()
 	}
+	uniqueNames(m.LP.ColName)
+	uniqueNames(m.LP.RowName)
 	return m, nil
+}
+
+// uniqueNames makes names distinct (ids joined by "_" could collide) by
+// suffixing a repeated name with its index, as MPS readers need.
+func uniqueNames(names []string) {
+	seen := make(map[string]bool, len(names))
+	for i, n := range names {
+		if seen[n] {
+			n = fmt.Sprintf("%s#%d", n, i)
+			names[i] = n
+		}
+		seen[n] = true
+	}
 }
 
 // arcEnds returns the sites an arc leaves and enters.
@@ -420,7 +438,7 @@ func (m *Model) addPurchases() {
 			it := &c.Items[i]
 			o := option{link: l, item: i, col: make([]int, T), inService: make([]int, T), lastOrder: -1}
 			maxUnits := it.MaxUnits
-			if link.Slots != UnlimitedSlots && it.SlotsPerUnit > 0 {
+			if link.Slots != UnlimitedSlots && it.SlotsPerUnit > 0 && !m.opts.elastic {
 				maxUnits = min(maxUnits, link.Slots/it.SlotsPerUnit)
 			}
 			coef := make([]float64, T)
@@ -693,48 +711,48 @@ func (m *Model) addShortfall() {
 }
 
 // addElastic turns the model into a feasibility problem with slacks on
-// committed demand, budgets and slots, minimising their weighted sum.
+// budgets and slots and, with elasticDemand, on committed demand,
+// minimising their weighted sum.
 func (m *Model) addElastic() {
 	c := m.Case
-	costMode := c.CostMode()
 	for j := range m.LP.Obj {
 		m.LP.Obj[j] = 0
 	}
-	for k, d := range c.Demands {
-		for t := 0; t < c.Horizon; t++ {
-			j := m.served[k][t]
-			need := m.LP.ColLower[j]
-			if need <= 0 {
-				continue
+	limitWeight := elasticLimitWeight
+	if m.opts.elasticDemand {
+		limitWeight = elasticFreeWeight
+		for k, d := range c.Demands {
+			for t := 0; t < c.Horizon; t++ {
+				j := m.served[k][t]
+				need := m.LP.ColLower[j]
+				if need <= 0 {
+					continue
+				}
+				m.LP.ColLower[j] = 0
+				s := m.LP.AddCol(fmt.Sprintf("es_%s_%d", d.ID, c.Year(t)), elasticDemandWeight, 0, need)
+				m.LP.AddRow(fmt.Sprintf("ecommit_%s_%d", d.ID, c.Year(t)), need, lp.Inf, []int{j, s}, []float64{1, 1})
+				m.elastic = append(m.elastic, elasticSlack{col: s, kind: InfeasibleDemand, name: d.ID, year: t, perUnit: 1})
 			}
-			m.LP.ColLower[j] = 0
-			s := m.LP.AddCol(fmt.Sprintf("es_%s_%d", d.ID, c.Year(t)), elasticDemandWeight, 0, need)
-			m.LP.AddRow(fmt.Sprintf("ecommit_%s_%d", d.ID, c.Year(t)), need, lp.Inf, []int{j, s}, []float64{1, 1})
-			m.elastic = append(m.elastic, elasticSlack{col: s, kind: InfeasibleDemand, name: d.ID, year: t, perUnit: 1})
 		}
 	}
-	_ = costMode
 	for tau, r := range m.budgetRow {
 		if r < 0 {
 			continue
 		}
-		cap := m.LP.RowUpper[r] // thousands
-		w := elasticBudgetWeight / math.Max(cap, 1)
-		s := m.LP.AddCol(fmt.Sprintf("eb_%d", c.Year(tau)), w, 0, lp.Inf)
+		s := m.LP.AddCol(fmt.Sprintf("eb_%d", c.Year(tau)), limitWeight, 0, lp.Inf)
 		m.LP.SetCoef(r, s, -1)
 		m.elastic = append(m.elastic, elasticSlack{col: s, kind: InfeasibleBudget, name: fmt.Sprintf("%d", c.Year(tau)), year: tau, perUnit: moneyScale})
 	}
 	if r := m.cumRow; r >= 0 {
-		cap := m.LP.RowUpper[r]
-		s := m.LP.AddCol("eb_total", elasticBudgetWeight/math.Max(cap, 1), 0, lp.Inf)
+		s := m.LP.AddCol("eb_total", limitWeight, 0, lp.Inf)
 		m.LP.SetCoef(r, s, -1)
-		m.elastic = append(m.elastic, elasticSlack{col: s, kind: InfeasibleBudget, name: "cumulative", year: c.Horizon - 1, perUnit: moneyScale})
+		m.elastic = append(m.elastic, elasticSlack{col: s, kind: InfeasibleBudget, name: "cumulative", year: -1, perUnit: moneyScale})
 	}
 	for i, name := range m.LP.RowName {
-		if len(name) > 6 && name[:6] == "slots_" {
-			s := m.LP.AddCol("e"+name, elasticSlotWeight, 0, lp.Inf)
+		if strings.HasPrefix(name, "slots_") {
+			s := m.LP.AddCol("e"+name, limitWeight, 0, lp.Inf)
 			m.LP.SetCoef(i, s, -1)
-			m.elastic = append(m.elastic, elasticSlack{col: s, kind: InfeasibleLink, name: name[6:], year: -1, perUnit: 1})
+			m.elastic = append(m.elastic, elasticSlack{col: s, kind: InfeasibleLink, name: name[len("slots_"):], year: -1, perUnit: 1})
 		}
 	}
 }
