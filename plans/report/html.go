@@ -129,12 +129,12 @@ const htmlSource = `<!DOCTYPE html>
 
 <section id="cashflow">
 <h2>Cash flow</h2>
-<p class="note">{{.Currency}}, undiscounted except the present value (PV) columns. Net = revenue − opex − capex − tax{{if .HasPenalty}} − SLA penalty{{end}} + salvage. Against doing nothing: the year's net minus the do-nothing network's net.</p>
+<p class="note">{{.Currency}}, undiscounted except the present value (PV) columns. Net = revenue − opex − capex − tax{{if .HasPenalty}} − SLA penalty{{end}} + salvage. vs doing nothing: the year's net minus the net of the do-nothing network. Budgets are in the staged plan and the assumptions.</p>
 <div class="wide"><table>
-<thead><tr><th>Year</th><th class="num">Revenue</th><th class="num">Opex</th><th class="num">Capex</th><th class="num">Tax</th>{{if .HasPenalty}}<th class="num">SLA penalty</th>{{end}}<th class="num">Salvage</th><th class="num">Net</th><th class="num">Discount factor</th><th class="num">PV</th><th class="num">Cumulative PV</th><th class="num">Budget</th><th class="num">Against doing nothing</th></tr></thead>
+<thead><tr><th>Year</th><th class="num">Revenue</th><th class="num">Opex</th><th class="num">Capex</th><th class="num">Tax</th>{{if .HasPenalty}}<th class="num">SLA penalty</th>{{end}}<th class="num">Salvage</th><th class="num">Net</th><th class="num">Discount factor</th><th class="num">PV</th><th class="num">Cumulative PV</th><th class="num">vs doing nothing</th></tr></thead>
 <tbody>
-{{range .Cash}}<tr><td>{{.Year}}</td><td class="num">{{.Revenue}}</td><td class="num">{{.Opex}}</td><td class="num">{{.Capex}}</td><td class="num">{{.Tax}}</td>{{if $.HasPenalty}}<td class="num">{{.Penalty}}</td>{{end}}<td class="num">{{.Salvage}}</td><td class="num">{{.Net}}</td><td class="num">{{.DF}}</td><td class="num">{{.PV}}</td><td class="num">{{.CumPV}}</td><td class="num">{{.Budget}}</td><td class="num">{{.Incremental}}</td></tr>
-{{end}}{{with .CashTotal}}<tr class="total"><td>{{.Year}}</td><td class="num">{{.Revenue}}</td><td class="num">{{.Opex}}</td><td class="num">{{.Capex}}</td><td class="num">{{.Tax}}</td>{{if $.HasPenalty}}<td class="num">{{.Penalty}}</td>{{end}}<td class="num">{{.Salvage}}</td><td class="num">{{.Net}}</td><td></td><td class="num">{{.PV}}</td><td></td><td></td><td class="num">{{.Incremental}}</td></tr>{{end}}
+{{range .Cash}}<tr><td>{{.Year}}</td><td class="num">{{.Revenue}}</td><td class="num">{{.Opex}}</td><td class="num">{{.Capex}}</td><td class="num">{{.Tax}}</td>{{if $.HasPenalty}}<td class="num">{{.Penalty}}</td>{{end}}<td class="num">{{.Salvage}}</td><td class="num">{{.Net}}</td><td class="num">{{.DF}}</td><td class="num">{{.PV}}</td><td class="num">{{.CumPV}}</td><td class="num">{{.Incremental}}</td></tr>
+{{end}}{{with .CashTotal}}<tr class="total"><td>{{.Year}}</td><td class="num">{{.Revenue}}</td><td class="num">{{.Opex}}</td><td class="num">{{.Capex}}</td><td class="num">{{.Tax}}</td>{{if $.HasPenalty}}<td class="num">{{.Penalty}}</td>{{end}}<td class="num">{{.Salvage}}</td><td class="num">{{.Net}}</td><td></td><td class="num">{{.PV}}</td><td></td><td class="num">{{.Incremental}}</td></tr>{{end}}
 </tbody></table></div>
 </section>
 

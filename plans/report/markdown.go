@@ -114,19 +114,19 @@ func writeMarkdown(w io.Writer, v *view) error {
 		if v.HasPenalty {
 			penalty = " − SLA penalty"
 		}
-		m.printf("%s, undiscounted except the present value (PV) columns. Net = revenue − opex − capex − tax%s + salvage. Against doing nothing: the year's net minus the do-nothing network's net.\n\n", v.Currency, penalty)
+		m.printf("%s, undiscounted except the present value (PV) columns. Net = revenue − opex − capex − tax%s + salvage. vs doing nothing: the year's net minus the net of the do-nothing network. Budgets are in the staged plan and the assumptions.\n\n", v.Currency, penalty)
 		cols := []string{"Year", ">Revenue", ">Opex", ">Capex", ">Tax"}
 		if v.HasPenalty {
 			cols = append(cols, ">SLA penalty")
 		}
-		cols = append(cols, ">Salvage", ">Net", ">Discount factor", ">PV", ">Cumulative PV", ">Budget", ">Against doing nothing")
+		cols = append(cols, ">Salvage", ">Net", ">Discount factor", ">PV", ">Cumulative PV", ">vs doing nothing")
 		m.head(cols...)
 		cash := func(r cashRow, bold bool) {
 			cells := []string{r.Year, r.Revenue, r.Opex, r.Capex, r.Tax}
 			if v.HasPenalty {
 				cells = append(cells, r.Penalty)
 			}
-			cells = append(cells, r.Salvage, r.Net, r.DF, r.PV, r.CumPV, r.Budget, r.Incremental)
+			cells = append(cells, r.Salvage, r.Net, r.DF, r.PV, r.CumPV, r.Incremental)
 			if bold {
 				for i, c := range cells {
 					if c != "" {
