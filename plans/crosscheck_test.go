@@ -1,0 +1,135 @@
+package plans
+
+import (
+	"bytes"
+	"context"
+	"fmt"
+	"os"
+	"os/exec"
+	"path/filepath"
+	"regexp"
+	"strconv"
+	"testing"
+
+	"netstage/lp"
+)
+
+// TestCrossCheckCBC solves the demo and synthetic cases with netstage at a
+// relative gap of 1e-9, writes the exact model (Export) as MPS, solves that
+// file with CBC (source: reference solver CBC 2.10, Debian coinor-cbc,
+// REFERENCES.md §1) and requires the same optimum as mps_objective within
+// 1e-6 relative (DESIGN.md §4: checks against other solvers use 1e-9 gaps).
+func TestCrossCheckCBC(t *testing.T) {
+	cbc, err := exec.LookPath("cbc")
+	if err != nil {
+		t.Skip("cbc not installed (Debian package coinor-cbc): cross-check against CBC skipped")
+	}
+	type namedCase struct {
+		name string
+		load func() (*Case, error)
+	}
+	cases := []namedCase{{"demo", func() (*Case, error) { c, _, err := LoadDemo(); return c, err }}}
+	n := 20
+	if testing.Short() {
+		n = 4
+	}
+	for seed := 1; seed <= n; seed++ {
+		sites, years := 3+seed%4, 2+seed%3
+		cases = append(cases, namedCase{fmt.Sprintf("synthetic-%d-sites-%d-years-seed-%d", sites, years, seed), func() (*Case, error) {
+			return loadSynthetic(t, sites, years, int64(seed))
+		}})
+	}
+	for _, nc := range cases {
+		t.Run(nc.name, func(t *testing.T) {
+			c, err := nc.load()
+			if err != nil {
+				t.Fatal(err)
+			}
+			res, err := Solve(context.Background(), c, SolveOptions{Gap: 1e-9})
+			if err != nil {
+				t.Fatal(err)
+			}
+			model, err := Export(c, BuildOptions{})
+			if err != nil {
+				t.Fatal(err)
+			}
+			path := filepath.Join(t.TempDir(), "model.mps")
+			var buf bytes.Buffer
+			if err := lp.WriteMPS(&buf, model); err != nil {
+				t.Fatal(err)
+			}
+			if err := os.WriteFile(path, buf.Bytes(), 0o644); err != nil {
+				t.Fatal(err)
+			}
+			status, obj, err := runCBC(cbc, path)
+			if err != nil {
+				t.Fatal(err)
+			}
+			switch res.Status {
+			case StatusOptimal:
+				if status != "optimal" {
+					t.Fatalf("netstage optimal, CBC %s", status)
+				}
+				t.Logf("NPV %.2f, %d purchases, %d nodes; CBC %.2f", *res.Objective, len(res.Plan), res.Stats.Nodes, -obj)
+				if !near(*res.MPSObjective, obj, 1e-6) {
+					t.Errorf("mps_objective %.6f, CBC %.6f", *res.MPSObjective, obj)
+				}
+				checkInvariants(t, c, res)
+			case StatusInfeasible:
+				if status != "infeasible" {
+					t.Errorf("netstage infeasible, CBC %s", status)
+				}
+			default:
+				t.Errorf("netstage status %s", res.Status)
+			}
+		})
+	}
+}
+
+var (
+	cbcObjective = regexp.MustCompile(`(?m)^Objective value:\s*(\S+)`)
+	cbcResult    = regexp.MustCompile(`(?m)^Result - (.*)$`)
+)
+
+// runCBC solves an MPS file with CBC to a 1e-9 gap and returns its status
+// ("optimal", "infeasible" or CBC's own words) and objective.
+func runCBC(cbc, path string) (string, float64, error) {
+	out, err := exec.Command(cbc, path, "-ratioGap", "1e-9", "-allowableGap", "1e-9", "-solve", "-quit").CombinedOutput()
+	if err != nil {
+		return "", 0, fmt.Errorf("cbc: %v\n%s", err, out)
+	}
+	r := cbcResult.FindSubmatch(out)
+	if r == nil {
+		return "", 0, fmt.Errorf("cbc: no result line in\n%s", out)
+	}
+	switch s := string(r[1]); {
+	case regexp.MustCompile(`^Optimal`).MatchString(s):
+		m := cbcObjective.FindSubmatch(out)
+		if m == nil {
+			return "", 0, fmt.Errorf("cbc: no objective in\n%s", out)
+		}
+		v, err := strconv.ParseFloat(string(m[1]), 64)
+		return "optimal", v, err
+	case regexp.MustCompile(`(?i)infeasible`).MatchString(s):
+		return "infeasible", 0, nil
+	default:
+		return s, 0, nil
+	}
+}
+
+// loadSynthetic writes the synthetic case of the generator in package
+// plans (synth.go) to a temporary folder and loads it.
+func loadSynthetic(t testing.TB, sites, years int, seed int64) (*Case, error) {
+	files, err := Synthetic(sites, years, seed)
+	if err != nil {
+		return nil, err
+	}
+	dir := t.TempDir()
+	for _, f := range files {
+		if err := os.WriteFile(filepath.Join(dir, f.Name), f.Data, 0o644); err != nil {
+			return nil, err
+		}
+	}
+	c, _, err := Load(filepath.Join(dir, files[0].Name))
+	return c, err
+}
