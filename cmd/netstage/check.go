@@ -184,8 +184,8 @@ func writeCaseSummary(w io.Writer, c *plans.Case, demo bool) {
 				if it.Kind == plans.Lease {
 					price = "no capex"
 				}
-				fmt.Fprintf(tw, "      %s\t%s\t%g Gbps\t%s\topex %s/yr\tlead %d mo\tfits %d links\n",
-					it.ID, it.Kind, it.Gbps, price, money(it.Opex), it.LeadMonths, fits)
+				fmt.Fprintf(tw, "      %s\t%s\t%g Gbps\t%s\topex %s/yr\tlead %d mo\tfits %d/%d links\n",
+					it.ID, it.Kind, it.Gbps, price, money(it.Opex), it.LeadMonths, fits, len(c.Links))
 			}
 			tw.Flush()
 		}
