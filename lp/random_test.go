@@ -3,6 +3,7 @@ package lp
 import (
 	"context"
 	"errors"
+	"fmt"
 	"math"
 	"math/rand"
 	"testing"
@@ -89,7 +90,13 @@ func randomModel(rng *rand.Rand, boxed bool) *Model {
 // gonumSolve solves m with gonum's dense simplex after converting it to
 // general form (G·x ≤ h, A·x = b, x free). It returns the optimum in m's
 // sense, or the gonum error.
-func gonumSolve(m *Model) (float64, error) {
+func gonumSolve(m *Model) (f float64, err error) {
+	defer func() {
+		// gonum panics on some shapes (more equations than variables).
+		if p := recover(); p != nil {
+			err = fmt.Errorf("gonum: %v", p)
+		}
+	}()
 	n := m.NumCols()
 	var gRows [][]float64
 	var h []float64
@@ -153,7 +160,7 @@ func gonumSolve(m *Model) (float64, error) {
 		return d
 	}
 	cNew, aNew, bNew := glp.Convert(c, toDense(gRows), h, toDense(aRows), b)
-	f, _, err := glp.Simplex(cNew, aNew, bNew, 1e-10, nil)
+	f, _, err = glp.Simplex(cNew, aNew, bNew, 1e-10, nil)
 	if err != nil {
 		return 0, err
 	}
