@@ -102,7 +102,7 @@ func (s *search) rootCuts(r lp.Result) lp.Result {
 		if r.Status != lp.Optimal {
 			return r
 		}
-		s.ageCuts(r, false)
+		s.ageCuts(false)
 		if !s.set.NoHeuristics {
 			s.simpleRounding(r.X)
 		}
@@ -118,7 +118,7 @@ func (s *search) rootCuts(r lp.Result) lp.Result {
 	}
 	// Leave only binding cuts in the LP for the tree.
 	if r.Status == lp.Optimal {
-		s.ageCuts(r, true)
+		s.ageCuts(true)
 		r = s.lpSolve(inf, 0)
 	}
 	return r
@@ -142,13 +142,16 @@ func (s *search) addFound(found []*cut, c *cut, x []float64) []*cut {
 // ageCuts increases the age of cuts whose slack is basic and removes those
 // past cutAgeLimit (all slack ones when final) from the LP. Pool entries
 // stay for later rounds.
-func (s *search) ageCuts(r lp.Result, final bool) {
+func (s *search) ageCuts(final bool) {
+	// The LP's own basis: rows may have been renumbered since the last
+	// solve.
+	basis := s.lps.Basis()
 	var drop []int
 	for _, c := range s.pool {
 		if c.lpRow < 0 {
 			continue
 		}
-		if r.Basis.Rows[c.lpRow] == lp.Basic {
+		if basis.Rows[c.lpRow] == lp.Basic {
 			c.age++
 		} else {
 			c.age = 0
