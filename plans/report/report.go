@@ -41,13 +41,27 @@ func ParseFormat(s string) (Format, error) {
 	return 0, fmt.Errorf("report: unknown format %q (allowed: html, md)", s)
 }
 
+// Options adds to a report what the Result does not carry. The zero value
+// adds nothing.
+type Options struct {
+	// InputWarnings are the warnings of loading the case (legal but
+	// suspicious inputs); the report lists them with the solver's warnings.
+	InputWarnings []string
+}
+
 // Write renders the report of the solved plan r for the case c in format f.
 // It fails only when c or r is nil, a chart cannot be drawn, or w fails.
 func Write(w io.Writer, c *plans.Case, r *plans.Result, f Format) error {
+	return WriteWith(w, c, r, f, Options{})
+}
+
+// WriteWith is Write with options.
+func WriteWith(w io.Writer, c *plans.Case, r *plans.Result, f Format, opts Options) error {
 	v, err := buildView(c, r)
 	if err != nil {
 		return err
 	}
+	v.Warnings = append(append([]string(nil), opts.InputWarnings...), v.Warnings...)
 	bw := bufio.NewWriter(w)
 	switch f {
 	case HTML:

@@ -504,4 +504,3 @@ func TestOrderBy(t *testing.T) {
 		}
 	}
 }
-
