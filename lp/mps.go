@@ -42,6 +42,9 @@ var (
 	ErrMPSDuplicat = errors.New("duplicate name")
 	ErrMPSMarker   = errors.New("bad integer marker")
 	ErrMPSEnd      = errors.New("missing ENDATA")
+	// ErrMPSUnsupported marks extensions beyond linear and integer
+	// programs (SOS, quadratic and conic sections, semi-continuous bounds).
+	ErrMPSUnsupported = errors.New("unsupported MPS extension")
 )
 
 // MPSError is a malformed MPS file: the 1-based line, the name involved
@@ -130,6 +133,8 @@ func ReadMPS(r io.Reader, format MPSFormat) (*Model, error) {
 			case "ROWS", "COLUMNS", "RHS", "RANGES", "BOUNDS":
 			case "ENDATA":
 				ended = true
+			case "SOS", "QUADOBJ", "QSECTION", "QMATRIX", "QCMATRIX", "CSECTION", "INDICATORS":
+				return nil, p.errf(section, ErrMPSUnsupported)
 			default:
 				return nil, p.errf(section, ErrMPSSection)
 			}
@@ -426,6 +431,8 @@ func (p *mpsParser) bound(line string) error {
 	case "UP", "LO", "FX", "LI", "UI":
 		needsValue = true
 	case "FR", "MI", "PL", "BV":
+	case "SC":
+		return p.errf(f[0], ErrMPSUnsupported)
 	default:
 		return p.errf(f[0], ErrMPSBound)
 	}
