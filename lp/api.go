@@ -94,10 +94,12 @@ type Settings struct {
 	// OptimalityTol is the largest reduced-cost sign violation accepted
 	// (default 1e-7).
 	OptimalityTol float64
-	// ObjectiveCutoff, when non-zero in a minimisation (HasCutoff set),
-	// lets the dual simplex stop with status ObjectiveCutoff as soon as its
-	// objective (a lower bound on the optimum) exceeds it. Branch-and-bound
-	// uses it to drop nodes early.
+	// ObjectiveCutoff, when HasCutoff is set, lets the dual simplex stop
+	// with status ObjectiveCutoff as soon as its objective (a bound on the
+	// optimum) is worse than ObjectiveCutoff: above it for a minimisation,
+	// below it for a maximisation; model units, constant included.
+	// Branch-and-bound uses it to drop nodes early. It is honoured only by
+	// warm re-solves, whose costs are not perturbed.
 	ObjectiveCutoff float64
 	HasCutoff       bool
 	// NoScaling turns off geometric equilibration.

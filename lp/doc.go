@@ -10,6 +10,51 @@
 // form: each row gets a slack and every variable keeps its own bounds, so
 // branch-and-bound can change bounds and re-solve from the previous basis.
 //
+// # Variables and signs
+//
+// A Solver numbers the columns 0 … n−1 and the row slacks n … n+m−1; the
+// slack of row i is its activity s_i = a_i·x, so the constraints read
+// [A | −I]·(x, s) = 0 with rowLower ≤ s ≤ rowUpper. Results are in the
+// model's own units and sense: ReducedCost = c − Aᵀ·Dual, and Dual[i] is the
+// change of the optimal objective per unit increase of row i's active bound.
+// For a minimisation, a column at its lower bound has ReducedCost ≥ 0 and a
+// binding ≥ row has Dual ≥ 0; for a maximisation both signs flip.
+// Solver.TableauRow returns rows of B⁻¹[A | −I] for cutting planes.
+//
+// # Method
+//
+// The dual simplex method is the main engine (after a bound change or a new
+// row the old basis stays dual feasible). A basis that is not dual feasible
+// is first repaired by flipping boxed variables to the bound their reduced
+// cost asks for; otherwise by solving, with the same dual simplex, an
+// auxiliary problem whose bounds are boxes around zero. Costs are perturbed
+// slightly on a cold start against dual degeneracy, and the primal simplex
+// method cleans up once the perturbation is removed; it also finds unbounded
+// rays. Ratio tests are Harris' two-pass tests; leaving rows are priced by
+// dual steepest edge. The basis is factorised as sparse LU (singletons
+// first, then Markowitz pivoting with threshold 0.1) with product-form
+// updates and a refactorisation every 100 updates or when the pivot seen
+// from the row and from the column disagree. The model is scaled by
+// geometric row/column passes rounded to powers of two. Memory is
+// proportional to the nonzeros of A and of the factors; no dense m×n array
+// is formed.
+//
+// Literature: Koberstein, The dual simplex method, techniques for a fast and
+// stable implementation (PhD thesis, Paderborn, 2005); Forrest and Goldfarb,
+// Steepest-edge simplex algorithms for linear programming (Math.
+// Programming 57, 1992); Harris, Pivot selection methods of the Devex LP
+// code (Math. Programming 5, 1973); Markowitz, The elimination form of the
+// inverse and its application to linear programming (Management Science 3,
+// 1957).
+//
+// # MPS
+//
+// ReadMPS reads fixed and free MPS, including RANGES, every bound type,
+// OBJSENSE and integer MARKER sections; the objective constant is minus the
+// RHS of the objective row, as CLP and HiGHS read it. Integer columns without
+// bounds are general integers in [0, +∞) (some readers make them binary, so
+// WriteMPS writes explicit bounds for every integer column).
+//
 // The package knows nothing of networks or money; see package mip for integer
 // programs built on it.
 package lp

@@ -340,7 +340,7 @@ func (s *Solver) run(ctx context.Context) Status {
 				return s.unboundedOrInfeasible(lim)
 			}
 		}
-		st := s.dualSimplex(lim, perturbed)
+		st := s.dualSimplex(lim, s.set.HasCutoff && !perturbed)
 		if st != Optimal {
 			if st == Infeasible && perturbed {
 				// Infeasibility does not depend on costs; still, confirm
@@ -570,13 +570,13 @@ func (s *Solver) cutoffScaled() float64 {
 }
 
 // dualSimplex runs dual simplex iterations from a dual feasible basis
-// until primal feasibility (Optimal), dual unboundedness (Infeasible), the
-// cutoff or a limit.
-func (s *Solver) dualSimplex(lim *limits, perturbed bool) Status {
+// until primal feasibility (Optimal), dual unboundedness (Infeasible), a
+// limit, or (with useCutoff, only for the true costs) an objective above
+// Settings.ObjectiveCutoff.
+func (s *Solver) dualSimplex(lim *limits, useCutoff bool) Status {
 	ptol, dtol := s.primalTol(), s.dualTol()
 	m, n := s.m, s.n
 	rho, row, alpha, tau := s.rho, s.alphaRow, s.alphaCol, s.tau
-	useCutoff := s.set.HasCutoff && !perturbed
 	cutoff := s.cutoffScaled()
 	for {
 		if st := s.checkLimits(lim); st != StatusUnknown {
