@@ -67,16 +67,42 @@ func factorize(m int, col columnFunc) (f *factor, badCols, freeRows []int) {
 	rowIdx := make([][]int, m)
 	rowVal := make([][]float64, m)
 	colRows := make([][]int, m)
+	// Carve the rows and columns out of shared arrays, each with exactly
+	// its length as capacity: only rows and columns that fill in grow.
+	rowCount := make([]int, m)
+	nnz := 0
 	for p := 0; p < m; p++ {
 		idx, val := col(p)
+		for k, i := range idx {
+			if val[k] != 0 {
+				rowCount[i]++
+				nnz++
+			}
+		}
+	}
+	idxStore := make([]int, 2*nnz)
+	valStore := make([]float64, nnz)
+	at := 0
+	for i, c := range rowCount {
+		rowIdx[i] = idxStore[at : at : at+c]
+		rowVal[i] = valStore[at : at : at+c]
+		at += c
+	}
+	colStore := idxStore[nnz:]
+	at = 0
+	for p := 0; p < m; p++ {
+		idx, val := col(p)
+		start := at
 		for k, i := range idx {
 			if val[k] == 0 {
 				continue
 			}
 			rowIdx[i] = append(rowIdx[i], p)
 			rowVal[i] = append(rowVal[i], val[k])
-			colRows[p] = append(colRows[p], i)
+			colStore[at] = i
+			at++
 		}
+		colRows[p] = colStore[start:at:at]
 	}
 	rowDone := make([]bool, m)
 	colDone := make([]bool, m)

@@ -356,7 +356,7 @@ func (s *Solver) run(ctx context.Context) Status {
 			copy(s.work, s.cost)
 			perturbed = false
 		}
-		if !s.refactor() {
+		if !s.freshen(round) {
 			return NumericalTrouble
 		}
 		if s.maxDualInfeasibility() > dtol {
@@ -364,7 +364,7 @@ func (s *Solver) run(ctx context.Context) Status {
 			if st != Optimal {
 				return st
 			}
-			if !s.refactor() {
+			if !s.freshen(round) {
 				return NumericalTrouble
 			}
 		}
@@ -373,6 +373,22 @@ func (s *Solver) run(ctx context.Context) Status {
 		}
 	}
 	return NumericalTrouble
+}
+
+// freshUpdates: below this many updates since the last factorisation, the
+// final check recomputes values with the current factors instead of
+// factorising again.
+const freshUpdates = 20
+
+// freshen recomputes primal and dual values from scratch for the final
+// check; with many updates (or in a repeated round) it refactorises first.
+func (s *Solver) freshen(round int) bool {
+	if round > 0 || s.fac.numUpdates() >= freshUpdates {
+		return s.refactor()
+	}
+	s.computePrimal()
+	s.computeDuals()
+	return true
 }
 
 // solveNoRows handles a model without rows: each column sits at its best

@@ -63,6 +63,7 @@ type Solver struct {
 
 	fac      *factor
 	facValid bool
+	shape    int // incremented whenever rows are added or removed
 
 	iterations int // in the current solve
 	ray        []float64
@@ -81,6 +82,8 @@ type State struct {
 	stat               []VarStatus
 	dse                []float64
 	m                  int
+	shape              int     // Solver.shape when saved
+	fac                *factor // the factorisation of this basis, if any
 }
 
 // NewSolver prepares a solver for m, which it copies: later changes to m do
@@ -214,6 +217,7 @@ func (s *Solver) AddRows(rows []Row) {
 	}
 	s.resizeScratch()
 	s.facValid = false
+	s.shape++
 }
 
 // RemoveRows deletes the rows whose indices are listed (any order,
@@ -313,6 +317,7 @@ func (s *Solver) RemoveRows(idx []int) {
 	s.rebuildMatrix(s.m)
 	s.resizeScratch()
 	s.facValid = false
+	s.shape++
 }
 
 // keepRows returns a copy of m with only the listed rows, renumbered.
@@ -461,16 +466,24 @@ func (s *Solver) unscaleFactor(v int) float64 {
 	return 1 / s.rowScale[v-s.n]
 }
 
-// SaveState returns a copy of the column bounds and the basis. Cost O(n+m).
+// SaveState returns a copy of the column bounds and the basis, and keeps a
+// reference to the basis factorisation so that RestoreState need not
+// factorise again. Cost O(n+m).
 func (s *Solver) SaveState() *State {
-	return &State{
+	st := &State{
 		colLower: append([]float64(nil), s.model.ColLower...),
 		colUpper: append([]float64(nil), s.model.ColUpper...),
 		head:     append([]int(nil), s.head...),
 		stat:     append([]VarStatus(nil), s.stat...),
 		dse:      append([]float64(nil), s.dse...),
 		m:        s.m,
+		shape:    s.shape,
 	}
+	if s.facValid {
+		f := *s.fac
+		st.fac = &f
+	}
+	return st
 }
 
 // RestoreState puts back bounds and basis saved by SaveState. It panics if
@@ -486,6 +499,19 @@ func (s *Solver) RestoreState(st *State) {
 	copy(s.stat, st.stat)
 	copy(s.dse, st.dse)
 	s.facValid = false
+	if st.fac != nil && st.shape == s.shape {
+		// Reuse the saved factorisation. The copy's slices have their
+		// capacity clipped, so its future updates cannot overwrite what
+		// another State still refers to.
+		f := *st.fac
+		f.etaPos = f.etaPos[:len(f.etaPos):len(f.etaPos)]
+		f.etaPiv = f.etaPiv[:len(f.etaPiv):len(f.etaPiv)]
+		f.etaStart = f.etaStart[:len(f.etaStart):len(f.etaStart)]
+		f.etaIdx = f.etaIdx[:len(f.etaIdx):len(f.etaIdx)]
+		f.etaVal = f.etaVal[:len(f.etaVal):len(f.etaVal)]
+		s.fac = &f
+		s.facValid = true
+	}
 }
 
 // Solve runs the simplex method from the current basis and returns the
