@@ -60,8 +60,10 @@ const jsonAmountDecimals = gbpsDecimals
 
 // jsonOptions tune the JSON output. The zero value prints everything.
 type jsonOptions struct {
-	// hideTiming prints 0 for solver.seconds (golden tests: the time varies).
-	hideTiming bool
+	// hideEffort prints 0 for solver.seconds, solver.nodes and
+	// solver.iterations: golden tests compare the plan, and the effort
+	// varies with the machine and with every solver change.
+	hideEffort bool
 }
 
 // writeJSON prints r as one indented JSON object followed by a newline.
@@ -77,9 +79,11 @@ func writeJSON(w io.Writer, r *plans.Result, opts jsonOptions) error {
 		return fmt.Errorf("re-read result: %w", err)
 	}
 	tree["notice"] = decisionSupportNote
-	if opts.hideTiming {
+	if opts.hideEffort {
 		if s, ok := tree["solver"].(map[string]any); ok {
-			s["seconds"] = json.Number("0")
+			for _, k := range []string{"seconds", "nodes", "iterations"} {
+				s[k] = json.Number("0")
+			}
 		}
 	}
 	if err := formatJSONTree(tree); err != nil {

@@ -126,9 +126,9 @@ func TestWriteTextSectionsInOrder(t *testing.T) {
 		}
 	}
 	buf.Reset()
-	writeText(&buf, handResult(), textOptions{hideTiming: true})
+	writeText(&buf, handResult(), textOptions{hideEffort: true})
 	if strings.Contains(buf.String(), "0.25 s") {
-		t.Errorf("hideTiming still prints the solve time")
+		t.Errorf("hideEffort still prints the solve time")
 	}
 }
 
