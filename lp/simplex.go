@@ -16,6 +16,12 @@ const (
 	maxRounds = 6
 	// checkEvery is how often (iterations) the context and clock are read.
 	checkEvery = 16
+	// stallIterations: after this many consecutive degenerate dual pivots
+	// an unperturbed solve perturbs its costs (against cycling).
+	stallIterations = 50
+	// safetyIterations (plus 50 per variable) ends a solve that has no
+	// iteration limit but runs far longer than the simplex method needs.
+	safetyIterations = 100000
 )
 
 // slackBasis makes every slack basic and puts each column at a bound.
@@ -290,6 +296,10 @@ func (s *Solver) checkLimits(lim *limits) Status {
 	if lim.maxIter > 0 && s.iterations >= lim.maxIter {
 		return IterationLimit
 	}
+	if s.iterations >= safetyIterations+50*(s.n+s.m) {
+		// Far beyond what the simplex method needs: assume cycling.
+		return NumericalTrouble
+	}
 	if s.iterations%checkEvery == 0 {
 		if lim.ctx.Err() != nil {
 			return Cancelled
@@ -319,10 +329,10 @@ func (s *Solver) run(ctx context.Context) Status {
 		return NumericalTrouble
 	}
 	copy(s.work, s.cost)
-	perturbed := false
+	s.perturbed = false
 	if !s.warm && !s.set.NoPerturbation {
 		s.perturb()
-		perturbed = true
+		s.perturbed = true
 	}
 	s.fixStatuses()
 	s.computePrimal()
@@ -340,21 +350,21 @@ func (s *Solver) run(ctx context.Context) Status {
 				return s.unboundedOrInfeasible(lim)
 			}
 		}
-		st := s.dualSimplex(lim, s.set.HasCutoff && !perturbed)
+		st := s.dualSimplex(lim, s.set.HasCutoff)
 		if st != Optimal {
-			if st == Infeasible && perturbed {
+			if st == Infeasible && s.perturbed {
 				// Infeasibility does not depend on costs; still, confirm
 				// it without the perturbation below.
 				copy(s.work, s.cost)
-				perturbed = false
+				s.perturbed = false
 				s.computeDuals()
 				continue
 			}
 			return st
 		}
-		if perturbed {
+		if s.perturbed {
 			copy(s.work, s.cost)
-			perturbed = false
+			s.perturbed = false
 		}
 		if !s.freshen(round) {
 			return NumericalTrouble
@@ -441,6 +451,32 @@ func (s *Solver) perturb() {
 			s.work[j] += delta
 		}
 	}
+}
+
+// perturbNonbasic perturbs the working costs of the nonbasic columns in the
+// direction that keeps them dual feasible; the duals y do not change, so
+// only their reduced costs move.
+func (s *Solver) perturbNonbasic() {
+	rng := rand.New(rand.NewSource(s.set.Seed + int64(s.iterations) + 2))
+	maxC := 0.0
+	for j := 0; j < s.n; j++ {
+		maxC = math.Max(maxC, math.Abs(s.cost[j]))
+	}
+	base := perturbBase * math.Max(1, math.Min(maxC, 1e3))
+	for j := 0; j < s.n; j++ {
+		var delta float64
+		switch s.stat[j] {
+		case AtLower:
+			delta = base * (0.5 + 0.5*rng.Float64())
+		case AtUpper:
+			delta = -base * (0.5 + 0.5*rng.Float64())
+		default:
+			continue
+		}
+		s.work[j] += delta
+		s.d[j] += delta
+	}
+	s.perturbed = true
 }
 
 func (s *Solver) maxPrimalInfeasibility() float64 {
@@ -594,7 +630,17 @@ func (s *Solver) dualSimplex(lim *limits, useCutoff bool) Status {
 	m, n := s.m, s.n
 	rho, row, alpha, tau := s.rho, s.alphaRow, s.alphaCol, s.tau
 	cutoff := s.cutoffScaled()
+	degenerate := 0
 	for {
+		if degenerate > stallIterations && !s.perturbed && !s.set.NoPerturbation {
+			// A long run of degenerate pivots: perturb the costs of the
+			// nonbasic columns now (the run driver removes it at the end).
+			s.perturbNonbasic()
+			degenerate = 0
+		}
+		if s.perturbed {
+			useCutoff = false
+		}
 		if st := s.checkLimits(lim); st != StatusUnknown {
 			return st
 		}
@@ -710,6 +756,11 @@ func (s *Solver) dualSimplex(lim *limits, useCutoff bool) Status {
 		}
 		// Dual step.
 		thetaD := s.d[q] / row[q]
+		if math.Abs(thetaD) <= dtol*1e-3 {
+			degenerate++
+		} else {
+			degenerate = 0
+		}
 		if thetaD != 0 {
 			for v, st := range s.stat {
 				if st != Basic {

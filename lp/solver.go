@@ -69,6 +69,7 @@ type Solver struct {
 	ray        []float64
 	status     Status
 	warm       bool // the basis comes from an earlier solve: no perturbation
+	perturbed  bool // the working costs differ from the true costs
 
 	// scratch
 	rho, alphaRow, alphaCol, tau []float64
