@@ -100,7 +100,7 @@ func (c *cut) numericallySafe() bool {
 	return mx/mn <= maxCutDynamism
 }
 
-// separateCover looks for a violated lifted (extended) cover inequality for
+// separateCover looks for a violated lifted cover inequality for
 // the row rl ≤ Σ val·x[idx] ≤ ru, using both sides. lo/up is the global
 // domain and x the LP point. Binary columns form the knapsack; other columns
 // are moved to the right-hand side at their worst bound.
@@ -203,20 +203,22 @@ func coverOnSide(p *problem, idx []int, val []float64, b float64, lo, up, x []fl
 		return nil
 	}
 	inCover := make(map[int]bool, len(cover))
-	maxW := 0.0
 	lhs := 0.0
 	for _, i := range cover {
 		inCover[i] = true
-		maxW = math.Max(maxW, items[i].w)
 		lhs += items[i].y
 	}
-	// Extended cover: items at least as heavy as every cover member.
-	ext := append([]int(nil), cover...)
-	for i, it := range items {
-		if !inCover[i] && it.w >= maxW {
+	alpha := liftCover(items, cover, inCover, b)
+	var ext []int
+	ext = append(ext, cover...)
+	for i := range items {
+		if !inCover[i] && alpha[i] > 0 {
 			ext = append(ext, i)
-			lhs += it.y
+			lhs += alpha[i] * items[i].y
 		}
+	}
+	for _, i := range cover {
+		alpha[i] = 1
 	}
 	rhs := float64(len(cover) - 1)
 	if lhs <= rhs+1e-6 {
@@ -232,10 +234,10 @@ func coverOnSide(p *problem, idx []int, val []float64, b float64, lo, up, x []fl
 			cols = append(cols, it.col)
 		}
 		if it.comp {
-			coef[it.col] -= 1
-			c.upper -= 1
+			coef[it.col] -= alpha[i]
+			c.upper -= alpha[i]
 		} else {
-			coef[it.col] += 1
+			coef[it.col] += alpha[i]
 		}
 	}
 	sort.Ints(cols)
@@ -386,4 +388,66 @@ func gomoryFromRow(p *problem, row []float64, basic int, value float64, basis lp
 		return nil
 	}
 	return c
+}
+
+// liftCover computes sequential up-lifting coefficients for the items
+// outside a minimal cover C of the knapsack Σ w·y ≤ b: lifting item j
+// gives α_j = |C| − 1 − max{lifted left side : weight ≤ b − w_j}, found by a
+// small dynamic programme over the left side's values 0 … |C| − 1 (no
+// feasible point exceeds |C| − 1). Items are lifted in order of decreasing
+// LP value. Cost O(items · |C|).
+func liftCover(items []knapItem, cover []int, inCover map[int]bool, b float64) []float64 {
+	k := len(cover) - 1
+	alpha := make([]float64, len(items))
+	if k <= 0 {
+		// A single item heavier than b: it must be 0; nothing to lift.
+		return alpha
+	}
+	// minW[v]: least weight of a set of lifted-so-far items with left-side
+	// value exactly v.
+	minW := make([]float64, k+1)
+	for v := 1; v <= k; v++ {
+		minW[v] = math.Inf(1)
+	}
+	add := func(w float64, val int) {
+		for v := k; v >= val; v-- {
+			if c := minW[v-val] + w; c < minW[v] {
+				minW[v] = c
+			}
+		}
+	}
+	for _, i := range cover {
+		add(items[i].w, 1)
+	}
+	var rest []int
+	for i := range items {
+		if !inCover[i] {
+			rest = append(rest, i)
+		}
+	}
+	sort.SliceStable(rest, func(a, c int) bool { return items[rest[a]].y > items[rest[c]].y })
+	eps := 1e-9 * math.Max(1, math.Abs(b))
+	for _, i := range rest {
+		capLeft := b - items[i].w
+		if capLeft < -eps {
+			// y_i = 1 alone violates the knapsack: y_i is 0 at every
+			// integer point; lift it fully.
+			alpha[i] = float64(k)
+			add(items[i].w, k)
+			continue
+		}
+		best := 0
+		for v := k; v >= 0; v-- {
+			if minW[v] <= capLeft+eps {
+				best = v
+				break
+			}
+		}
+		a := k - best
+		if a > 0 {
+			alpha[i] = float64(a)
+			add(items[i].w, a)
+		}
+	}
+	return alpha
 }

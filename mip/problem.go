@@ -52,6 +52,9 @@ func newProblem(m *lp.Model, intTol float64) (*problem, bool) {
 		w.Constant = -w.Constant
 		p.work, p.sign = w, -1
 	}
+	if tightened := tightenCoefficients(p.work, intTol); tightened != nil {
+		p.work = tightened
+	}
 	w := p.work
 	p.n, p.m = w.NumCols(), w.NumRows()
 	p.obj = w.Obj
@@ -153,4 +156,92 @@ func (p *problem) snap(x []float64) []float64 {
 		}
 	}
 	return y
+}
+
+// tightenCoefficients strengthens one-sided rows over binary columns
+// without changing their integer points: in a row a·x ≤ b whose largest
+// activity is M, a binary column with a_j > 0 and M − a_j < b makes the
+// row redundant at x_j = 0, so a_j and b may both drop by d = b − (M − a_j);
+// one with a_j < 0 and M + a_j < b makes it redundant at x_j = 1, so a_j may
+// rise to b − M. (≥ rows likewise, negated.) The LP relaxation gets tighter.
+// It returns a modified clone of m, or nil when nothing changed.
+func tightenCoefficients(m *lp.Model, intTol float64) *lp.Model {
+	rows := m.Rows()
+	type change struct {
+		row, col int
+		delta    float64
+	}
+	var changes []change
+	newLower := append([]float64(nil), m.RowLower...)
+	newUpper := append([]float64(nil), m.RowUpper...)
+	isBinary := func(j int) bool {
+		return m.Integer[j] && math.Ceil(m.ColLower[j]-intTol) == 0 && math.Floor(m.ColUpper[j]+intTol) == 1
+	}
+	for i := 0; i < m.NumRows(); i++ {
+		hasLo, hasUp := !math.IsInf(m.RowLower[i], -1), !math.IsInf(m.RowUpper[i], 1)
+		if hasLo == hasUp {
+			continue // ranges and equalities stay as they are
+		}
+		sign, b := 1.0, m.RowUpper[i]
+		if hasLo {
+			sign, b = -1, -m.RowLower[i]
+		}
+		lo, hi := rows.Start[i], rows.Start[i+1]
+		// largest activity of sign·a·x
+		maxAct := 0.0
+		for q := lo; q < hi; q++ {
+			j, a := rows.Index[q], sign*rows.Value[q]
+			bnd := m.ColUpper[j]
+			if a < 0 {
+				bnd = m.ColLower[j]
+			}
+			if isBinary(j) {
+				bnd = math.Max(0, math.Min(1, bnd))
+				if a > 0 {
+					bnd = 1
+				} else {
+					bnd = 0
+				}
+			}
+			if math.IsInf(bnd, 0) {
+				maxAct = math.Inf(1)
+				break
+			}
+			maxAct += a * bnd
+		}
+		if math.IsInf(maxAct, 1) || maxAct <= b {
+			continue // unbounded activity, or a redundant row
+		}
+		tol := 1e-9 * math.Max(1, math.Abs(b))
+		for q := lo; q < hi; q++ {
+			j, a := rows.Index[q], sign*rows.Value[q]
+			if !isBinary(j) {
+				continue
+			}
+			if a > 0 && maxAct-a < b-tol {
+				d := b - (maxAct - a)
+				changes = append(changes, change{i, j, -sign * d})
+				b -= d
+				maxAct -= d
+			} else if a < 0 && maxAct+a < b-tol {
+				d := b - (maxAct + a)
+				changes = append(changes, change{i, j, sign * d})
+			}
+		}
+		if sign > 0 {
+			newUpper[i] = b
+		} else {
+			newLower[i] = -b
+		}
+	}
+	if len(changes) == 0 {
+		return nil
+	}
+	c := m.Clone()
+	for _, ch := range changes {
+		c.SetCoef(ch.row, ch.col, ch.delta)
+	}
+	copy(c.RowLower, newLower)
+	copy(c.RowUpper, newUpper)
+	return c
 }

@@ -30,11 +30,22 @@ func (s *search) rootCuts(r lp.Result) lp.Result {
 				found = append(found, c)
 			}
 		}
-		// Covers on the original rows.
+		// Covers on the model's rows, and on the caller's rows where
+		// coefficient tightening changed them (their covers differ).
 		for i := 0; i < p.m; i++ {
 			ri := s.rows[i]
 			for _, c := range separateCover(p, ri.idx, ri.val, ri.lower, ri.upper, s.lpLo, s.lpUp, x) {
 				found = s.addFound(found, c, x)
+			}
+		}
+		if p.work != p.orig && p.work.NumRows() == p.orig.NumRows() {
+			or := p.orig.Rows()
+			for i := 0; i < p.m; i++ {
+				idx := or.Index[or.Start[i]:or.Start[i+1]]
+				val := or.Value[or.Start[i]:or.Start[i+1]]
+				for _, c := range separateCover(p, idx, val, p.orig.RowLower[i], p.orig.RowUpper[i], s.lpLo, s.lpUp, x) {
+					found = s.addFound(found, c, x)
+				}
 			}
 		}
 		// Gomory mixed-integer cuts from tableau rows of fractional integer

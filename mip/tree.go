@@ -282,13 +282,14 @@ func (s *search) chooseBranch(r lp.Result, frac []int, bound float64) branchChoi
 			j := c.j
 			lo, up := s.lpLo[j], s.lpUp[j]
 			fl := math.Floor(x[j])
-			// down
+			// Down, then up. Between the two only the bound is put back:
+			// the down child's basis stays dual feasible for the up child,
+			// and keeping it saves a refactorisation.
 			s.lps.SetColBounds(j, lo, fl)
 			rd := s.lpSolve(limit, iterCap)
-			s.lps.RestoreState(state)
 			s.lps.SetColBounds(j, fl+1, up)
 			ru := s.lpSolve(limit, iterCap)
-			s.lps.RestoreState(state)
+			s.lps.SetColBounds(j, lo, up)
 			downDead := rd.Status == lp.Infeasible || rd.Status == lp.ObjectiveCutoff
 			upDead := ru.Status == lp.Infeasible || ru.Status == lp.ObjectiveCutoff
 			if rd.Status == lp.TimeLimit || rd.Status == lp.Cancelled || ru.Status == lp.TimeLimit || ru.Status == lp.Cancelled {
@@ -335,8 +336,8 @@ func (s *search) chooseBranch(r lp.Result, frac []int, bound float64) branchChoi
 		}
 	}
 	if state != nil {
-		// Bounds were restored; the LP's iterate is the node's again once
-		// re-solved (the next solve is warm).
+		// Back to the node's basis, so that the preferred child starts
+		// next to it.
 		s.lps.RestoreState(state)
 	}
 	return best
@@ -371,7 +372,7 @@ func (s *search) makeChildren(nd *node, r lp.Result, bound float64, br branchCho
 	}
 	est -= math.Min(gd, gu)
 	base := s.domainChanges(1)
-	b := s.lps.Basis()
+	b := r.Basis
 	down := &node{id: s.nextID(), depth: nd.depth + 1, basis: &b, branchVar: j, branchUp: false,
 		branchDist: f, parentObj: r.Objective}
 	down.changes = append(append([]boundChange(nil), base...), boundChange{j, s.lo[j], math.Floor(x)})
