@@ -442,6 +442,29 @@ func TestAllErrorsOfBothFilesInOneRun(t *testing.T) {
 	}
 }
 
+// TestNoCascade checks that one mistake gives one error, not a trail of
+// consequences in other checks.
+func TestNoCascade(t *testing.T) {
+	tests := []struct {
+		name     string
+		old, new string
+		want     string
+	}{
+		{"missing currency", "currency = \"EUR\"\n", "", `missing key "currency"`},
+		{"missing link class", "class = \"metro\"\n", "", `missing key "class"`},
+		{"bad site reference", `to = "B"`, `to = "Q"`, `site "Q" is not defined`},
+	}
+	for _, tc := range tests {
+		t.Run(tc.name, func(t *testing.T) {
+			_, _, err := decodeTexts(strings.Replace(baseCase, tc.old, tc.new, 1), map[string]string{"cat.toml": baseCatalog})
+			var list ErrorList
+			if !errors.As(err, &list) || len(list) != 1 || !strings.Contains(list[0].Error(), tc.want) {
+				t.Errorf("got\n%v\nwant exactly one error containing %q", err, tc.want)
+			}
+		})
+	}
+}
+
 func TestWarnings(t *testing.T) {
 	tests := []struct {
 		name     string

@@ -68,7 +68,7 @@ func (d *decoder) resolveCatalogs(c *Case, cats []*catalog.Catalog) ErrorList {
 			rate := 1.0
 			if v.Currency != c.Currency {
 				r, ok := c.ExchangeRates[v.Currency]
-				if !ok {
+				if !ok && c.Currency != "" { // no case currency is already an error
 					at(cat.File, v.CurrencyAt, "vendors.currency", fmt.Errorf("%w: the quote is in %s but the case (in %s) gives no exchange rate for it; add %s = ... to [case.exchange_rates]",
 						catalog.ErrCurrency, v.Currency, c.Currency, v.Currency))
 				}
