@@ -971,7 +971,6 @@ func solver(r *plans.Result) []pair {
 		{"Bound (no plan can beat)", opt(r.Bound, m)},
 		{"Gap", opt(r.Gap, gap)},
 		{"Model size", fmt.Sprintf("%s rows, %s columns, %s integer", count(r.Stats.Rows), count(r.Stats.Columns), count(r.Stats.Integers))},
-		{"Search", fmt.Sprintf("%s branch-and-bound nodes, %s simplex iterations", count(r.Stats.Nodes), count(r.Stats.Iterations))},
 	}
 }
 
