@@ -10,6 +10,7 @@ import (
 	"math"
 	"os"
 	"path/filepath"
+	"regexp"
 	"strconv"
 	"strings"
 	"sync"
@@ -511,5 +512,81 @@ func TestExportDemo(t *testing.T) {
 	file, _ := os.ReadFile(path)
 	if !bytes.Equal(out.Bytes(), file) {
 		t.Errorf("--mps - differs from the file")
+	}
+}
+
+// TestSolveProgress shows progress lines on stderr (forced: the test's
+// stderr is no terminal) and keeps stdout for results only.
+func TestSolveProgress(t *testing.T) {
+	// A short time limit keeps the test quick; progress is reported from
+	// the first incumbent or interval on, whatever the outcome.
+	out, errOut, code := runSolveCapture(t, &solveOptions{useDemo: true, json: true, forceProgress: true, timeLimit: "3s"})
+	if code != exitOK && code != exitFailure {
+		t.Fatalf("exit %d: %s", code, errOut)
+	}
+	if !regexp.MustCompile(`(?m)^\s+[0-9.]+s  .*bound .*gap .*nodes \d+$`).MatchString(errOut) {
+		t.Errorf("no progress line on stderr:\n%s", errOut)
+	}
+	var m map[string]any
+	if err := json.Unmarshal([]byte(out), &m); err != nil {
+		t.Errorf("stdout is not one JSON object: %v", err)
+	}
+	// Not a terminal and not forced: no progress.
+	_, errOut, _ = runSolveCapture(t, &solveOptions{useDemo: true, json: true, timeLimit: "1s"})
+	if strings.Contains(errOut, "nodes ") {
+		t.Errorf("progress printed although stderr is no terminal:\n%s", errOut)
+	}
+}
+
+// TestSolveStoppedEarly cancels a solve (as Ctrl-C does) and checks that
+// the outcome and the exit code agree with DESIGN.md §4: a plan (optimal,
+// or feasible with its bound and gap) exits 0; no plan (limit) exits 1.
+// Where the search stands when it is stopped depends on the machine, so
+// each outcome is checked for consistency rather than predicted.
+func TestSolveStoppedEarly(t *testing.T) {
+	if testing.Short() {
+		t.Skip("solves a synthetic case; skipped in -short")
+	}
+	files, err := plans.Synthetic(10, 5, 3)
+	if err != nil {
+		t.Fatal(err)
+	}
+	dir := t.TempDir()
+	for _, f := range files {
+		if err := os.WriteFile(filepath.Join(dir, f.Name), f.Data, 0o644); err != nil {
+			t.Fatal(err)
+		}
+	}
+	for _, after := range []time.Duration{0, 300 * time.Millisecond} {
+		ctx, cancel := context.WithCancel(context.Background())
+		if after == 0 {
+			cancel()
+		} else {
+			time.AfterFunc(after, cancel)
+		}
+		var out, errOut bytes.Buffer
+		env := &cmdEnv{stdout: &out, stderr: &errOut}
+		code := exitCodeOf(runSolve(ctx, env, &solveOptions{casePath: filepath.Join(dir, "case.toml"), json: true, quiet: true}))
+		cancel()
+		var r demoResult
+		if err := json.Unmarshal(out.Bytes(), &r); err != nil {
+			t.Fatalf("cancel after %v: exit %d, stdout is not JSON: %v\n%s\n%s", after, code, err, out.String(), errOut.String())
+		}
+		switch r.Status {
+		case "optimal", "feasible":
+			if code != exitOK || r.Objective == nil || r.Bound == nil || r.Gap == nil {
+				t.Errorf("cancel after %v: status %s, exit %d, objective %v, bound %v, gap %v", after, r.Status, code, r.Objective, r.Bound, r.Gap)
+			}
+		case "limit":
+			if code != exitFailure || r.Objective != nil {
+				t.Errorf("cancel after %v: status limit, exit %d, objective %v; want exit 1 and no objective", after, code, r.Objective)
+			}
+			if !strings.Contains(errOut.String(), "no plan") {
+				t.Errorf("cancel after %v: stderr does not say there is no plan: %s", after, errOut.String())
+			}
+		default:
+			t.Errorf("cancel after %v: status %s", after, r.Status)
+		}
+		t.Logf("cancel after %v: status %s, exit %d", after, r.Status, code)
 	}
 }
