@@ -325,3 +325,31 @@ func TestWriteFileReplacing(t *testing.T) {
 		t.Errorf("%d files left in the directory, want 1", len(entries))
 	}
 }
+
+// In cost mode the report speaks of present cost (minus the objective) and
+// reports no IRR or payback (DESIGN.md §2).
+func TestWriteTextCostMode(t *testing.T) {
+	r := handResult()
+	r.CostMode = true
+	r.Objective = f64(-500000)
+	r.BaselineNPV = f64(-650000)
+	r.IncrementalNPV = f64(150000)
+	r.Bound = f64(-499000)
+	r.IRR, r.PaybackYear = nil, nil
+	var buf bytes.Buffer
+	if err := writeText(&buf, r, textOptions{}); err != nil {
+		t.Fatal(err)
+	}
+	out := buf.String()
+	for _, want := range []string{"plan present cost", "500,000", "baseline present cost", "650,000",
+		"saving against baseline", "150,000", "present cost ≥ 499,000"} {
+		if !strings.Contains(out, want) {
+			t.Errorf("cost-mode report lacks %q:\n%s", want, out)
+		}
+	}
+	for _, unwanted := range []string{"plan NPV", "IRR", "payback year"} {
+		if strings.Contains(out, unwanted) {
+			t.Errorf("cost-mode report shows %q", unwanted)
+		}
+	}
+}
