@@ -689,44 +689,10 @@ func (s *Solver) dualSimplex(lim *limits, useCutoff bool) Status {
 		for i := 0; i < m; i++ {
 			row[n+i] = -rho[i]
 		}
-		// Harris two-pass ratio test over the nonbasic variables.
-		tmax := math.Inf(1)
-		for v, st := range s.stat {
-			if st == Basic || st == Fixed {
-				continue
-			}
-			a := sgn * row[v]
-			var bound float64
-			switch {
-			case a > pivotTol && (st == AtLower || st == AtZero):
-				bound = (s.d[v] + dtol) / a
-			case a < -pivotTol && (st == AtUpper || st == AtZero):
-				bound = (s.d[v] - dtol) / a
-			default:
-				continue
-			}
-			if bound < tmax {
-				tmax = bound
-			}
-		}
-		if math.IsInf(tmax, 1) {
-			return Infeasible
-		}
-		q, qAbs := -1, 0.0
-		for v, st := range s.stat {
-			if st == Basic || st == Fixed {
-				continue
-			}
-			a := sgn * row[v]
-			if !((a > pivotTol && (st == AtLower || st == AtZero)) || (a < -pivotTol && (st == AtUpper || st == AtZero))) {
-				continue
-			}
-			if s.d[v]/a <= tmax && math.Abs(a) > qAbs {
-				q, qAbs = v, math.Abs(a)
-			}
-		}
-		if q < 0 {
-			return NumericalTrouble
+		// Bound-flipping ratio test with Harris tolerances.
+		q, flips, st := s.dualRatioTest(sgn, math.Abs(delta), row)
+		if st != StatusUnknown {
+			return st
 		}
 		// Entering column.
 		for i := range alpha {
@@ -753,6 +719,10 @@ func (s *Solver) dualSimplex(lim *limits, useCutoff bool) Status {
 				continue
 			}
 			return NumericalTrouble
+		}
+		if len(flips) > 0 {
+			s.applyFlips(flips)
+			delta = s.x[leave] - target
 		}
 		// Dual step.
 		thetaD := s.d[q] / row[q]
@@ -808,6 +778,107 @@ func (s *Solver) dualSimplex(lim *limits, useCutoff bool) Status {
 		}
 		s.fac.update(r, alpha)
 		s.iterations++
+	}
+}
+
+// ratioCandidate is a nonbasic variable whose reduced cost reaches zero
+// as the dual step grows: at t = d/a.
+type ratioCandidate struct {
+	v int
+	a float64 // the pivot-row entry, signed so that a·t is d's decrease
+}
+
+// dualRatioTest chooses the entering variable for a leaving row with
+// pivot row row and direction sgn, where slope is the primal infeasibility
+// of the leaving variable (the initial slope of the dual objective). Boxed
+// variables whose breakpoints the step can pass while the slope stays
+// positive are returned in flips: they move to their other bound. Among
+// the breakpoints at the final step, Harris' tolerance admits the largest
+// pivot. It returns Infeasible when the dual objective rises without limit.
+func (s *Solver) dualRatioTest(sgn, slope float64, row []float64) (q int, flips []int, st Status) {
+	ptol, dtol := s.primalTol(), s.dualTol()
+	cands := s.cands[:0]
+	for v, vs := range s.stat {
+		if vs == Basic || vs == Fixed {
+			continue
+		}
+		a := sgn * row[v]
+		if (a > pivotTol && (vs == AtLower || vs == AtZero)) || (a < -pivotTol && (vs == AtUpper || vs == AtZero)) {
+			cands = append(cands, ratioCandidate{v, a})
+		}
+	}
+	s.cands = cands
+	flips = s.flips[:0]
+	defer func() { s.flips = flips[:0] }()
+	for len(cands) > 0 {
+		tmax := math.Inf(1)
+		for _, c := range cands {
+			var bound float64
+			if c.a > 0 {
+				bound = (s.d[c.v] + dtol) / c.a
+			} else {
+				bound = (s.d[c.v] - dtol) / c.a
+			}
+			tmax = math.Min(tmax, bound)
+		}
+		best, bestAbs, drop := -1, 0.0, 0.0
+		for k, c := range cands {
+			if s.d[c.v]/c.a > tmax {
+				continue
+			}
+			drop += math.Abs(c.a) * (s.up[c.v] - s.lo[c.v]) // +Inf when not boxed
+			if math.Abs(c.a) > bestAbs {
+				best, bestAbs = k, math.Abs(c.a)
+			}
+		}
+		if best < 0 {
+			return -1, nil, NumericalTrouble
+		}
+		if !(slope-drop > ptol) {
+			// Passing this group would leave the leaving variable feasible
+			// (within tolerance): one of the group enters.
+			return cands[best].v, flips, StatusUnknown
+		}
+		// Pass this group of breakpoints: flip them and go on.
+		slope -= drop
+		rest := cands[:0]
+		for _, c := range cands {
+			if s.d[c.v]/c.a <= tmax {
+				flips = append(flips, c.v)
+			} else {
+				rest = append(rest, c)
+			}
+		}
+		cands = rest
+	}
+	return -1, nil, Infeasible
+}
+
+// applyFlips moves the listed nonbasic variables to their other bound and
+// updates the basic values: Δx_B = −B⁻¹·Σ a_j·Δx_j.
+func (s *Solver) applyFlips(flips []int) {
+	col := s.tau
+	for i := range col {
+		col[i] = 0
+	}
+	for _, v := range flips {
+		var dx float64
+		if s.stat[v] == AtLower {
+			s.stat[v] = AtUpper
+			dx = s.up[v] - s.lo[v]
+		} else {
+			s.stat[v] = AtLower
+			dx = s.lo[v] - s.up[v]
+		}
+		s.x[v] = s.boundValue(v, s.stat[v])
+		idx, val := s.column(v)
+		for k, i := range idx {
+			col[i] += val[k] * dx
+		}
+	}
+	s.fac.ftran(col)
+	for p, v := range s.head {
+		s.x[v] -= col[p]
 	}
 }
 

@@ -73,6 +73,8 @@ type Solver struct {
 
 	// scratch
 	rho, alphaRow, alphaCol, tau []float64
+	cands                        []ratioCandidate
+	flips                        []int
 }
 
 // State is a saved iterate of a Solver (bounds and basis), for strong
