@@ -651,3 +651,22 @@ func FuzzDecodeCase(f *testing.F) {
 		}
 	})
 }
+
+// TestReadmeExample loads the small example shown in the README's tour of
+// the input files: it must stay valid and free of warnings.
+func TestReadmeExample(t *testing.T) {
+	c, warns, err := Load("../testdata/example/case.toml")
+	if err != nil {
+		t.Fatalf("Load: %v", err)
+	}
+	if len(warns) != 0 {
+		t.Errorf("warnings: got %v, want none", warns)
+	}
+	// forecast = 40·1.25^(t−1): 40, 50, 62.5, 78.125, 97.65625
+	want := []float64{40, 50, 62.5, 78.125, 97.65625}
+	for i, w := range want {
+		if math.Abs(c.Demands[0].Forecast[i]-w) > 1e-9 {
+			t.Errorf("forecast[%d]: got %v, want %v", i, c.Demands[0].Forecast[i], w)
+		}
+	}
+}
