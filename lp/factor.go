@@ -36,6 +36,15 @@ type factor struct {
 	ustart []int
 	uidx   []int
 	uval   []float64
+	// Copies for solves that skip zeros: U by columns (step k' lists the
+	// rows pivRow[k] of earlier steps k with an entry in column pivCol[k'])
+	// and L by rows (for row i, the steps whose multipliers touch it).
+	ucStart []int
+	ucRow   []int
+	ucVal   []float64
+	ltStart []int
+	ltRow   []int // pivRow of the step
+	ltVal   []float64
 
 	// Eta file: update e replaced position etaPos[e]; its column (B⁻¹ of
 	// the entering column, without the pivot) is etaIdx/etaVal over
@@ -344,7 +353,54 @@ func factorize(m int, col columnFunc) (f *factor, badCols, freeRows []int) {
 		return nil, badCols, freeRows
 	}
 	f.etaStart = append(f.etaStart, 0)
+	f.transpose()
 	return f, nil, nil
+}
+
+// transpose builds the column copy of U and the row copy of L. Cost
+// O(nonzeros of L and U).
+func (f *factor) transpose() {
+	m := f.m
+	stepOf := make([]int, m)
+	for k, c := range f.pivCol {
+		stepOf[c] = k
+	}
+	f.ucStart = make([]int, m+1)
+	for _, j := range f.uidx {
+		f.ucStart[stepOf[j]+1]++
+	}
+	for k := 0; k < m; k++ {
+		f.ucStart[k+1] += f.ucStart[k]
+	}
+	f.ucRow = make([]int, len(f.uidx))
+	f.ucVal = make([]float64, len(f.uidx))
+	next := append([]int(nil), f.ucStart[:m]...)
+	for k := 0; k < m; k++ {
+		for p := f.ustart[k]; p < f.ustart[k+1]; p++ {
+			q := stepOf[f.uidx[p]]
+			f.ucRow[next[q]] = f.pivRow[k]
+			f.ucVal[next[q]] = f.uval[p]
+			next[q]++
+		}
+	}
+	f.ltStart = make([]int, m+1)
+	for _, i := range f.lidx {
+		f.ltStart[i+1]++
+	}
+	for i := 0; i < m; i++ {
+		f.ltStart[i+1] += f.ltStart[i]
+	}
+	f.ltRow = make([]int, len(f.lidx))
+	f.ltVal = make([]float64, len(f.lidx))
+	next = append(next[:0], f.ltStart[:m]...)
+	for k := 0; k < m; k++ {
+		for p := f.lstart[k]; p < f.lstart[k+1]; p++ {
+			i := f.lidx[p]
+			f.ltRow[next[i]] = f.pivRow[k]
+			f.ltVal[next[i]] = f.lval[p]
+			next[i]++
+		}
+	}
 }
 
 // ftran solves B·x = b in place: on entry b is indexed by rows, on return
@@ -362,10 +418,15 @@ func (f *factor) ftran(b []float64) {
 	}
 	for k := f.m - 1; k >= 0; k-- {
 		v := b[f.pivRow[k]]
-		for p := f.ustart[k]; p < f.ustart[k+1]; p++ {
-			v -= f.uval[p] * out[f.uidx[p]]
+		if v == 0 {
+			out[f.pivCol[k]] = 0
+			continue
 		}
-		out[f.pivCol[k]] = v / f.diag[k]
+		v /= f.diag[k]
+		out[f.pivCol[k]] = v
+		for p := f.ucStart[k]; p < f.ucStart[k+1]; p++ {
+			b[f.ucRow[p]] -= f.ucVal[p] * v
+		}
 	}
 	for e, p := range f.etaPos {
 		xp := out[p] / f.etaPiv[e]
@@ -404,10 +465,12 @@ func (f *factor) btran(d []float64) {
 	for k := f.m - 1; k >= 0; k-- {
 		r := f.pivRow[k]
 		v := w[r]
-		for p := f.lstart[k]; p < f.lstart[k+1]; p++ {
-			v -= f.lval[p] * w[f.lidx[p]]
+		if v == 0 {
+			continue
 		}
-		w[r] = v
+		for p := f.ltStart[r]; p < f.ltStart[r+1]; p++ {
+			w[f.ltRow[p]] -= f.ltVal[p] * v
+		}
 	}
 	copy(d, w)
 }
