@@ -405,3 +405,36 @@ func TestRandomBinaryAgainstBruteForce(t *testing.T) {
 	}
 	t.Logf("brute-force outcomes: %v", tally)
 }
+
+// FuzzSolve compares the search with enumeration on random tiny MIPs
+// drawn from the fuzzer's seed and setting bits.
+func FuzzSolve(f *testing.F) {
+	for _, s := range []int64{1, 2, 3, 344, 1015} {
+		f.Add(s, uint8(0))
+	}
+	f.Fuzz(func(t *testing.T, seed int64, flags uint8) {
+		rng := rand.New(rand.NewSource(seed))
+		var m *lp.Model
+		if flags&8 != 0 {
+			m = randomBinaryMIP(rng)
+		} else {
+			m = randomMIP(rng)
+		}
+		want, wantObj := bruteForce(m)
+		set := Settings{RelGap: 1e-9, AbsGap: 1e-9, Seed: seed,
+			NoCuts: flags&1 != 0, NoStrongBranching: flags&2 != 0, NoHeuristics: flags&4 != 0}
+		r, err := Solve(context.Background(), m, set)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if r.Status != want {
+			t.Fatalf("status %v, want %v (brute force)", r.Status, want)
+		}
+		if want == Optimal || want == Unbounded {
+			checkIncumbent(t, m, r)
+		}
+		if want == Optimal && math.Abs(r.Objective-wantObj) > 1e-6*math.Max(1, math.Abs(wantObj)) {
+			t.Fatalf("objective %v, want %v (brute force)", r.Objective, wantObj)
+		}
+	})
+}

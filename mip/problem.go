@@ -142,7 +142,8 @@ func (p *problem) check(x []float64, feasTol, intTol float64) bool {
 // snap rounds integer columns to the nearest integer and clips every value to
 // its original bounds.
 func (p *problem) snap(x []float64) []float64 {
-	y := append([]float64(nil), x...)
+	y := make([]float64, len(x))
+	copy(y, x)
 	for j := range y {
 		if p.isInt[j] {
 			y[j] = math.Round(y[j])

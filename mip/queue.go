@@ -26,6 +26,7 @@ type node struct {
 	branchDist float64 // distance the branched variable must move (> 0)
 	parentObj  float64
 
+	solved  bool // the node's LP was solved and counted already (the root)
 	removed bool // taken out of the queue
 	pos     [2]int
 }

@@ -265,3 +265,75 @@ func TestBadInput(t *testing.T) {
 		t.Error("nil model: no error")
 	}
 }
+
+// TestSmallCases checks corner cases whose answers follow from the
+// construction.
+func TestSmallCases(t *testing.T) {
+	cases := []struct {
+		name  string
+		build func() *lp.Model
+		want  Status
+		obj   float64
+		x     []float64
+	}{
+		{"no rows", func() *lp.Model {
+			// minimise −x + y, x integer in [0, 3.5], y in [−2, 4]: x = 3, y = −2.
+			m := lp.NewModel("no rows")
+			m.AddIntCol("x", -1, 0, 3.5)
+			m.AddCol("y", 1, -2, 4)
+			return m
+		}, Optimal, -5, []float64{3, -2}},
+		{"no columns", func() *lp.Model {
+			m := lp.NewModel("empty")
+			m.Constant = 7
+			return m
+		}, Optimal, 7, []float64{}},
+		{"fixed column, maximise", func() *lp.Model {
+			m := lp.NewModel("fixed")
+			m.Sense = lp.Maximize
+			x := m.AddIntCol("x", 2, 1, 1)
+			m.AddRow("r", 0, 5, []int{x}, []float64{3})
+			return m
+		}, Optimal, 2, []float64{1}},
+		{"integer bounds cross", func() *lp.Model {
+			// x integer in [0.2, 0.8]: no integer inside.
+			m := lp.NewModel("cross")
+			m.AddIntCol("x", 1, 0.2, 0.8)
+			return m
+		}, Infeasible, 0, nil},
+		{"negative domain, maximise", func() *lp.Model {
+			// maximise x + y with x + y ≤ −3.5, x, y integer in [−5, 5]: −4.
+			m := lp.NewModel("negative")
+			m.Sense = lp.Maximize
+			x := m.AddIntCol("x", 1, -5, 5)
+			y := m.AddIntCol("y", 1, -5, 5)
+			m.AddRow("r", math.Inf(-1), -3.5, []int{x, y}, []float64{1, 1})
+			return m
+		}, Optimal, -4, nil},
+	}
+	for _, tc := range cases {
+		t.Run(tc.name, func(t *testing.T) {
+			m := tc.build()
+			r, err := Solve(context.Background(), m, Settings{})
+			if err != nil {
+				t.Fatal(err)
+			}
+			if r.Status != tc.want {
+				t.Fatalf("status %v, want %v", r.Status, tc.want)
+			}
+			if tc.want != Optimal {
+				return
+			}
+			checkIncumbent(t, m, r)
+			if r.Objective != tc.obj || r.Bound != tc.obj || r.Gap != 0 {
+				t.Errorf("objective %v bound %v gap %v, want %v, %v, 0", r.Objective, r.Bound, r.Gap, tc.obj, tc.obj)
+			}
+			if tc.x != nil && fmt.Sprint(r.X) != fmt.Sprint(tc.x) {
+				t.Errorf("x = %v, want %v", r.X, tc.x)
+			}
+			if r.Nodes != 1 {
+				t.Errorf("%d nodes, want 1 (the root)", r.Nodes)
+			}
+		})
+	}
+}

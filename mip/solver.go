@@ -237,7 +237,8 @@ func (s *search) result(status Status) Result {
 	}
 	r.RootBound = p.sign * s.rootBound
 	if s.incX != nil {
-		r.X = append([]float64(nil), s.incX...)
+		r.X = make([]float64, len(s.incX))
+		copy(r.X, s.incX)
 		r.Objective, _ = p.orig.Evaluate(r.X)
 	}
 	switch status {

@@ -101,7 +101,7 @@ func (s *search) processNode(nd *node, warm bool) (kids []*node, ok bool) {
 	for round := 0; round < maxNodeResolves; round++ {
 		limit := s.pruneLimit()
 		r := s.lpSolve(limit, 0)
-		if first {
+		if first && !nd.solved {
 			s.nodes++
 			s.nodeIters += (float64(r.Iterations) - s.nodeIters) / float64(s.nodes)
 		}
