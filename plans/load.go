@@ -28,6 +28,9 @@ const (
 	// committedSlack is the relative tolerance of committed ≤ forecast, so
 	// that a committed value equal to the forecast up to rounding passes.
 	committedSlack = 1e-9
+	// retireSlack is the relative tolerance of retirements ≤ capacity, for
+	// the same reason (retiring exactly what is installed must pass).
+	retireSlack = 1e-9
 )
 
 // Load reads the case file at path and the catalogs it names (paths
@@ -607,7 +610,7 @@ func (d *decoder) deriveLink(c *Case, t *catalog.Table, l *Link) {
 				capacity -= r.Gbps
 			}
 		}
-		if capacity < -committedSlack*max(1, l.Installed) {
+		if capacity < -retireSlack*max(1, l.Installed) {
 			t.Errorf("retire", catalog.ErrRange, "retirements exceed the link's capacity in %d (%v Gbps left)", y, capacity)
 			capacity = 0
 		}
