@@ -20,8 +20,12 @@
 //
 // The search, internally a minimisation:
 //
+//   - Presolve: coefficients of binary columns in one-sided rows are
+//     tightened where the row is redundant at one of the column's values
+//     (same integer points, tighter LP); incumbents are always checked
+//     against the caller's untouched model.
 //   - Root: activity-based bound propagation, the LP relaxation, rounds of
-//     lifted (extended) knapsack cover cuts on the rows and Gomory
+//     sequentially lifted knapsack cover cuts on the rows and Gomory
 //     mixed-integer cuts on tableau rows, with a small pool that ages slack
 //     cuts out of the LP; reduced-cost fixing of the global domain whenever
 //     the incumbent improves; rounding and diving heuristics.
