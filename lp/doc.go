@@ -30,8 +30,12 @@
 // auxiliary problem whose bounds are boxes around zero. Costs are perturbed
 // slightly on a cold start against dual degeneracy, and the primal simplex
 // method cleans up once the perturbation is removed; it also finds unbounded
-// rays. Ratio tests are Harris' two-pass tests; leaving rows are priced by
-// dual steepest edge. The basis is factorised as sparse LU (singletons
+// rays. The dual ratio test flips boxed variables to their other bound
+// while that keeps the leaving variable infeasible (bound flipping, "long
+// step"), then picks the largest pivot within Harris' tolerance; the primal
+// ratio test is Harris' two-pass test. Leaving rows are priced by dual
+// steepest edge. Long runs of degenerate pivots in an unperturbed solve
+// switch the perturbation on. The basis is factorised as sparse LU (singletons
 // first, then Markowitz pivoting with threshold 0.1) with product-form
 // updates and a refactorisation every 100 updates or when the pivot seen
 // from the row and from the column disagree. The model is scaled by
