@@ -100,11 +100,9 @@ func (s PlanSummary) String() string {
 	if s.Orders == 0 {
 		return "no purchases"
 	}
-	parts := []string{fmt.Sprintf("%d units on %d links", s.Units, s.Links)}
-	if s.Builds == 1 {
-		parts = append(parts, "1 build")
-	} else if s.Builds > 1 {
-		parts = append(parts, fmt.Sprintf("%d builds", s.Builds))
+	parts := []string{plural(s.Units, "unit") + " on " + plural(s.Links, "link")}
+	if s.Builds > 0 {
+		parts = append(parts, plural(s.Builds, "build"))
 	}
 	if n := len(s.OrderYears); n == 1 {
 		parts = append(parts, fmt.Sprintf("orders %d", s.OrderYears[0]))
@@ -112,6 +110,13 @@ func (s PlanSummary) String() string {
 		parts = append(parts, fmt.Sprintf("orders %d–%d", s.OrderYears[0], s.OrderYears[n-1]))
 	}
 	return strings.Join(parts, ", ")
+}
+
+func plural(n int, noun string) string {
+	if n == 1 {
+		return "1 " + noun
+	}
+	return fmt.Sprintf("%d %ss", n, noun)
 }
 
 // Summarize returns the summary of a plan's rows.

@@ -1,0 +1,138 @@
+package main
+
+import (
+	"encoding/json"
+	"fmt"
+	"os"
+	"path/filepath"
+	"strings"
+	"testing"
+)
+
+// TestSweepDemoGolden is a regression guard on the sweep outputs (tables
+// and JSON) of the demo, with the stand-in solve of compare_test.go.
+func TestSweepDemoGolden(t *testing.T) {
+	withFakeSolve(t)
+	args := []string{"sweep", "--demo", "--quiet", "--vary", "tariff=0.8,1.2", "--vary", "budget=0.25,1,2", "--vary", "capex=1.5,0.5"}
+	code, out, errOut := runCLI(args...)
+	if code != exitOK {
+		t.Fatalf("exit code: got %d, want %d\n%s", code, exitOK, errOut)
+	}
+	checkGolden(t, "sweep/demo.golden", []byte(out))
+	for _, want := range []string{"Tornado", "Budget frontier", "budget not enforced", "decision support"} {
+		if !strings.Contains(out, want) {
+			t.Errorf("output lacks %q", want)
+		}
+	}
+	code, out, errOut = runCLI(append(args, "--json")...)
+	if code != exitOK {
+		t.Fatalf("--json exit code: got %d, want %d\n%s", code, exitOK, errOut)
+	}
+	checkGolden(t, "sweep/demo.json", []byte(out))
+	// DESIGN.md §4: {"scenarios": [...]} in grid order (values in the order
+	// given, the first --vary outermost), each with its factor values,
+	// status and objective.
+	var doc struct {
+		Scenarios []struct {
+			Factors   map[string]float64 `json:"factors"`
+			Status    string             `json:"status"`
+			Objective *float64           `json:"objective"`
+		} `json:"scenarios"`
+	}
+	if err := json.Unmarshal([]byte(out), &doc); err != nil {
+		t.Fatal(err)
+	}
+	if len(doc.Scenarios) != 12 {
+		t.Fatalf("got %d scenarios, want 2 × 3 × 2 = 12", len(doc.Scenarios))
+	}
+	want := func(j int) (float64, float64, float64) {
+		return []float64{0.8, 1.2}[j/6], []float64{0.25, 1, 2}[j/2%3], []float64{1.5, 0.5}[j%2]
+	}
+	for j, s := range doc.Scenarios {
+		tariff, budget, capex := want(j)
+		if s.Factors["tariff"] != tariff || s.Factors["budget"] != budget || s.Factors["capex"] != capex {
+			t.Errorf("scenario %d: got %v, want tariff=%g budget=%g capex=%g", j, s.Factors, tariff, budget, capex)
+		}
+		if s.Status == "" || (s.Status == "optimal") != (s.Objective != nil) {
+			t.Errorf("scenario %d: status %q with objective %v", j, s.Status, s.Objective)
+		}
+	}
+}
+
+// TestSweepShardsMergeCLI runs a small synthetic sweep with the real solve
+// whole and in three shards, and checks that sweep merge prints exactly the
+// whole run's JSON and tables.
+func TestSweepShardsMergeCLI(t *testing.T) {
+	dir := t.TempDir()
+	if code, _, errOut := runCLI("demo", "--sites", "5", "--years", "3", "--seed", "11", filepath.Join(dir, "case")); code != exitOK {
+		t.Fatalf("demo --sites: exit %d: %s", code, errOut)
+	}
+	path := filepath.Join(dir, "case", "case.toml")
+	args := []string{"sweep", path, "--quiet", "--gap", "1e-9", "--vary", "growth=0.5,1.5", "--vary", "tariff=0.7,1,1.3", "--jobs", "2"}
+	code, whole, errOut := runCLI(append(args, "--json")...)
+	if code != exitOK {
+		t.Fatalf("whole sweep: exit %d: %s", code, errOut)
+	}
+	_, wholeText, _ := runCLI(args...)
+	var parts []string
+	for i := 0; i < 3; i++ {
+		part := filepath.Join(dir, fmt.Sprintf("part-%d.jsonl", i))
+		if code, _, errOut := runCLI(append(args, "--shard", fmt.Sprintf("%d/3", i), "--out", part)...); code != exitOK {
+			t.Fatalf("shard %d: exit %d: %s", i, code, errOut)
+		}
+		parts = append(parts, part)
+	}
+	code, merged, errOut := runCLI(append([]string{"sweep", "merge", "--json"}, parts...)...)
+	if code != exitOK {
+		t.Fatalf("merge: exit %d: %s", code, errOut)
+	}
+	if merged != whole {
+		t.Errorf("merged shards differ from the whole sweep:\n%s\nwant:\n%s", merged, whole)
+	}
+	if _, mergedText, _ := runCLI(append([]string{"sweep", "merge"}, parts...)...); mergedText != wholeText {
+		t.Errorf("merged tables differ from the whole sweep's")
+	}
+	code, _, errOut = runCLI("sweep", "merge", parts[0], parts[2])
+	if code != exitBadInput || !strings.Contains(errOut, "missing shards [1]") {
+		t.Errorf("merge without shard 1: exit %d, stderr %q; want %d and the missing shard named", code, errOut, exitBadInput)
+	}
+	// A shard's lines: a header, then its scenarios j with j mod 3 = 1.
+	data, err := os.ReadFile(parts[1])
+	if err != nil {
+		t.Fatal(err)
+	}
+	lines := strings.Split(strings.TrimSpace(string(data)), "\n")
+	if !strings.HasPrefix(lines[0], `{"sweep":`) {
+		t.Fatalf("first line %q is no header", lines[0])
+	}
+	for _, line := range lines[1:] {
+		var rec struct{ Index int }
+		if err := json.Unmarshal([]byte(line), &rec); err != nil {
+			t.Fatal(err)
+		}
+		if rec.Index%3 != 1 {
+			t.Errorf("shard 1/3 holds scenario %d", rec.Index)
+		}
+	}
+}
+
+func TestSweepUsage(t *testing.T) {
+	for _, tt := range []struct {
+		args []string
+		want string
+	}{
+		{[]string{"sweep", "--demo"}, "--vary"},
+		{[]string{"sweep", "--demo", "--vary", "speed=1,2"}, "unknown factor"},
+		{[]string{"sweep", "--demo", "--vary", "growth=1", "--vary", "growth=2"}, "varied twice"},
+		{[]string{"sweep", "--demo", "--vary", "growth=1", "--shard", "2/2"}, "0 ≤ i < n"},
+		{[]string{"sweep", "--demo", "--vary", "growth=1", "--shard", "0/2", "--json"}, "JSON lines"},
+		{[]string{"sweep", "--demo", "--vary", "growth=1", "--jobs", "-1"}, "--jobs"},
+		{[]string{"sweep", "merge"}, "arg"},
+		{[]string{"sweep", "merge", "no-such-file.jsonl"}, "no-such-file"},
+	} {
+		code, _, errOut := runCLI(tt.args...)
+		if code != exitBadInput || !strings.Contains(errOut, tt.want) {
+			t.Errorf("%v: got exit %d, stderr %q; want %d mentioning %q", tt.args, code, errOut, exitBadInput, tt.want)
+		}
+	}
+}
