@@ -31,9 +31,9 @@ func init() {
 		flags: func(c *cobra.Command) {
 			cmd = c
 			f := c.Flags()
-			f.IntVar(&sites, "sites", 0, "write a synthetic case with `N` sites instead of the demo (random network, gravity-model demands)")
-			f.IntVar(&years, "years", defaultSynthYears, "horizon of the synthetic case in `years` (with --sites)")
-			f.Int64Var(&seed, "seed", defaultSynthSeed, "random `seed` of the synthetic case (with --sites); same seed, same case")
+			f.IntVar(&sites, "sites", 0, "write a synthetic case with `N` sites instead of the demo (random network, gravity-model demands; benchmark sizes: 10, 25, 50 sites over 5, 7, 10 years)")
+			f.IntVar(&years, "years", defaultSynthYears, "horizon of the synthetic case: `T` years (with --sites)")
+			f.Int64Var(&seed, "seed", defaultSynthSeed, "random seed `S` of the synthetic case (with --sites); same seed, same case")
 		},
 		write: func(env *cmdEnv, dir string, force bool) (bool, error) {
 			f := cmd.Flags()
