@@ -167,7 +167,7 @@ func runSweep(ctx context.Context, env *cmdEnv, opts *sweepOptions) error {
 	}
 	out, err := scenario.Run(ctx, c, grid, ro)
 	if err != nil {
-		if errors.Is(err, scenario.ErrUnknownFactor) || strings.Contains(err.Error(), "growth") {
+		if errors.Is(err, scenario.ErrBadScenario) {
 			return withCode(exitBadInput, err)
 		}
 		return withCode(exitFailure, err)

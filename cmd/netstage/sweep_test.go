@@ -127,6 +127,7 @@ func TestSweepUsage(t *testing.T) {
 		{[]string{"sweep", "--demo", "--vary", "growth=1", "--shard", "2/2"}, "0 ≤ i < n"},
 		{[]string{"sweep", "--demo", "--vary", "growth=1", "--shard", "0/2", "--json"}, "JSON lines"},
 		{[]string{"sweep", "--demo", "--vary", "growth=1", "--jobs", "-1"}, "--jobs"},
+		{[]string{"sweep", "--demo", "--vary", "growth=-100"}, "growth rate"},
 		{[]string{"sweep", "merge"}, "arg"},
 		{[]string{"sweep", "merge", "no-such-file.jsonl"}, "no-such-file"},
 	} {

@@ -70,7 +70,7 @@ func knownFactor(name string) bool {
 }
 
 // checkValue rejects values that make no case: negative prices, tariffs or
-// budgets, and discount rates at or below −100 %.
+// budgets, and discount rates outside [0, 1).
 func checkValue(name string, v float64) error {
 	switch name {
 	case Tariff, Capex, Budget:
@@ -78,8 +78,9 @@ func checkValue(name string, v float64) error {
 			return fmt.Errorf("scenario: %s multiplier %g: must be ≥ 0", name, v)
 		}
 	case DiscountRate:
-		if v <= -1 {
-			return fmt.Errorf("scenario: discount_rate %g: must be > -1", v)
+		// the range the case file allows (plans: discount_rate)
+		if v < 0 || v >= 1 {
+			return fmt.Errorf("scenario: discount_rate %g: must be a fraction ≥ 0 and < 1 (0.08 = 8 %%)", v)
 		}
 	}
 	return nil

@@ -25,7 +25,8 @@ func TestParseVary(t *testing.T) {
 		{in: "growth=", wantErr: "want NAME=v1,v2"},
 		{in: "capex=1,x", wantErr: "not a finite number"},
 		{in: "budget=-1", wantErr: "must be ≥ 0"},
-		{in: "discount_rate=-1", wantErr: "must be > -1"},
+		{in: "discount_rate=-0.01", wantErr: "≥ 0 and < 1"},
+		{in: "discount_rate=1", wantErr: "≥ 0 and < 1"},
 		{in: "tariff=NaN", wantErr: "not a finite number"},
 	}
 	for _, tt := range tests {

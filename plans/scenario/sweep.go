@@ -2,6 +2,7 @@ package scenario
 
 import (
 	"context"
+	"errors"
 	"fmt"
 	"math"
 	"sort"
@@ -45,6 +46,10 @@ const (
 	RegretNotEvaluated = "not_evaluated" // no evaluator was given
 	RegretInconsistent = "inconsistent"  // the base plan is valued above the scenario's proven bound
 )
+
+// ErrBadScenario is wrapped by Run's error when a grid point makes no case
+// (bad input, found before any solve).
+var ErrBadScenario = errors.New("scenario: a grid point makes no valid case")
 
 // StatusError is the status of a scenario whose solve failed at run time.
 const StatusError = "error"
@@ -220,7 +225,7 @@ func Run(ctx context.Context, c *plans.Case, grid Grid, opts Options) (*Output, 
 		}
 		cc, err := Apply(c, p)
 		if err != nil {
-			return nil, fmt.Errorf("%w (scenario %s)", err, p)
+			return nil, fmt.Errorf("%w: %w (scenario %s)", ErrBadScenario, err, p)
 		}
 		cases[j] = cc
 	}
