@@ -1,10 +1,8 @@
 package mip
 
 import (
-	"fmt"
 	"math"
 	"sort"
-	"strings"
 
 	"netstage/lp"
 )
@@ -34,6 +32,9 @@ const (
 	minGomoryFrac = 0.01
 	// cutAgeLimit is the number of rounds an inactive cut stays in the LP.
 	cutAgeLimit = 3
+	// minCutsToAgeOut is the number of old cuts (or a tenth of the rows)
+	// that makes removing them from the LP worth a rebuild.
+	minCutsToAgeOut = 20
 	// maxCutsPerRound limits the rows added at once.
 	maxCutsPerRound = 200
 	// maxGomoryRows limits the tableau rows read per round.
@@ -69,14 +70,24 @@ func (c *cut) row(name string) lp.Row {
 	return lp.Row{Name: name, Lower: c.lower, Upper: c.upper, Index: c.idx, Value: c.val}
 }
 
-// key identifies a cut up to tiny differences, against duplicates.
-func (c *cut) key() string {
-	var b strings.Builder
-	for k, j := range c.idx {
-		fmt.Fprintf(&b, "%d:%.9g,", j, c.val[k])
+// key identifies a cut (exact coefficients), against duplicates: a 64-bit
+// FNV-1a hash of indices, coefficient bits and sides.
+func (c *cut) key() uint64 {
+	h := uint64(14695981039346656037)
+	mix := func(v uint64) {
+		for k := 0; k < 8; k++ {
+			h ^= v & 0xff
+			h *= 1099511628211
+			v >>= 8
+		}
 	}
-	fmt.Fprintf(&b, "|%.9g|%.9g", c.lower, c.upper)
-	return b.String()
+	for k, j := range c.idx {
+		mix(uint64(j))
+		mix(math.Float64bits(c.val[k]))
+	}
+	mix(math.Float64bits(c.lower))
+	mix(math.Float64bits(c.upper))
+	return h
 }
 
 // numericallySafe reports whether the cut's coefficients have a moderate

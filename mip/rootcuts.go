@@ -171,7 +171,8 @@ func (s *search) ageCuts(final bool) {
 			drop = append(drop, c.lpRow)
 		}
 	}
-	if len(drop) == 0 {
+	// Removing rows costs a rebuild of the LP: wait until enough are old.
+	if len(drop) == 0 || (!final && len(drop) < minCutsToAgeOut && 10*len(drop) < s.lps.NumRows()) {
 		return
 	}
 	sort.Ints(drop)

@@ -50,7 +50,7 @@ func (s *search) run(starts [][]float64) Result {
 	s.lpUp = append([]float64(nil), p.work.ColUpper...)
 	s.prop = newPropagator(p)
 	s.pc = newPseudocosts(n)
-	s.poolKeys = map[string]bool{}
+	s.poolKeys = map[uint64]bool{}
 	s.initRows()
 	s.initLocks()
 

@@ -112,7 +112,7 @@ type search struct {
 
 	rows     []lpRowInfo // every LP row, original then cuts
 	pool     []*cut
-	poolKeys map[string]bool
+	poolKeys map[uint64]bool
 	nCuts    int
 
 	downLocks, upLocks []int

@@ -195,7 +195,7 @@ func (s *search) processNode(nd *node, warm bool) (kids []*node, ok bool) {
 		s.tryCandidate(r.X)
 		return nil, true
 	}
-	br := branchChoice{col: frac[0], downGain: math.NaN(), upGain: math.NaN()}
+	br := branchChoice{col: frac[0], downGain: math.NaN(), upGain: math.NaN(), downBound: math.Inf(-1), upBound: math.Inf(-1)}
 	return s.makeChildren(nd, r, math.Max(p.roundBound(r.Objective), nd.bound), br), true
 }
 
@@ -235,8 +235,11 @@ type branchChoice struct {
 	outcome          branchOutcome
 	col              int
 	downGain, upGain float64 // strong-branching gains (NaN when unknown)
-	fixed            []int
-	pruneBound       float64
+	// LP optima of the children when strong branching solved them to
+	// optimality (−Inf otherwise): valid bounds for the children.
+	downBound, upBound float64
+	fixed              []int
+	pruneBound         float64
 }
 
 // chooseBranch picks the branching column by reliability branching:
@@ -261,7 +264,7 @@ func (s *search) chooseBranch(r lp.Result, frac []int, bound float64) branchChoi
 		}
 		return cands[a].j < cands[b].j
 	})
-	best := branchChoice{col: cands[0].j, downGain: math.NaN(), upGain: math.NaN()}
+	best := branchChoice{col: cands[0].j, downGain: math.NaN(), upGain: math.NaN(), downBound: math.Inf(-1), upBound: math.Inf(-1)}
 	bestScore := -1.0
 	if s.set.NoStrongBranching {
 		best.col = cands[0].j
@@ -274,6 +277,7 @@ func (s *search) chooseBranch(r lp.Result, frac []int, bound float64) branchChoi
 	for _, c := range cands {
 		sc := c.score
 		dg, ug := math.NaN(), math.NaN()
+		dBound, uBound := math.Inf(-1), math.Inf(-1)
 		if !s.pc.reliable(c.j) && sbDone < maxStrongBranch && noImprove < strongLookahead {
 			if state == nil {
 				state = s.lps.SaveState()
@@ -305,6 +309,12 @@ func (s *search) chooseBranch(r lp.Result, frac []int, bound float64) branchChoi
 				s.up[j] = fl
 				return branchChoice{outcome: branchResolve, fixed: []int{j}}
 			}
+			if rd.Status == lp.Optimal {
+				dBound = rd.Objective
+			}
+			if ru.Status == lp.Optimal {
+				uBound = ru.Objective
+			}
 			if usable(rd) {
 				dg = math.Max(rd.Objective-r.Objective, 0)
 				s.pc.update(j, false, c.f, dg)
@@ -325,7 +335,7 @@ func (s *search) chooseBranch(r lp.Result, frac []int, bound float64) branchChoi
 		}
 		if sc > bestScore {
 			bestScore = sc
-			best = branchChoice{col: c.j, downGain: dg, upGain: ug}
+			best = branchChoice{col: c.j, downGain: dg, upGain: ug, downBound: dBound, upBound: uBound}
 			noImprove = 0
 		} else {
 			noImprove++
@@ -376,15 +386,12 @@ func (s *search) makeChildren(nd *node, r lp.Result, bound float64, br branchCho
 	down := &node{id: s.nextID(), depth: nd.depth + 1, basis: &b, branchVar: j, branchUp: false,
 		branchDist: f, parentObj: r.Objective}
 	down.changes = append(append([]boundChange(nil), base...), boundChange{j, s.lo[j], math.Floor(x)})
-	down.bound = bound
-	if br.outcome == branchOn && !math.IsNaN(br.downGain) && false {
-		down.bound = s.p.roundBound(r.Objective + br.downGain)
-	}
+	down.bound = math.Max(bound, s.p.roundBound(br.downBound))
 	down.estimate = est + gd
 	up := &node{id: s.nextID(), depth: nd.depth + 1, basis: &b, branchVar: j, branchUp: true,
 		branchDist: 1 - f, parentObj: r.Objective}
 	up.changes = append(base, boundChange{j, math.Ceil(x), s.up[j]})
-	up.bound = bound
+	up.bound = math.Max(bound, s.p.roundBound(br.upBound))
 	up.estimate = est + gu
 	if gu < gd || (gu == gd && f >= 0.5) {
 		return []*node{up, down}
