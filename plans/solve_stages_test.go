@@ -1,0 +1,101 @@
+package plans
+
+import (
+	"context"
+	"testing"
+
+	"netstage/lp"
+)
+
+// TestShadowValue: with no items to buy and more forecast than capacity,
+// one more Gbps on the link carries one more Gbps of traffic: its value is
+// ceiling × 12 × tariff × DF_t (present value of a year's revenue on it;
+// source: the LP duality interpretation of a binding capacity row).
+func TestShadowValue(t *testing.T) {
+	const T, tariff, ceiling = 2, 50.0, 0.8
+	c := newCase(T, fpRate, "A", "B")
+	c.testLink("L", "A", "B", 100, 10, ceiling)
+	c.testDemand("A", "B", 20, 0, tariff)
+	res, err := Solve(context.Background(), c, SolveOptions{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, r := range res.Links {
+		y := r.Year - c.FirstYear + 1
+		want := ceiling * 12 * tariff * df(fpRate, y)
+		if r.ShadowValue == nil || !near(*r.ShadowValue, want, 1e-7) {
+			t.Errorf("%d: value of one more Gbps %v, want %.4f", r.Year, deref(r.ShadowValue), want)
+		}
+		if !r.AtCeiling || !near(r.UtilisationAfter, ceiling, 1e-7) {
+			t.Errorf("%d: utilisation %.4f at ceiling %v, want %.2f and flagged", r.Year, r.UtilisationAfter, r.AtCeiling, ceiling)
+		}
+	}
+	for _, d := range res.Demands {
+		if d.Reason != ReasonCapacity || !near(d.Unserved, 20-ceiling*10, 1e-7) {
+			t.Errorf("demand %+v: want %.1f Gbps unserved for capacity", d, 20-ceiling*10)
+		}
+	}
+}
+
+// TestShortestRouting: among routings of equal NPV the one with the fewest
+// Gbps·km is reported: A→B→C (200 km) rather than the direct 300 km link.
+func TestShortestRouting(t *testing.T) {
+	c := newCase(1, fpRate, "A", "B", "C")
+	c.testLink("AB", "A", "B", 100, 100, 1)
+	c.testLink("BC", "B", "C", 100, 100, 1)
+	c.testLink("AC", "A", "C", 300, 100, 1)
+	c.testDemand("A", "C", 5, 0, 10)
+	res, err := Solve(context.Background(), c, SolveOptions{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	want := map[string]float64{"AB": 0.05, "BC": 0.05, "AC": 0}
+	for _, r := range res.Links {
+		if !near(r.UtilisationAfter, want[r.Link], 1e-7) || !near(r.UtilisationBefore, want[r.Link], 1e-7) {
+			t.Errorf("link %s: utilisation before %.4f after %.4f, want %.4f", r.Link, r.UtilisationBefore, r.UtilisationAfter, want[r.Link])
+		}
+	}
+	checkInvariants(t, c, res)
+}
+
+// TestRoundUpHeuristic: the rounded LP point, with its integer decisions
+// fixed, leaves a feasible LP whose NPV is at most the relaxation's.
+func TestRoundUpHeuristic(t *testing.T) {
+	n := 6
+	if testing.Short() {
+		n = 3
+	}
+	for seed := 1; seed <= n; seed++ {
+		c, err := loadSynthetic(t, 4+seed%3, 4+seed%2, int64(seed))
+		if err != nil {
+			t.Fatal(err)
+		}
+		m, err := BuildModel(c, BuildOptions{})
+		if err != nil {
+			t.Fatal(err)
+		}
+		relax, err := lp.Solve(context.Background(), m.LP, lp.Settings{})
+		if err != nil || relax.Status != lp.Optimal {
+			t.Fatalf("seed %d: relaxation %v %v", seed, relax.Status, err)
+		}
+		cands := m.roundUpHeuristic(relax.X)
+		if len(cands) != 1 {
+			t.Fatalf("seed %d: %d candidates", seed, len(cands))
+		}
+		fixed := m.fixIntegers(cands[0])
+		r, err := lp.Solve(context.Background(), fixed, lp.Settings{})
+		if err != nil || r.Status != lp.Optimal {
+			t.Fatalf("seed %d: rounded point leaves an LP that is %v (%v)", seed, r.Status, err)
+		}
+		if r.Objective < relax.Objective-1e-6*abs(relax.Objective) {
+			t.Errorf("seed %d: rounded NPV %.2f above the relaxation's %.2f", seed, -r.Objective, -relax.Objective)
+		}
+	}
+}
+
+func abs(v float64) float64 {
+	if v < 0 {
+		return -v
+	}
+	return v
+}
