@@ -230,15 +230,15 @@ func (s *Solver) AddRows(rows []Row) {
 // panics on an index out of range.
 func (s *Solver) RemoveRows(idx []int) {
 	del := make([]bool, s.m)
-	any := false
+	some := false
 	for _, i := range idx {
 		if i < 0 || i >= s.m {
 			panic(fmt.Sprintf("lp: RemoveRows: row %d out of range", i))
 		}
 		del[i] = true
-		any = true
+		some = true
 	}
-	if !any {
+	if !some {
 		return
 	}
 	// Make every removed row's slack basic first.
