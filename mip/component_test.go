@@ -215,3 +215,73 @@ func removeNode(list []*node, n *node) []*node {
 	}
 	return list
 }
+
+// TestGomoryCutsValid derives Gomory mixed-integer cuts from the optimal
+// tableau of random pure integer programs and checks that every feasible
+// integer point (enumerated) satisfies them and the LP point does not.
+func TestGomoryCutsValid(t *testing.T) {
+	cuts := 0
+	count := int64(200)
+	if testing.Short() {
+		count = 60
+	}
+	for seed := int64(1); seed <= count; seed++ {
+		rng := rand.New(rand.NewSource(seed))
+		var m *lp.Model
+		if seed%5 == 0 {
+			m = randomBinaryMIP(rng)
+		} else {
+			m = randomRowModel(rng, false)
+			for j := range m.Obj {
+				m.Obj[j] = float64(rng.Intn(11) - 5)
+			}
+		}
+		p, ok := newProblem(m, DefaultIntTol)
+		if !ok {
+			continue
+		}
+		sv, err := lp.NewSolver(p.work, lp.Settings{})
+		if err != nil {
+			t.Fatal(err)
+		}
+		for j := 0; j < p.n; j++ {
+			sv.SetColBounds(j, p.lower[j], p.upper[j])
+		}
+		r := sv.Solve(nil)
+		if r.Status != lp.Optimal {
+			continue
+		}
+		s := &search{p: p}
+		s.initRows()
+		basis := sv.Basis()
+		buf := make([]float64, p.n+sv.NumRows())
+		for pos, v := range sv.BasicVars() {
+			if v >= p.n || !p.isInt[v] {
+				continue
+			}
+			for k := range buf {
+				buf[k] = 0
+			}
+			basic, value := sv.TableauRow(pos, buf)
+			c := gomoryFromRow(p, buf, basic, value, basis, p.lower, p.upper, s.rows)
+			if c == nil {
+				continue
+			}
+			cuts++
+			if c.violation(r.X) <= 1e-7 {
+				t.Errorf("seed %d: cut from row of column %d (value %v) does not cut off the LP point", seed, basic, value)
+			}
+			enumerate(p.lower, p.upper, func(y []float64) {
+				if !feasible(m, y) {
+					return
+				}
+				if v := c.violation(y); v > 1e-7 {
+					t.Fatalf("seed %d: Gomory cut %v ≥ %v cuts off feasible %v by %v", seed, c.val, c.lower, y, v)
+				}
+			})
+		}
+	}
+	if cuts < int(count)/5 {
+		t.Errorf("only %d cuts derived; the test exercises too little", cuts)
+	}
+}
