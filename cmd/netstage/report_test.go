@@ -28,6 +28,7 @@ func reportNumber(t *testing.T, s string) float64 {
 	case strings.HasSuffix(s, " Mbps"):
 		s, scale = strings.TrimSuffix(s, " Mbps"), 0.001
 	}
+	s = strings.ReplaceAll(s, "\u00a0", " ") // the no-break space after a currency code
 	if i := strings.LastIndexByte(s, ' '); i >= 0 {
 		s = s[i+1:]
 	}

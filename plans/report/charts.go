@@ -161,21 +161,24 @@ func (t yearTicks) Ticks(min, max float64) []plot.Tick {
 // thousands separators and the minus sign.
 type numberTicks struct{}
 
-func (numberTicks) Ticks(min, max float64) []plot.Tick {
-	ticks := plot.DefaultTicks{}.Ticks(min, max)
-	for i := range ticks {
-		if ticks[i].Label == "" {
+func (numberTicks) Ticks(lo, hi float64) []plot.Tick {
+	ticks := plot.DefaultTicks{}.Ticks(lo, hi)
+	// One number of decimals for all labels: the fewest that show every
+	// labelled value as gonum placed it (so 0, 25, 50 rather than 0.00).
+	dec := 0
+	for _, tk := range ticks {
+		if tk.Label == "" {
 			continue
 		}
-		v := ticks[i].Value
-		dec := 0
-		if s := ticks[i].Label; strings.Contains(s, ".") {
-			dec = len(s) - strings.Index(s, ".") - 1
+		if _, frac, ok := strings.Cut(trimZero(tk.Label), "."); ok {
+			dec = max(dec, len(frac))
 		}
-		if dec > 3 || strings.ContainsAny(ticks[i].Label, "e") {
-			dec = 3
+	}
+	dec = min(dec, 3)
+	for i := range ticks {
+		if ticks[i].Label != "" {
+			ticks[i].Label = formatFixed(ticks[i].Value, dec)
 		}
-		ticks[i].Label = formatFixed(v, dec)
 	}
 	return ticks
 }
@@ -238,25 +241,48 @@ func capexChart(c *plans.Case, r *plans.Result) (chart, error) {
 	}
 	b := &barPlot{XYs: bars, Width: 0.6, Fill: capexColor}
 	p.Add(b)
-	p.Legend.Add("capex in the order year", b)
+	b.Labels = true
+	legend := []namedThumb{{"capex in the order year (bar label: " + unit + ")", b}}
 	if capped {
 		seg := &budgetSteps{XYs: budget, Line: draw.LineStyle{Color: budgetColor, Width: vg.Points(1.6), Dashes: []vg.Length{vg.Points(5), vg.Points(3)}}}
 		p.Add(seg)
-		p.Legend.Add("yearly budget cap", seg)
+		legend = append(legend, namedThumb{"yearly budget cap", seg})
 	}
-	p.Legend.Top = true
-	p.Legend.Left = true
 	p.Y.Min = 0
-	p.Y.Max = maxAbs / scale * 1.25
+	p.Y.Max = maxAbs / scale * 1.12
 	if p.Y.Max == 0 {
 		p.Y.Max = 1
 	}
-	s, err := svgOf(chartWidth, chartHeight, func(dc draw.Canvas) { p.Draw(dc) })
+	s, err := withLegendBelow(p, legend, 1)
 	caption := "Capex paid in each order year (after volume discounts), with the yearly budget cap as a dashed step line."
 	if !capped {
 		caption = "Capex paid in each order year (after volume discounts). The case sets no yearly budget cap."
 	}
 	return chart{ID: "chart-capex", Title: "Capex by year against the budget", Caption: caption, SVG: s}, err
+}
+
+// legendRowHeight is the height of one legend row under a chart.
+const legendRowHeight = 0.55 * vg.Centimeter
+
+// withLegendBelow draws p with its legend in cols columns under the plot,
+// where it cannot hide data.
+func withLegendBelow(p *plot.Plot, legend []namedThumb, cols int) (string, error) {
+	rows := (len(legend) + cols - 1) / cols
+	legendH := vg.Length(rows)*legendRowHeight + 0.4*vg.Centimeter
+	return svgOf(chartWidth, chartHeight+legendH, func(dc draw.Canvas) {
+		p.Draw(draw.Crop(dc, 0, 0, legendH, 0))
+		drawLegendColumns(draw.Crop(dc, 1.2*vg.Centimeter, 0, 0, -chartHeight), legend, cols)
+	})
+}
+
+// thumbs draws several thumbnails on top of each other (a line and its
+// markers).
+type thumbs []plot.Thumbnailer
+
+func (t thumbs) Thumbnail(c *draw.Canvas) {
+	for _, x := range t {
+		x.Thumbnail(c)
+	}
 }
 
 // hGrid returns light horizontal grid lines only.
@@ -275,6 +301,8 @@ type barPlot struct {
 	Fill  color.Color
 	// NegFill, when set, colours bars below zero.
 	NegFill color.Color
+	// Labels prints each bar's value (in chart units, one decimal) at its end.
+	Labels bool
 }
 
 func (b *barPlot) Plot(c draw.Canvas, p *plot.Plot) {
@@ -291,6 +319,26 @@ func (b *barPlot) Plot(c draw.Canvas, p *plot.Plot) {
 		}
 		poly := c.ClipPolygonY([]vg.Point{{X: x0, Y: y0}, {X: x1, Y: y0}, {X: x1, Y: y1}, {X: x0, Y: y1}})
 		c.FillPolygon(fill, poly)
+		if b.Labels {
+			// Inside the top of the bar in white when it fits (clear of
+			// budget lines above), else just outside it.
+			sty := text.Style{Color: color.White, Font: font.From(chartFont, 8.5), XAlign: draw.XCenter, YAlign: draw.YTop, Handler: p.TextHandler}
+			at := vg.Point{X: (x0 + x1) / 2, Y: y1 - vg.Points(3)}
+			inside := math.Abs(float64(y1-y0)) > float64(vg.Points(16))
+			if pt.Y < 0 {
+				sty.YAlign = draw.YBottom
+				at.Y = y1 + vg.Points(3)
+			}
+			if !inside {
+				sty.Color = inkColor
+				if pt.Y >= 0 {
+					sty.YAlign, at.Y = draw.YBottom, y1+vg.Points(2)
+				} else {
+					sty.YAlign, at.Y = draw.YTop, y1-vg.Points(2)
+				}
+			}
+			c.FillText(sty, at, formatFixed(pt.Y, 1))
+		}
 	}
 }
 
@@ -372,11 +420,11 @@ func cashChart(c *plans.Case, r *plans.Result) (chart, error) {
 	zero, _ := plotter.NewLine(plotter.XYs{{X: float64(first) - 0.7, Y: 0}, {X: float64(last) + 0.7, Y: 0}})
 	zero.Color = inkColor
 	zero.Width = vg.Points(0.8)
-	bars := &barPlot{XYs: net, Width: 0.6, Fill: gainColor, NegFill: lossColor}
+	bars := &barPlot{XYs: net, Width: 0.6, Fill: gainColor, NegFill: lossColor, Labels: true}
 	p.Add(bars, zero)
-	p.Legend.Add("net cash flow of the year (plan)", bars)
+	legend := []namedThumb{{"net cash flow of the year, plan", bars}}
 	if neg := hasNegative(net); neg {
-		p.Legend.Add("net cash flow below zero", &barPlot{Fill: lossColor})
+		legend = append(legend, namedThumb{"net cash flow below zero", &barPlot{Fill: lossColor}})
 	}
 	if len(base) > 0 {
 		l, s, err := plotter.NewLinePoints(base)
@@ -386,7 +434,7 @@ func cashChart(c *plans.Case, r *plans.Result) (chart, error) {
 		l.Color, l.Width, l.Dashes = baseColor, vg.Points(1.5), []vg.Length{vg.Points(4), vg.Points(3)}
 		s.Shape, s.Color, s.Radius = draw.TriangleGlyph{}, baseColor, vg.Points(3)
 		p.Add(l, s)
-		p.Legend.Add("cumulative discounted cash flow, doing nothing", l, s)
+		legend = append(legend, namedThumb{"cumulative discounted cash flow, doing nothing", thumbs{l, s}})
 	}
 	l, s, err := plotter.NewLinePoints(cum)
 	if err != nil {
@@ -395,8 +443,7 @@ func cashChart(c *plans.Case, r *plans.Result) (chart, error) {
 	l.Color, l.Width = cumColor, vg.Points(1.8)
 	s.Shape, s.Color, s.Radius = draw.CircleGlyph{}, cumColor, vg.Points(3)
 	p.Add(l, s)
-	p.Legend.Add("cumulative discounted cash flow, plan", l, s)
-	p.Legend.Top, p.Legend.Left = true, true
+	legend = append(legend, namedThumb{"cumulative discounted cash flow, plan", thumbs{l, s}})
 	ymin, ymax := 0.0, 0.0
 	for _, set := range []plotter.XYs{net, cum, base} {
 		for _, pt := range set {
@@ -407,8 +454,8 @@ func cashChart(c *plans.Case, r *plans.Result) (chart, error) {
 	if span == 0 {
 		span = 1
 	}
-	p.Y.Min, p.Y.Max = ymin-0.05*span, ymax+0.45*span // room for the legend
-	svg, err := svgOf(chartWidth, chartHeight, func(dc draw.Canvas) { p.Draw(dc) })
+	p.Y.Min, p.Y.Max = ymin-0.05*span, ymax+0.08*span
+	svg, err := withLegendBelow(p, legend, 1)
 	return chart{
 		ID:    "chart-cash",
 		Title: "Net cash flow and cumulative discounted cash flow",
@@ -456,8 +503,8 @@ func utilChart(c *plans.Case, r *plans.Result) (chart, error) {
 		p.Add(&utilGridPlot{r: r, index: index, n: len(links), after: after})
 		return p
 	}
-	before := mk("Before the plan (doing nothing)", false)
-	after := mk("After the plan", true)
+	before := mk("Before the plan (doing nothing), % of capacity", false)
+	after := mk("After the plan, % of capacity", true)
 	rowH := 0.62 * vg.Centimeter
 	panelH := vg.Length(len(links))*rowH + 2.2*vg.Centimeter
 	legendH := 2.6 * vg.Centimeter
@@ -476,7 +523,7 @@ func utilChart(c *plans.Case, r *plans.Result) (chart, error) {
 		Title: "Peak utilisation by link and year, before and after the plan",
 		Caption: "Each cell is the link's peak utilisation in the busier direction in that year, as a share of its capacity. " +
 			"Orange cells with bold figures are at the utilisation ceiling: without more capacity, traffic there is turned away. " +
-			"A corner mark shows capacity added by the plan.",
+			"A frame with a corner mark shows capacity added by the plan.",
 		SVG: svg,
 	}, err
 }
@@ -495,6 +542,8 @@ func drawLegendColumns(c draw.Canvas, entries []namedThumb, cols int) {
 		sub.TextStyle.Font = font.From(chartFont, 9)
 		sub.TextStyle.Color = inkColor
 		sub.Top, sub.Left = true, true
+		sub.Padding = vg.Points(4)
+		sub.ThumbnailWidth = vg.Points(22)
 		for _, e := range entries[lo:hi] {
 			sub.Add(e.name, e.thumb)
 		}
@@ -516,7 +565,7 @@ var utilLegend = func() []namedThumb {
 	}
 	out = append(out,
 		namedThumb{"at the utilisation ceiling (bold figure)", swatch{fill: ceilingColor}},
-		namedThumb{"capacity added by the plan (corner mark)", swatch{fill: utilRamp[1], mark: true}},
+		namedThumb{"capacity added by the plan (frame and corner mark)", swatch{fill: utilRamp[1], mark: true}},
 		namedThumb{"no capacity (link not built)", swatch{fill: noCapColor}},
 	)
 	return out
@@ -538,7 +587,9 @@ func (s swatch) Thumbnail(c *draw.Canvas) {
 	c.FillPolygon(s.fill, []vg.Point{{X: x0, Y: y0}, {X: x1, Y: y0}, {X: x1, Y: y1}, {X: x0, Y: y1}})
 	c.StrokeLines(draw.LineStyle{Color: gridColor, Width: vg.Points(0.5)}, []vg.Point{{X: x0, Y: y0}, {X: x1, Y: y0}, {X: x1, Y: y1}, {X: x0, Y: y1}, {X: x0, Y: y0}})
 	if s.mark {
-		drawCornerMark(c, x1, y1, vg.Length(side)*0.55)
+		in := vg.Points(1.5)
+		c.StrokeLines(draw.LineStyle{Color: inkColor, Width: vg.Points(1.2)}, []vg.Point{{X: x0 + in, Y: y0 + in}, {X: x1 - in, Y: y0 + in}, {X: x1 - in, Y: y1 - in}, {X: x0 + in, Y: y1 - in}, {X: x0 + in, Y: y0 + in}})
+		drawCornerMark(c, x1, y1, vg.Length(side)*0.5)
 	}
 }
 
@@ -588,8 +639,12 @@ func (g *utilGridPlot) Plot(c draw.Canvas, p *plot.Plot) {
 		sty := text.Style{Color: txt, Font: f, XAlign: draw.XCenter, YAlign: draw.YCenter, Handler: p.TextHandler}
 		c.FillText(sty, vg.Point{X: (x0 + x1) / 2, Y: (y0 + y1) / 2}, label)
 		if g.after && ly.CapacityAfter > ly.CapacityBefore {
-			mark := txt
-			drawCornerMarkColor(&c, x1-vg.Points(1), y1-vg.Points(1), 0.28*(y1-y0), mark)
+			// Capacity added: an inset frame and a corner triangle in the
+			// text colour, so that the mark reads on every fill.
+			in := vg.Points(2.2)
+			frame := []vg.Point{{X: x0 + in, Y: y0 + in}, {X: x1 - in, Y: y0 + in}, {X: x1 - in, Y: y1 - in}, {X: x0 + in, Y: y1 - in}, {X: x0 + in, Y: y0 + in}}
+			c.StrokeLines(draw.LineStyle{Color: txt, Width: vg.Points(1.6)}, frame)
+			drawCornerMarkColor(&c, x1-in, y1-in, 0.42*(y1-y0), txt)
 		}
 	}
 }

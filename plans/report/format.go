@@ -69,9 +69,14 @@ func money(v float64) string {
 	return formatFixed(v, 0)
 }
 
-// moneyCur formats an amount with its currency code: "USD 1,234,567".
+// nbsp joins a currency code to its amount so that a line never breaks
+// between them.
+const nbsp = "\u00a0"
+
+// moneyCur formats an amount with its currency code: "USD 1,234,567"
+// (joined by a no-break space).
 func moneyCur(v float64, currency string) string {
-	return currency + " " + money(v)
+	return currency + nbsp + money(v)
 }
 
 // percent formats a fraction as a percentage with one decimal:
@@ -129,6 +134,7 @@ func parseNumber(s string) (float64, bool) {
 			break
 		}
 	}
+	s = strings.ReplaceAll(s, nbsp, " ")
 	if i := strings.LastIndexByte(s, ' '); i >= 0 {
 		s = s[i+1:] // drop a currency code
 	}

@@ -11,9 +11,10 @@ import (
 )
 
 // ceilingTolerance is how close (as a fraction of capacity) a utilisation
-// must come to its ceiling to count as "at the ceiling": the solver's
-// feasibility tolerance leaves values like 0.6999999.
-const ceilingTolerance = 1e-6
+// must come to its ceiling to count as "at the ceiling": half the printed
+// precision (0.1 %), so that a link shown at its ceiling is flagged as at
+// it (the solver leaves values like 0.79996 on an 80 % ceiling).
+const ceilingTolerance = 0.0005
 
 // view is everything a report shows, already formatted for people, so that
 // the HTML and the Markdown print the same numbers.
@@ -195,7 +196,20 @@ func decision(c *plans.Case, r *plans.Result) string {
 	case len(r.Plan) == 0:
 		fmt.Fprintf(&b, "Order nothing in %d: no upgrade earns its cost over %d–%d at the case's assumptions. ", first, first, first+c.Horizon-1)
 	case len(now) == 0:
-		fmt.Fprintf(&b, "Order nothing in %d; the first order falls in %d. ", first, nextYear)
+		var next []string
+		capex := 0.0
+		for _, p := range r.Plan {
+			if p.Year == nextYear {
+				next = append(next, purchaseText(p)+", order by "+orderBy(c, p))
+				capex += p.Capex
+			}
+		}
+		orders := "orders fall"
+		if len(next) == 1 {
+			orders = "order falls"
+		}
+		fmt.Fprintf(&b, "Order nothing in %d. The first %s in %d: %s, for a capex of %s. ",
+			first, orders, nextYear, joinAnd(next), moneyCur(capex, cur))
 	default:
 		capex := 0.0
 		items := make([]string, 0, len(now))
@@ -593,6 +607,12 @@ func linkReasons(c *plans.Case, r *plans.Result, link string, routes map[string]
 	peakAfter, peakYear := 0.0, 0
 	bestShadow, shadowYear := 0.0, 0
 	var ceil float64
+	inService := 0
+	for _, p := range r.Plan {
+		if p.Link == link && (inService == 0 || p.InService < inService) {
+			inService = p.InService
+		}
+	}
 	for _, ly := range r.Links {
 		if ly.Link != link {
 			continue
@@ -601,7 +621,7 @@ func linkReasons(c *plans.Case, r *plans.Result, link string, routes map[string]
 		if ceilingYear == 0 && ly.CapacityBefore > 0 && atCeiling(ly.UtilisationBefore, ly.Ceiling) {
 			ceilingYear = ly.Year
 		}
-		if ly.UtilisationAfter > peakAfter {
+		if ly.Year >= inService && ly.UtilisationAfter > peakAfter {
 			peakAfter, peakYear = ly.UtilisationAfter, ly.Year
 		}
 		if ly.ShadowValue != nil && *ly.ShadowValue > bestShadow {
@@ -615,7 +635,7 @@ func linkReasons(c *plans.Case, r *plans.Result, link string, routes map[string]
 		text = append(text, fmt.Sprintf("Without the plan the link stays below its %s utilisation ceiling; the upgrade lets the network carry more paying traffic or route it more cheaply.", percent(ceil)))
 	}
 	if peakYear != 0 {
-		text = append(text, fmt.Sprintf("With the plan its peak utilisation is %s (in %d).", percent(peakAfter), peakYear))
+		text = append(text, fmt.Sprintf("Once the new capacity is in service (%d), the link's highest peak utilisation is %s (in %d).", inService, percent(peakAfter), peakYear))
 	}
 	if shadowYear != 0 {
 		text = append(text, fmt.Sprintf("One more Gbps on this link would still add %s of NPV in %d, its most constrained year.", moneyCur(bestShadow, cur), shadowYear))
