@@ -53,6 +53,10 @@ func Export(c *Case, opts BuildOptions) (*lp.Model, error) {
 // of one more Gbps) → LP holding that NPV and minimising Gbps·km (a unique
 // routing) → cash flows recomputed from the decisions alone. An infeasible
 // case is explained by an elastic model (explain.go).
+//
+// SolveOptions.TimeLimit bounds the branch-and-bound; the LPs that decode
+// the plan afterwards (and the baseline LP before it) are not counted, and
+// run to their end even after ctx is cancelled.
 func Solve(ctx context.Context, c *Case, opts SolveOptions) (*Result, error) {
 	start := time.Now()
 	m, err := BuildModel(c, BuildOptions{NoCutSets: opts.NoCutSets})
@@ -81,13 +85,8 @@ func Solve(ctx context.Context, c *Case, opts SolveOptions) (*Result, error) {
 	if !opts.NoHeuristic {
 		set.Heuristic = m.roundUpHeuristic
 	}
-	mr, err := mipSolve(ctx, m.LP, set)
-	if err != nil {
-		return nil, fmt.Errorf("plans: %w", err)
-	}
-	res.Stats.Nodes, res.Stats.Iterations = mr.Nodes, mr.LPIterations
-	res.mipObjective = mr.Objective
-
+	// The baseline is one LP: solve it first, so that a stop during the
+	// search still leaves it.
 	base, err := solveBaseline(ctx, c)
 	if err != nil {
 		return nil, err
@@ -98,6 +97,12 @@ func Solve(ctx context.Context, c *Case, opts SolveOptions) (*Result, error) {
 		npv := sumPV(base.cashflow)
 		res.BaselineNPV = &npv
 	}
+	mr, err := mipSolve(ctx, m.LP, set)
+	if err != nil {
+		return nil, fmt.Errorf("plans: %w", err)
+	}
+	res.Stats.Nodes, res.Stats.Iterations = mr.Nodes, mr.LPIterations
+	res.mipObjective = mr.Objective
 
 	switch mr.Status {
 	case mip.Optimal:
@@ -127,7 +132,9 @@ func Solve(ctx context.Context, c *Case, opts SolveOptions) (*Result, error) {
 	}
 
 	res.model = m
-	if err := m.decode(ctx, res, mr.X, base); err != nil {
+	// Decoding the plan takes a few LPs; they run even after Ctrl-C or the
+	// time limit stopped the search, so that the best plan is reported.
+	if err := m.decode(context.WithoutCancel(ctx), res, mr.X, base); err != nil {
 		return nil, err
 	}
 	bound := -mr.Bound
