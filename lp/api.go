@@ -127,9 +127,12 @@ type Result struct {
 	ReducedCost []float64
 	Basis       Basis
 	Iterations  int
-	// Ray is a certificate when one was found: for Infeasible a Farkas ray
-	// over the rows (may be nil), for Unbounded a primal direction over the
-	// columns (may be nil).
+	// Ray is a certificate when one was found (it may be nil). For
+	// Infeasible it is y over the rows such that, for every x within the
+	// column bounds and every s within the row bounds, yᵀA·x − yᵀs < 0:
+	// no x gives A·x = s. For Unbounded it is a direction d over the
+	// columns along which every row and bound stays satisfied (A·d moves
+	// rows only towards their infinite side) and the objective improves.
 	Ray []float64
 }
 

@@ -58,6 +58,11 @@ func FuzzSolve(f *testing.F) {
 		if warm.Status != cold.Status {
 			t.Fatalf("branch: warm %v, cold %v", warm.Status, cold.Status)
 		}
+		if cold.Status == Infeasible {
+			if err := verifyFarkas(child, warm.Ray); err != nil {
+				t.Fatal(err)
+			}
+		}
 		if cold.Status == Optimal {
 			if err := verifyOptimal(child, warm); err != nil {
 				t.Fatal(err)

@@ -62,3 +62,28 @@ func TestNetlib(t *testing.T) {
 		})
 	}
 }
+
+// TestInfeasibleSamples solves the infeasible samples and checks their
+// certificates.
+// source: galenet is in the Netlib lp/infeas collection of infeasible
+// problems (from memory); clp (Debian coinor-clp 1.17) also reports
+// galenet, galenetbnds and exmip1.5 infeasible.
+func TestInfeasibleSamples(t *testing.T) {
+	for _, name := range []string{"galenet", "galenetbnds", "exmip1.5"} {
+		t.Run(name, func(t *testing.T) {
+			m := readSample(t, name)
+			for _, set := range []Settings{{}, {NoScaling: true, NoPerturbation: true}} {
+				r, err := Solve(context.Background(), m, set)
+				if err != nil {
+					t.Fatal(err)
+				}
+				if r.Status != Infeasible {
+					t.Fatalf("status %v, want infeasible", r.Status)
+				}
+				if err := verifyFarkas(m, r.Ray); err != nil {
+					t.Fatal(err)
+				}
+			}
+		})
+	}
+}

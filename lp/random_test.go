@@ -253,6 +253,9 @@ func TestInfeasibleAndUnbounded(t *testing.T) {
 		if err != nil || r.Status != Infeasible {
 			t.Fatalf("case %d: status %v (%v), want infeasible", k, r.Status, err)
 		}
+		if err := verifyFarkas(inf, r.Ray); err != nil {
+			t.Fatalf("case %d: %v", k, err)
+		}
 		// A new column that improves the objective, is unbounded above and
 		// only loosens ≥ rows makes a feasible LP unbounded.
 		unb := m.Clone()
@@ -289,6 +292,40 @@ func TestInfeasibleAndUnbounded(t *testing.T) {
 			}
 		}
 	}
+}
+
+// verifyFarkas checks an infeasibility certificate y over the rows: the
+// largest value of yᵀA·x − yᵀs over the column and row bounds must be
+// negative (coefficients below 1e-9 count as zero).
+func verifyFarkas(m *Model, y []float64) error {
+	if len(y) != m.NumRows() {
+		return fmt.Errorf("ray has %d entries, want %d", len(y), m.NumRows())
+	}
+	maxOver := func(c, lo, up float64) float64 {
+		switch {
+		case math.Abs(c) <= 1e-9:
+			return 0
+		case c > 0:
+			return c * up
+		}
+		return c * lo
+	}
+	h := 0.0
+	cols := m.Columns()
+	for j := 0; j < m.NumCols(); j++ {
+		c := 0.0
+		for p := cols.Start[j]; p < cols.Start[j+1]; p++ {
+			c += y[cols.Index[p]] * cols.Value[p]
+		}
+		h += maxOver(c, m.ColLower[j], m.ColUpper[j])
+	}
+	for i, yi := range y {
+		h += maxOver(-yi, m.RowLower[i], m.RowUpper[i])
+	}
+	if !(h < -1e-9) {
+		return fmt.Errorf("certificate does not prove infeasibility: max = %v", h)
+	}
+	return nil
 }
 
 // TestVerifyOptimalRejects makes sure the independent check can fail.

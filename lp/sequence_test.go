@@ -35,6 +35,11 @@ func TestRandomWarmSequences(t *testing.T) {
 			if r.Status != cold.Status {
 				t.Fatalf("model %d step %d: warm %v, cold %v", k, step, r.Status, cold.Status)
 			}
+			if r.Status == Infeasible {
+				if err := verifyFarkas(cur, r.Ray); err != nil {
+					t.Fatalf("model %d step %d: %v", k, step, err)
+				}
+			}
 			if r.Status == Optimal {
 				if err := verifyOptimal(cur, r); err != nil {
 					t.Fatalf("model %d step %d: %v", k, step, err)

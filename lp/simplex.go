@@ -691,6 +691,9 @@ func (s *Solver) dualSimplex(lim *limits, useCutoff bool) Status {
 		}
 		// Bound-flipping ratio test with Harris tolerances.
 		q, flips, st := s.dualRatioTest(sgn, math.Abs(delta), row)
+		if st == Infeasible {
+			s.ray = s.farkasRay(rho, sgn)
+		}
 		if st != StatusUnknown {
 			return st
 		}
@@ -852,6 +855,18 @@ func (s *Solver) dualRatioTest(sgn, slope float64, row []float64) (q int, flips 
 		cands = rest
 	}
 	return -1, nil, Infeasible
+}
+
+// farkasRay returns the infeasibility certificate of a leaving row whose
+// dual ratio test found no bound: y = sgn·diag(rowScale)·ρ over the rows
+// (model units), for which max (yᵀA·x − yᵀs) over the column and row
+// bounds is negative.
+func (s *Solver) farkasRay(rho []float64, sgn float64) []float64 {
+	y := make([]float64, s.m)
+	for i, r := range rho {
+		y[i] = sgn * r * s.rowScale[i]
+	}
+	return y
 }
 
 // applyFlips moves the listed nonbasic variables to their other bound and

@@ -538,7 +538,7 @@ func (s *Solver) Solve(ctx context.Context) Result {
 // result assembles a Result in model units.
 func (s *Solver) result(st Status) Result {
 	r := Result{Status: st, Iterations: s.iterations, Basis: s.Basis()}
-	if st == Unbounded {
+	if st == Unbounded || st == Infeasible {
 		r.Ray = s.ray
 	}
 	m := s.model
