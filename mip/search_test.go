@@ -128,7 +128,11 @@ func TestProgressReports(t *testing.T) {
 }
 
 func TestDeterministic(t *testing.T) {
-	m := readSample(t, "lseu")
+	name := "lseu"
+	if testing.Short() {
+		name = "p0033"
+	}
+	m := readSample(t, name)
 	a, _ := Solve(context.Background(), m, Settings{Seed: 3})
 	b, _ := Solve(context.Background(), m, Settings{Seed: 3})
 	if a.Nodes != b.Nodes || a.LPIterations != b.LPIterations || a.Objective != b.Objective {
