@@ -79,6 +79,14 @@ func TestModulePaysBackOrNot(t *testing.T) {
 			if bestYear == 0 && len(res.Plan) != 0 {
 				t.Errorf("plan %+v, want no purchase", res.Plan)
 			}
+			if bestYear == 0 {
+				// 10 Gbps left unserved that a module could carry: no profit.
+				for _, d := range res.Demands {
+					if d.Reason != ReasonNoProfit || !near(d.Unserved, 10, 1e-7) {
+						t.Errorf("demand %+v: want 10 Gbps unserved for no profit", d)
+					}
+				}
+			}
 			if bestYear > 0 && (len(res.Plan) != 1 || res.Plan[0].Year != c.Year(bestYear-1) || res.Plan[0].Units != 1) {
 				t.Errorf("plan %+v, want one unit in %d", res.Plan, c.Year(bestYear-1))
 			}
