@@ -213,6 +213,11 @@ func TestRandomAgainstGonum(t *testing.T) {
 					if r.Status != wantStatus {
 						t.Fatalf("case %d: status %v, gonum says %v", k, r.Status, wantStatus)
 					}
+					if wantStatus == Unbounded {
+						if err := verifyRay(m, r.Ray); err != nil {
+							t.Fatalf("case %d: %v", k, err)
+						}
+					}
 					if wantStatus != Optimal {
 						continue
 					}
@@ -274,22 +279,8 @@ func TestInfeasibleAndUnbounded(t *testing.T) {
 		if err != nil || r.Status != Unbounded {
 			t.Fatalf("case %d: status %v (%v), want unbounded", k, r.Status, err)
 		}
-		if r.Ray == nil {
-			t.Fatalf("case %d: no ray", k)
-		}
-		// The ray keeps the rows satisfied and improves the objective.
-		obj, act := unb.Evaluate(r.Ray)
-		gain := obj - unb.Constant
-		if unb.Sense == Maximize {
-			gain = -gain
-		}
-		if gain >= 0 {
-			t.Fatalf("case %d: ray does not improve the objective (%v)", k, gain)
-		}
-		for i, a := range act {
-			if a < -1e-9 {
-				t.Fatalf("case %d: ray decreases ≥ row %d by %v", k, i, a)
-			}
+		if err := verifyRay(unb, r.Ray); err != nil {
+			t.Fatalf("case %d: %v", k, err)
 		}
 	}
 }
@@ -324,6 +315,42 @@ func verifyFarkas(m *Model, y []float64) error {
 	}
 	if !(h < -1e-9) {
 		return fmt.Errorf("certificate does not prove infeasibility: max = %v", h)
+	}
+	return nil
+}
+
+// verifyRay checks an unbounded direction d over the columns: moving along
+// d never violates a bound or row (each coordinate and each row activity
+// moves only towards an infinite bound) and improves the objective.
+func verifyRay(m *Model, d []float64) error {
+	if len(d) != m.NumCols() {
+		return fmt.Errorf("ray has %d entries, want %d", len(d), m.NumCols())
+	}
+	scale := 0.0
+	for _, v := range d {
+		scale = math.Max(scale, math.Abs(v))
+	}
+	if scale == 0 {
+		return fmt.Errorf("zero ray")
+	}
+	tol := 1e-9 * scale
+	for j, v := range d {
+		if (v > tol && !math.IsInf(m.ColUpper[j], 1)) || (v < -tol && !math.IsInf(m.ColLower[j], -1)) {
+			return fmt.Errorf("ray moves column %d by %v towards a finite bound", j, v)
+		}
+	}
+	obj, act := m.Evaluate(d)
+	for i, a := range act {
+		if (a > tol && !math.IsInf(m.RowUpper[i], 1)) || (a < -tol && !math.IsInf(m.RowLower[i], -1)) {
+			return fmt.Errorf("ray moves row %d by %v towards a finite bound", i, a)
+		}
+	}
+	gain := obj - m.Constant
+	if m.Sense == Maximize {
+		gain = -gain
+	}
+	if !(gain < -tol) {
+		return fmt.Errorf("ray does not improve the objective (%v)", gain)
 	}
 	return nil
 }
