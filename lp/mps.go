@@ -32,16 +32,16 @@ const (
 
 // Errors wrapped by MPSError.
 var (
-	ErrMPSSection  = errors.New("unknown or misplaced section")
-	ErrMPSFields   = errors.New("wrong number of fields")
-	ErrMPSNumber   = errors.New("bad number")
-	ErrMPSRow      = errors.New("unknown row")
-	ErrMPSColumn   = errors.New("unknown column")
-	ErrMPSRowType  = errors.New("unknown row type")
-	ErrMPSBound    = errors.New("unknown or unsupported bound type")
-	ErrMPSDuplicat = errors.New("duplicate name")
-	ErrMPSMarker   = errors.New("bad integer marker")
-	ErrMPSEnd      = errors.New("missing ENDATA")
+	ErrMPSSection   = errors.New("unknown or misplaced section")
+	ErrMPSFields    = errors.New("wrong number of fields")
+	ErrMPSNumber    = errors.New("bad number")
+	ErrMPSRow       = errors.New("unknown row")
+	ErrMPSColumn    = errors.New("unknown column")
+	ErrMPSRowType   = errors.New("unknown row type")
+	ErrMPSBound     = errors.New("unknown or unsupported bound type")
+	ErrMPSDuplicate = errors.New("duplicate name")
+	ErrMPSMarker    = errors.New("bad integer marker")
+	ErrMPSEnd       = errors.New("missing ENDATA")
 	// ErrMPSUnsupported marks extensions beyond linear and integer
 	// programs (SOS, quadratic and conic sections, semi-continuous bounds).
 	ErrMPSUnsupported = errors.New("unsupported MPS extension")
@@ -261,7 +261,7 @@ func (p *mpsParser) row(f []string) error {
 	}
 	typ, name := strings.ToUpper(f[0]), f[1]
 	if _, dup := p.rowIdx[name]; dup || name == p.objRow && name != "" {
-		return p.errf(name, ErrMPSDuplicat)
+		return p.errf(name, ErrMPSDuplicate)
 	}
 	if typ == "N" && p.objRow == "" {
 		p.objRow = name

@@ -251,7 +251,7 @@ func TestReadMPSErrors(t *testing.T) {
 	}{
 		{"unknown section", "NAME t\nFOO\nENDATA\n", 2, ErrMPSSection},
 		{"row type", "NAME t\nROWS\n X r\nENDATA\n", 3, ErrMPSRowType},
-		{"duplicate row", "NAME t\nROWS\n N obj\n L r\n G r\nENDATA\n", 5, ErrMPSDuplicat},
+		{"duplicate row", "NAME t\nROWS\n N obj\n L r\n G r\nENDATA\n", 5, ErrMPSDuplicate},
 		{"unknown row", head + " x q 1\nENDATA\n", 6, ErrMPSRow},
 		{"bad number", head + " x r 1.2.3\nENDATA\n", 6, ErrMPSNumber},
 		{"fields", head + " x r\nENDATA\n", 6, ErrMPSFields},
