@@ -78,10 +78,29 @@ func TestRandomWarmSequences(t *testing.T) {
 				row := Row{Lower: math.Inf(-1), Upper: act - rng.Float64(), Index: idx, Value: val}
 				sv.AddRows([]Row{row})
 				cur.AddRow("", row.Lower, row.Upper, idx, val)
-			case op == 3 && cur.NumRows() > 1:
+			case op == 3 && cur.NumRows() > 2:
+				// Remove one or two rows.
+				i, k := rng.Intn(cur.NumRows()), rng.Intn(cur.NumRows())
+				sv.RemoveRows([]int{i, k})
+				var keep []int
+				for r := 0; r < cur.NumRows(); r++ {
+					if r != i && r != k {
+						keep = append(keep, r)
+					}
+				}
+				cur = cur.keepRows(keep)
+			case op == 3 && cur.NumRows() > 0:
+				// Loosen or tighten a row.
 				i := rng.Intn(cur.NumRows())
-				sv.RemoveRows([]int{i})
-				cur = cur.keepRows(without(cur.NumRows(), i))
+				lo, up := cur.RowLower[i], cur.RowUpper[i]
+				if !math.IsInf(up, 1) {
+					up += float64(rng.Intn(3) - 1)
+				}
+				if lo > up {
+					lo = up
+				}
+				sv.SetRowBounds(i, lo, up)
+				cur.RowLower[i], cur.RowUpper[i] = lo, up
 			case op == 4:
 				c := append([]float64(nil), cur.Obj...)
 				c[rng.Intn(len(c))] += float64(rng.Intn(5) - 2)

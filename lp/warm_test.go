@@ -4,6 +4,7 @@ import (
 	"context"
 	"math"
 	"testing"
+	"time"
 )
 
 // interiorColumn returns a column strictly between its bounds at the
@@ -313,6 +314,10 @@ func TestLimits(t *testing.T) {
 	if r.Status != IterationLimit || r.Iterations != 10 {
 		t.Fatalf("status %v after %d iterations, want iteration limit after 10", r.Status, r.Iterations)
 	}
+	r, _ = Solve(context.Background(), m, Settings{TimeLimit: time.Nanosecond})
+	if r.Status != TimeLimit {
+		t.Fatalf("status %v, want time limit", r.Status)
+	}
 	ctx, cancel := context.WithCancel(context.Background())
 	cancel()
 	r, _ = Solve(ctx, m, Settings{})
@@ -351,5 +356,39 @@ func TestSlackBasisWarm(t *testing.T) {
 			}
 			t.Logf("%d iterations (first solve %d)", r.Iterations, first.Iterations)
 		})
+	}
+}
+
+// TestSingularBasis loads a basis with two equal columns: the solve must
+// replace one by a slack and still reach the optimum.
+func TestSingularBasis(t *testing.T) {
+	m := readSample(t, "afiro")
+	dup := m.Clone()
+	cols := m.Columns()
+	j := 0
+	k := dup.AddCol("copy", m.Obj[j], m.ColLower[j], m.ColUpper[j])
+	for p := cols.Start[j]; p < cols.Start[j+1]; p++ {
+		dup.SetCoef(cols.Index[p], k, cols.Value[p])
+	}
+	sv, err := NewSolver(dup, Settings{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	b := sv.Basis()
+	b.Cols[j], b.Cols[k] = Basic, Basic
+	// Two slacks leave to keep the count: those of column j's first two rows.
+	b.Rows[cols.Index[cols.Start[j]]] = AtLower
+	b.Rows[cols.Index[cols.Start[j]+1]] = AtLower
+	if err := sv.SetBasis(b); err != nil {
+		t.Fatal(err)
+	}
+	r := sv.Solve(context.Background())
+	solveOK(t, dup, r)
+	want, _ := Solve(context.Background(), m, Settings{})
+	if !close(r.Objective, want.Objective, 1e-9) {
+		t.Fatalf("objective %v, want %v", r.Objective, want.Objective)
+	}
+	if err := sv.SetBasis(Basis{Cols: b.Cols, Rows: b.Rows[1:]}); err == nil {
+		t.Fatal("a basis of the wrong length was accepted")
 	}
 }
