@@ -23,10 +23,19 @@ const (
 	// shadowTol: shadow values smaller than this (case currency per Gbps)
 	// are reported as nil (the link does not bind).
 	shadowTol = 1e-6
-	// explainTimeShare is the part of the time limit (or explainTimeLimit
-	// without one) the elastic model may use to explain infeasibility.
+	// explainTimeLimit bounds the elastic searches that explain an
+	// infeasible case (the time limit, when shorter, bounds them instead).
 	explainTimeLimit = 30 * time.Second
+	// consistencyTol is the relative difference between the NPV
+	// recomputed from the plan and the MIP's objective above which Solve
+	// warns.
+	consistencyTol = 1e-6
 )
+
+// withinRel reports whether |a − b| ≤ rel·max(|a|, |b|, 1).
+func withinRel(a, b, rel float64) bool {
+	return math.Abs(a-b) <= rel*math.Max(1, math.Max(math.Abs(a), math.Abs(b)))
+}
 
 // mipSolve is the branch-and-bound used by Solve (a variable so that tests
 // can compare it with brute-force enumeration on tiny cases).
@@ -91,7 +100,9 @@ func Solve(ctx context.Context, c *Case, opts SolveOptions) (*Result, error) {
 	if err != nil {
 		return nil, err
 	}
-	if base != nil {
+	if base == nil {
+		res.Warnings = append(res.Warnings, "the do-nothing baseline LP could not be solved: baseline and incremental figures are missing")
+	} else {
 		res.BaselineCashflow = base.cashflow
 		res.Shortfall = base.shortfall
 		npv := sumPV(base.cashflow)
@@ -136,6 +147,9 @@ func Solve(ctx context.Context, c *Case, opts SolveOptions) (*Result, error) {
 	// time limit stopped the search, so that the best plan is reported.
 	if err := m.decode(context.WithoutCancel(ctx), res, mr.X, base); err != nil {
 		return nil, err
+	}
+	if !withinRel(*res.Objective, -mr.Objective, consistencyTol) {
+		res.Warnings = append(res.Warnings, fmt.Sprintf("the NPV recomputed from the plan (%.2f) differs from the solver's objective (%.2f): numerical trouble, check the plan", *res.Objective, -mr.Objective))
 	}
 	bound := -mr.Bound
 	if res.Status == StatusOptimal && bound < *res.Objective {
