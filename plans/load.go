@@ -146,6 +146,13 @@ type decoder struct {
 	demandAt []catalog.Position
 	classAt  map[string]catalog.Position // class_ceiling keys
 	ratesAt  map[string]catalog.Position // exchange rate keys
+	itemAt   []filePos                   // of each Case.Items entry, in its catalog
+}
+
+// filePos is a position in a named file.
+type filePos struct {
+	file string
+	pos  catalog.Position
 }
 
 func (d *decoder) decodeCase(root *catalog.Table) *Case {

@@ -477,13 +477,16 @@ func TestWarnings(t *testing.T) {
 		{"some demands pay no tariff", [2]string{"tariff_erosion = 0.2\n", "tariff_erosion = 0.2\n\n[[demands]]\nfrom = \"A\"\nto = \"B\"\ngbps = 1\n"}, [2]string{}, "1 of 2 demands pay no tariff while the others do (A-B)"},
 		// 4 Gbps A→C over 10 Gbps links at ceiling 0.3: 40 % > 30 %.
 		{"above the ceiling in year 1", [2]string{"discount_rate = 0.1", "discount_rate = 0.1\nutilisation_ceiling = 0.3"}, [2]string{}, `link "AB" is already at 40 % utilisation in 2030 on shortest-path routing, above its ceiling of 30 %`},
+		{"candidate never in service", [2]string{"km = 20\ncapacity_gbps = 10", "km = 20\ncandidate = true\nbuild_cost = 1\nbook_life = 10\nlead_months = 40"}, [2]string{}, `candidate link "BC" takes 40 months: even built in 2030 it would not serve within the horizon`},
+		{"item never in service", [2]string{}, [2]string{"lead_months = 12", "lead_months = 45"}, `cat.toml:6:1: items.lead_months: item "m" of vendor "v" takes 45 months`},
+		{"item too big for every link", [2]string{`class = "metro"`, `class = "metro"` + "\nslots = 1"}, [2]string{"max_units = 2", "max_units = 2\nslots = 2"}, `item "m" of vendor "v" needs 2 slots per unit, more than any link it fits has free`},
 		{"delivery after the horizon", [2]string{"km = 10", "km = 10\non_order = [{gbps = 5, year = 2040}]"}, [2]string{}, "year 2040 is after the horizon (2030–2032); ignored"},
 	}
 	for _, tc := range tests {
 		t.Run(tc.name, func(t *testing.T) {
 			caseText := baseCase
-			if tc.caseEdit[0] != "" {
-				caseText = strings.Replace(caseText, tc.caseEdit[0], tc.caseEdit[1], 1)
+			if tc.caseEdit[0] != "" { // every occurrence: one edit may change all links
+				caseText = strings.ReplaceAll(caseText, tc.caseEdit[0], tc.caseEdit[1])
 			}
 			catText := baseCatalog
 			if tc.catEdit[0] != "" {

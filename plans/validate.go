@@ -115,6 +115,7 @@ func (d *decoder) resolveCatalogs(c *Case, cats []*catalog.Catalog) ErrorList {
 					catalog.ErrUnused, ci.ID, quoteList(it.Classes), strings.Join(classList, ", ")))
 			}
 			c.Items = append(c.Items, it)
+			d.itemAt = append(d.itemAt, filePos{cat.File, ci.Pos})
 		}
 	}
 	for i := range c.Vendors {
@@ -230,6 +231,31 @@ func (d *decoder) warnings(c *Case) {
 		}
 		if l.Candidate != nil && len(l.Items) == 0 {
 			d.src.WarnAt(d.linkAt[i], "links.candidate", fmt.Sprintf("candidate link %q could never carry traffic: no item fits it", l.ID))
+		}
+	}
+	for i, l := range c.Links {
+		if l.Candidate != nil && l.Candidate.InService[0] >= c.Horizon {
+			d.src.WarnAt(d.linkAt[i], "links.lead_months", fmt.Sprintf("candidate link %q takes %d months: even built in %d it would not serve within the horizon",
+				l.ID, l.Candidate.LeadMonths, c.FirstYear))
+		}
+	}
+	for ii, it := range c.Items {
+		v := c.Vendors[it.Vendor]
+		at := d.itemAt[ii]
+		warn := func(key, msg string) {
+			d.src.Warns = append(d.src.Warns, Warning{File: at.file, Line: at.pos.Line, Col: at.pos.Col, Key: key, Msg: msg})
+		}
+		if it.InService[0] >= c.Horizon {
+			warn("items.lead_months", fmt.Sprintf("item %q of vendor %q takes %d months: even ordered in %d it would not serve within the horizon",
+				it.ID, v.ID, it.LeadMonths, c.FirstYear))
+		}
+		room := false
+		for _, l := range c.Links {
+			room = room || it.Fits(l.Class) && (l.Slots == UnlimitedSlots || l.Slots >= it.SlotsPerUnit)
+		}
+		if !room {
+			warn("items.slots", fmt.Sprintf("item %q of vendor %q needs %d slots per unit, more than any link it fits has free",
+				it.ID, v.ID, it.SlotsPerUnit))
 		}
 	}
 	var free []int
