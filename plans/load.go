@@ -145,7 +145,6 @@ type decoder struct {
 	linkAt   []catalog.Position
 	demandAt []catalog.Position
 	classAt  map[string]catalog.Position // class_ceiling keys
-	ratesAt  map[string]catalog.Position // exchange rate keys
 	itemAt   []filePos                   // of each Case.Items entry, in its catalog
 }
 
@@ -268,9 +267,7 @@ func (d *decoder) caseTable(c *Case, t *catalog.Table) {
 		}
 	}
 	if rates, ok := t.Sub("exchange_rates"); ok {
-		d.ratesAt = map[string]catalog.Position{}
 		for _, k := range rates.Keys() {
-			d.ratesAt[k] = rates.Pos(k)
 			if !catalog.IsCurrency(k) {
 				rates.Errorf(k, catalog.ErrRange, "%q is not a three-letter currency code like EUR", k)
 				continue
