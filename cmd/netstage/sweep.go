@@ -8,6 +8,7 @@ package main
 import (
 	"bytes"
 	"context"
+	"crypto/sha256"
 	"encoding/json"
 	"errors"
 	"fmt"
@@ -21,6 +22,7 @@ import (
 
 	"github.com/spf13/cobra"
 
+	"netstage/plans"
 	"netstage/plans/scenario"
 )
 
@@ -161,7 +163,19 @@ func runSweep(ctx context.Context, env *cmdEnv, opts *sweepOptions) error {
 	if jobs == 0 {
 		jobs = runtime.NumCPU()
 	}
-	ro := scenario.Options{Solve: solve, Jobs: jobs, Shard: shard, Settings: sweepSettings(opts)}
+	digest, err := caseDigest(c)
+	if err != nil {
+		return withCode(exitFailure, err)
+	}
+	ro := scenario.Options{Solve: solve, Jobs: jobs, Shard: shard, Settings: sweepSettings(opts), CaseDigest: digest}
+	if !opts.quiet && isTerminal(env.stderr) {
+		ro.Progress = func(done, total int) {
+			fmt.Fprintf(env.stderr, "\rsweep: %d/%d scenarios solved", done, total)
+			if done == total {
+				fmt.Fprintln(env.stderr)
+			}
+		}
+	}
 	if !opts.noRegret {
 		ro.Evaluate = scenario.FixedPlanEvaluator(solve)
 	}
@@ -187,6 +201,30 @@ func runSweep(ctx context.Context, env *cmdEnv, opts *sweepOptions) error {
 		return withCode(exitFailure, err)
 	}
 	return writeOutput(env, opts.out, buf.Bytes())
+}
+
+// caseDigest identifies the content of a case: a SHA-256 of its case file
+// and catalog files, or of the embedded demo's name and the netstage
+// version for the demo.
+func caseDigest(c *plans.Case) (string, error) {
+	h := sha256.New()
+	if c.File == "" {
+		fmt.Fprintf(h, "embedded demo %q, netstage %s\n", c.Name, version)
+	} else {
+		paths := []string{c.File}
+		for _, cf := range c.Catalogs {
+			paths = append(paths, cf.Path)
+		}
+		for _, p := range paths {
+			data, err := os.ReadFile(p)
+			if err != nil {
+				return "", fmt.Errorf("sweep: reading %s again for its digest: %w", p, err)
+			}
+			fmt.Fprintf(h, "%d\n", len(data))
+			h.Write(data)
+		}
+	}
+	return fmt.Sprintf("sha256:%x", h.Sum(nil)), nil
 }
 
 // sweepMergeOptions are the flags of sweep merge.

@@ -96,7 +96,7 @@ func Merge(shards []*Output) (*Output, error) {
 			return nil, err
 		}
 		if !bytes.Equal(k, key) {
-			return nil, fmt.Errorf("scenario: merge: shard %d/%d is from another sweep (case, factors or settings differ)", s.Header.Shard, s.Header.Shards)
+			return nil, fmt.Errorf("scenario: merge: shard %d/%d is from another sweep (case, factors, shard count or settings differ)", s.Header.Shard, s.Header.Shards)
 		}
 		if seen[s.Header.Shard] {
 			return nil, fmt.Errorf("scenario: merge: shard %d/%d given twice", s.Header.Shard, s.Header.Shards)

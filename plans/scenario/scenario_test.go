@@ -348,6 +348,8 @@ func TestMergeRejects(t *testing.T) {
 	}
 	s0, s1, s2 := shard(0, 3, ""), shard(1, 3, ""), shard(2, 3, "")
 	other := shard(2, 3, "gap=1e-9")
+	otherCase := *s2
+	otherCase.Header.CaseDigest = "sha256:another"
 	truncated := *s1
 	truncated.Records = truncated.Records[:len(truncated.Records)-1]
 	tests := []struct {
@@ -357,7 +359,8 @@ func TestMergeRejects(t *testing.T) {
 	}{
 		{"missing shard", []*Output{s0, s2}, "missing shards [1]"},
 		{"shard twice", []*Output{s0, s1, s1, s2}, "given twice"},
-		{"other sweep", []*Output{s0, s1, other}, "another sweep"},
+		{"other settings", []*Output{s0, s1, other}, "another sweep"},
+		{"other case content", []*Output{s0, s1, &otherCase}, "another sweep"},
 		{"incomplete shard", []*Output{s0, &truncated, s2}, "is missing"},
 	}
 	for _, tt := range tests {

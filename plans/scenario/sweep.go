@@ -175,6 +175,9 @@ type Header struct {
 	// Settings records the solve settings (gap, time limit) so that shards
 	// solved differently are not merged.
 	Settings string `json:"settings"`
+	// CaseDigest identifies the case's content (its files), so that shards
+	// of different cases with the same name are not merged.
+	CaseDigest string `json:"case_digest"`
 }
 
 // Options tune Run. The zero value of a field means its default.
@@ -187,8 +190,12 @@ type Options struct {
 	Jobs int
 	// Shard selects the share of the scenarios to run (zero: all).
 	Shard Shard
-	// Settings is copied into the Header.
-	Settings string
+	// Settings and CaseDigest are copied into the Header.
+	Settings, CaseDigest string
+	// Progress, when set, is called after each scenario with the number
+	// done and the number this run solves (from several goroutines, one
+	// call at a time).
+	Progress func(done, total int)
 }
 
 // Output is what one run of a sweep (or one shard of it) produced.
@@ -252,6 +259,7 @@ func Run(ctx context.Context, c *plans.Case, grid Grid, opts Options) (*Output, 
 		Shard:      opts.Shard.Index,
 		Shards:     max(opts.Shard.Of, 1),
 		Settings:   opts.Settings,
+		CaseDigest: opts.CaseDigest,
 	}}
 	var todo []int
 	for j := range points {
@@ -264,6 +272,8 @@ func Run(ctx context.Context, c *plans.Case, grid Grid, opts Options) (*Output, 
 	var wg sync.WaitGroup
 	next := make(chan int)
 	errs := make([]error, len(todo))
+	var progressMu sync.Mutex
+	done := 0
 	for w := 0; w < jobs; w++ {
 		wg.Add(1)
 		go func() {
@@ -282,6 +292,12 @@ func Run(ctx context.Context, c *plans.Case, grid Grid, opts Options) (*Output, 
 					errs[k] = regret(ctx, &rec, cases[j], res, basePlan, hasBasePlan, opts.Evaluate)
 				}
 				records[k] = rec
+				if opts.Progress != nil {
+					progressMu.Lock()
+					done++
+					opts.Progress(done, len(todo))
+					progressMu.Unlock()
+				}
 			}
 		}()
 	}
