@@ -565,7 +565,7 @@ var utilLegend = func() []namedThumb {
 	}
 	out = append(out,
 		namedThumb{"at the utilisation ceiling (bold figure)", swatch{fill: ceilingColor}},
-		namedThumb{"capacity added by the plan (frame and corner mark)", swatch{fill: utilRamp[1], mark: true}},
+		namedThumb{"capacity added by the plan", swatch{fill: utilRamp[1], mark: true}},
 		namedThumb{"no capacity (link not built)", swatch{fill: noCapColor}},
 	)
 	return out

@@ -44,11 +44,13 @@ figure h3 { margin-top:0; }
 figcaption { font-size:13px; color:var(--muted); margin-top:4px; }
 svg.chart { display:block; width:100%; height:auto; }
 table { border-collapse:collapse; width:100%; margin:8px 0 14px; font-size:13px; }
-th, td { padding:5px 8px; border-bottom:1px solid var(--rule); text-align:left; vertical-align:top; }
+th, td { padding:5px 7px; border-bottom:1px solid var(--rule); text-align:left; vertical-align:top; }
+th { vertical-align:bottom; }
 th { background:var(--band); font-weight:600; }
 thead { display:table-header-group; }
 tr { break-inside:avoid; page-break-inside:avoid; }
-td.num, th.num { text-align:right; font-variant-numeric:tabular-nums; white-space:nowrap; }
+td.num, th.num { text-align:right; font-variant-numeric:tabular-nums; }
+td.num { white-space:nowrap; }
 tr.total td { font-weight:600; border-top:2px solid var(--ink); }
 tr.stage td { background:#fafbfc; font-weight:600; }
 .why { break-inside:avoid; page-break-inside:avoid; margin-bottom:14px; }
@@ -66,8 +68,8 @@ tr.stage td { background:#fafbfc; font-weight:600; }
   .decision { font-size:11pt; }
   .keys { grid-template-columns:repeat(4,1fr); }
   .key .value { font-size:13pt; }
-  table { font-size:8.5pt; }
-  th, td { padding:3px 5px; }
+  table { font-size:8pt; }
+  th, td { padding:2.5pt 3.5pt; }
   .wide { overflow:visible; }
   section.charts figure { break-before:auto; }
   a { color:inherit; text-decoration:none; }
@@ -129,7 +131,7 @@ const htmlSource = `<!DOCTYPE html>
 
 <section id="cashflow">
 <h2>Cash flow</h2>
-<p class="note">{{.Currency}}, undiscounted except the present value (PV) columns. Net = revenue − opex − capex − tax{{if .HasPenalty}} − SLA penalty{{end}} + salvage. vs doing nothing: the year's net minus the net of the do-nothing network. Budgets are in the staged plan and the assumptions.</p>
+<p class="note">{{.Currency}}, undiscounted except the present value (PV) columns. Net = revenue − opex − capex − tax{{if .HasPenalty}} − SLA penalty{{end}} + salvage. The column “vs doing nothing” is the year's net minus the net of the do-nothing network. Budgets are in the staged plan and the assumptions.</p>
 <div class="wide"><table>
 <thead><tr><th>Year</th><th class="num">Revenue</th><th class="num">Opex</th><th class="num">Capex</th><th class="num">Tax</th>{{if .HasPenalty}}<th class="num">SLA penalty</th>{{end}}<th class="num">Salvage</th><th class="num">Net</th><th class="num">Discount factor</th><th class="num">PV</th><th class="num">Cumulative PV</th><th class="num">vs doing nothing</th></tr></thead>
 <tbody>

@@ -114,7 +114,7 @@ func writeMarkdown(w io.Writer, v *view) error {
 		if v.HasPenalty {
 			penalty = " − SLA penalty"
 		}
-		m.printf("%s, undiscounted except the present value (PV) columns. Net = revenue − opex − capex − tax%s + salvage. vs doing nothing: the year's net minus the net of the do-nothing network. Budgets are in the staged plan and the assumptions.\n\n", v.Currency, penalty)
+		m.printf("%s, undiscounted except the present value (PV) columns. Net = revenue − opex − capex − tax%s + salvage. The column “vs doing nothing” is the year's net minus the net of the do-nothing network. Budgets are in the staged plan and the assumptions.\n\n", v.Currency, penalty)
 		cols := []string{"Year", ">Revenue", ">Opex", ">Capex", ">Tax"}
 		if v.HasPenalty {
 			cols = append(cols, ">SLA penalty")

@@ -507,3 +507,21 @@ func TestOrderBy(t *testing.T) {
 		}
 	}
 }
+
+// TestCostMode: a network that earns no tariffs is judged on present cost;
+// the report says so and shows no IRR or payback (DESIGN.md §2).
+func TestCostMode(t *testing.T) {
+	c, r := solvedDemo(t)
+	cost := *r
+	cost.CostMode = true
+	cost.IRR, cost.PaybackYear = nil, nil
+	md := render(t, c, &cost, Markdown)
+	if !strings.Contains(md, "present cost is EUR\u00a0") {
+		t.Errorf("cost-mode decision does not give the present cost:\n%s", md[:min(len(md), 800)])
+	}
+	for _, bad := range []string{"| IRR |", "| Payback year |", "an NPV of"} {
+		if strings.Contains(md, bad) {
+			t.Errorf("cost-mode report contains %q", bad)
+		}
+	}
+}

@@ -638,7 +638,7 @@ func linkReasons(c *plans.Case, r *plans.Result, link string, routes map[string]
 		text = append(text, fmt.Sprintf("Once the new capacity is in service (%d), the link's highest peak utilisation is %s (in %d).", inService, percent(peakAfter), peakYear))
 	}
 	if shadowYear != 0 {
-		text = append(text, fmt.Sprintf("One more Gbps on this link would still add %s of NPV in %d, its most constrained year.", moneyCur(bestShadow, cur), shadowYear))
+		text = append(text, fmt.Sprintf("With the plan in place, one more Gbps on this link would add up to %s of NPV (in %d, its most constrained year).", moneyCur(bestShadow, cur), shadowYear))
 	} else {
 		text = append(text, "After the plan one more Gbps on this link adds no NPV: its capacity no longer limits the plan.")
 	}
