@@ -12,8 +12,10 @@ type pseudocosts struct {
 }
 
 // reliableCount is the number of observations after which a pseudocost is
-// trusted and strong branching is skipped (common practice: about 8).
-const reliableCount = 8
+// trusted and strong branching is skipped. Common practice is about 8; 4
+// was faster overall on the MIPLIB samples and the demo case here, where
+// strong branching is the largest cost of the search.
+const reliableCount = 4
 
 // minScoreGain keeps the product score informative when one side gains
 // nothing.
