@@ -5,6 +5,7 @@ import (
 	"context"
 	"encoding/json"
 	"flag"
+	"fmt"
 	"html"
 	"math"
 	"os"
@@ -522,6 +523,60 @@ func TestCostMode(t *testing.T) {
 	for _, bad := range []string{"| IRR |", "| Payback year |", "an NPV of"} {
 		if strings.Contains(md, bad) {
 			t.Errorf("cost-mode report contains %q", bad)
+		}
+	}
+}
+
+// TestShortfallAtRisk: committed traffic the do-nothing network cannot
+// carry shows up under the upgrade of a link on its route, with the
+// revenue at risk summed over the years and the SLA penalty.
+func TestShortfallAtRisk(t *testing.T) {
+	c, r := solvedDemo(t)
+	if len(r.Plan) == 0 {
+		t.Skip("the demo plan buys nothing: no upgrade to explain")
+	}
+	link := r.Plan[0].Link
+	routes := shortestRoutes(c, r)
+	if len(routes[link]) == 0 {
+		t.Fatalf("no demand routed over upgraded link %s", link)
+	}
+	d := routes[link][0]
+	short := *r
+	short.Shortfall = []plans.ShortfallRow{
+		{Demand: d, Year: c.FirstYear + 3, Committed: 30, Carried: 25, Shortfall: 5, Penalty: 2400, RevenueAtRisk: 1500},
+		{Demand: d, Year: c.FirstYear + 4, Committed: 36, Carried: 25, Shortfall: 11, Penalty: 5280, RevenueAtRisk: 3300.4},
+	}
+	md := render(t, c, &short, Markdown)
+	// 1,500 + 3,300.4 = 4,800.4 → "4,800"; penalties 2,400 + 5,280 = 7,680.
+	for _, want := range []string{"up to 11 Gbps in a year", "EUR\u00a04,800 of revenue at risk", "EUR\u00a07,680 of SLA penalties"} {
+		if !strings.Contains(md, want) {
+			t.Errorf("why-section of link %s lacks %q", link, want)
+		}
+	}
+}
+
+// TestDecisionThisYear: orders in the first year lead the decision, with
+// their capex against that year's budget.
+func TestDecisionThisYear(t *testing.T) {
+	c, r := solvedDemo(t)
+	if len(r.Plan) == 0 {
+		t.Skip("the demo plan buys nothing")
+	}
+	now := *r
+	now.Plan = append([]plans.PlanRow(nil), r.Plan...)
+	now.Plan[0].Year = c.FirstYear
+	v, err := buildView(c, &now)
+	if err != nil {
+		t.Fatal(err)
+	}
+	p := now.Plan[0]
+	want := fmt.Sprintf("In %d, order %d × %s on link %s from %s", c.FirstYear, p.Units, p.Item, p.Link, p.Vendor)
+	if !strings.HasPrefix(v.Decision, want) {
+		t.Errorf("decision starts %.120q, want %q", v.Decision, want)
+	}
+	if cf := cashYear(now.Cashflow, c.FirstYear); cf != nil && cf.Budget != nil {
+		if !strings.Contains(v.Decision, "against a budget of "+moneyCur(*cf.Budget, now.Currency)) {
+			t.Errorf("decision does not give the first year's budget: %q", v.Decision)
 		}
 	}
 }
