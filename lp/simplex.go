@@ -19,6 +19,12 @@ const (
 	// stallIterations: after this many consecutive degenerate dual pivots
 	// an unperturbed solve perturbs its costs (against cycling).
 	stallIterations = 50
+	// minPivotTol is the smallest pivot the dual ratio test falls back to
+	// before giving up on a row that cannot prove infeasibility.
+	minPivotTol = 1e-11
+	// certificateZero: entries of a tableau row below this are treated as
+	// zero when checking an infeasibility proof.
+	certificateZero = 1e-12
 	// safetyIterations (plus 50 per variable) ends a solve that has no
 	// iteration limit but runs far longer than the simplex method needs.
 	safetyIterations = 100000
@@ -690,7 +696,20 @@ func (s *Solver) dualSimplex(lim *limits, useCutoff bool) Status {
 			row[n+i] = -rho[i]
 		}
 		// Bound-flipping ratio test with Harris tolerances.
-		q, flips, st := s.dualRatioTest(sgn, math.Abs(delta), row)
+		usedTol := pivotTol
+		q, flips, st := s.dualRatioTest(sgn, math.Abs(delta), row, usedTol)
+		if st == Infeasible && !s.provesInfeasible(row, leave, sgn) {
+			// Entries below the pivot tolerance keep the row from proving
+			// infeasibility (badly scaled models): look again with smaller
+			// pivots, protected by the row/column pivot comparison.
+			for usedTol > minPivotTol && st == Infeasible {
+				usedTol /= 100
+				q, flips, st = s.dualRatioTest(sgn, math.Abs(delta), row, usedTol)
+			}
+			if st == Infeasible {
+				return NumericalTrouble
+			}
+		}
 		if st == Infeasible {
 			s.ray = s.farkasRay(rho, sgn)
 		}
@@ -714,7 +733,7 @@ func (s *Solver) dualSimplex(lim *limits, useCutoff bool) Status {
 			s.flipToDualFeasible(dtol)
 			continue
 		}
-		if math.Abs(arq) < pivotTol {
+		if math.Abs(arq) < usedTol {
 			if s.fac.numUpdates() > 0 {
 				if !s.refactor() {
 					return NumericalTrouble
@@ -798,7 +817,7 @@ type ratioCandidate struct {
 // positive are returned in flips: they move to their other bound. Among
 // the breakpoints at the final step, Harris' tolerance admits the largest
 // pivot. It returns Infeasible when the dual objective rises without limit.
-func (s *Solver) dualRatioTest(sgn, slope float64, row []float64) (q int, flips []int, st Status) {
+func (s *Solver) dualRatioTest(sgn, slope float64, row []float64, pivTol float64) (q int, flips []int, st Status) {
 	ptol, dtol := s.primalTol(), s.dualTol()
 	cands := s.cands[:0]
 	for v, vs := range s.stat {
@@ -806,7 +825,7 @@ func (s *Solver) dualRatioTest(sgn, slope float64, row []float64) (q int, flips 
 			continue
 		}
 		a := sgn * row[v]
-		if (a > pivotTol && (vs == AtLower || vs == AtZero)) || (a < -pivotTol && (vs == AtUpper || vs == AtZero)) {
+		if (a > pivTol && (vs == AtLower || vs == AtZero)) || (a < -pivTol && (vs == AtUpper || vs == AtZero)) {
 			cands = append(cands, ratioCandidate{v, a})
 		}
 	}
@@ -855,6 +874,32 @@ func (s *Solver) dualRatioTest(sgn, slope float64, row []float64) (q int, flips 
 		cands = rest
 	}
 	return -1, nil, Infeasible
+}
+
+// provesInfeasible checks, in the scaled model, that the tableau row of the
+// leaving variable proves infeasibility: the largest value over all bounds
+// of sgn·Σ row[v]·z_v (the leaving variable with coefficient 1, other basic
+// variables 0) must be below −feasibility tolerance. Entries under
+// certificateZero count as zero.
+func (s *Solver) provesInfeasible(row []float64, leave int, sgn float64) bool {
+	h := 0.0
+	add := func(c, lo, up float64) {
+		switch {
+		case math.Abs(c) <= certificateZero:
+		case c > 0:
+			h += c * up
+		default:
+			h += c * lo
+		}
+	}
+	for v, st := range s.stat {
+		if st == Basic {
+			continue
+		}
+		add(sgn*row[v], s.lo[v], s.up[v])
+	}
+	add(sgn, s.lo[leave], s.up[leave])
+	return h < -s.primalTol()
 }
 
 // farkasRay returns the infeasibility certificate of a leaving row whose
