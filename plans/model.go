@@ -44,7 +44,8 @@ const moneyScale = 1000
 //	tiers         Σ_k z = 1; list spend and unit count split  per vendor-year: 1 + G + 1 + 2·(tiers+1)
 //	              by tier; threshold·z_k ≤ part_k ≤ max·z_k
 //	budget        capex of year τ ≤ cap; Σ_τ capex ≤ cumulative cap  one per capped year (+1)
-//	cut-set       MIR-rounded node cuts on link capacities   ≤ |sites|·T·(distinct module sizes)
+//	cut-set       MIR roundings of site and linked-pair cuts ≤ 6·(|sites| + |links|)·T
+//	              (see addCutSets)
 //
 // So a case with n sites, m links, K demands and T years has about
 // 2·n·m·T flow columns and n²·T conservation rows: polynomial, never one
@@ -230,8 +231,7 @@ func BuildModel(c *Case, opts BuildOptions) (*Model, error) {
 		m.flow[si] = make([][]int, nArcs)
 		for a := 0; a < nArcs; a++ {
 			m.flow[si][a] = make([]int, T)
-			from, to := m.arcEnds(a)
-			_ = from
+			_, to := m.arcEnds(a)
 			for t := 0; t < T; t++ {
 				if to == s { // a commodity never needs to re-enter its source
 					m.flow[si][a][t] = -1

@@ -17,7 +17,6 @@ const heuristicIntTol = 1e-6
 // LP: mip re-optimises the continuous columns when they no longer fit.
 // Cost O(columns + nonzeros of the purchases).
 func (m *Model) roundUpHeuristic(xlp []float64) [][]float64 {
-	c := m.Case
 	x := append([]float64(nil), xlp...)
 	for oi := range m.options {
 		m.roundOption(x, xlp, oi, math.Ceil)
@@ -28,7 +27,6 @@ func (m *Model) roundUpHeuristic(xlp []float64) [][]float64 {
 		return nil
 	}
 	m.setTiers(x)
-	_ = c
 	return [][]float64{x}
 }
 
