@@ -946,7 +946,7 @@ func (s *Solver) applyFlips(flips []int) {
 // ratio test, bound flips) from a primal feasible basis until dual
 // feasibility (Optimal), an unbounded ray (Unbounded) or a limit.
 func (s *Solver) primalSimplex(lim *limits) Status {
-	ptol, dtol := s.primalTol(), s.dualTol()
+	dtol := s.dualTol()
 	m, n := s.m, s.n
 	rho, row, alpha := s.rho, s.alphaRow, s.alphaCol
 	defer func() {
@@ -997,42 +997,17 @@ func (s *Solver) primalSimplex(lim *limits) Status {
 			alpha[i] = val[k]
 		}
 		s.fac.ftran(alpha)
-		// Basic p changes at rate g = −alpha[p]·dir per unit step.
-		tmax := math.Inf(1)
-		for p, v := range s.head {
-			g := -alpha[p] * dir
-			var bound float64
-			switch {
-			case g < -pivotTol && !math.IsInf(s.lo[v], -1):
-				bound = (s.x[v] - s.lo[v] + ptol) / -g
-			case g > pivotTol && !math.IsInf(s.up[v], 1):
-				bound = (s.up[v] - s.x[v] + ptol) / g
-			default:
-				continue
-			}
-			if bound < tmax {
-				tmax = bound
-			}
-		}
 		flip := s.up[q] - s.lo[q]
-		r, rAbs := -1, 0.0
-		step := 0.0
-		if !math.IsInf(tmax, 1) {
-			for p, v := range s.head {
-				g := -alpha[p] * dir
-				var ratio float64
-				switch {
-				case g < -pivotTol && !math.IsInf(s.lo[v], -1):
-					ratio = (s.x[v] - s.lo[v]) / -g
-				case g > pivotTol && !math.IsInf(s.up[v], 1):
-					ratio = (s.up[v] - s.x[v]) / g
-				default:
-					continue
-				}
-				if ratio <= tmax && math.Abs(g) > rAbs {
-					r, rAbs, step = p, math.Abs(g), ratio
-				}
-			}
+		usedTol := pivotTol
+		r, step := s.primalRatioTest(alpha, dir, usedTol)
+		for r < 0 && math.IsInf(flip, 1) && !s.provesUnbounded(alpha, dir) && usedTol > minPivotTol {
+			// Entries below the pivot tolerance spoil the ray: look
+			// again with smaller pivots.
+			usedTol /= 100
+			r, step = s.primalRatioTest(alpha, dir, usedTol)
+		}
+		if r < 0 && math.IsInf(flip, 1) && !s.provesUnbounded(alpha, dir) {
+			return NumericalTrouble
 		}
 		if step < 0 {
 			step = 0
@@ -1099,6 +1074,63 @@ func (s *Solver) primalSimplex(lim *limits) Status {
 		s.fac.update(r, alpha)
 		s.iterations++
 	}
+}
+
+// primalRatioTest is Harris' two-pass ratio test over the basic variables
+// for an entering column alpha moving in direction dir (basic p changes at
+// rate −alpha[p]·dir). It returns the leaving position (−1 if no basic
+// variable limits the step) and the step.
+func (s *Solver) primalRatioTest(alpha []float64, dir, pivTol float64) (r int, step float64) {
+	ptol := s.primalTol()
+	tmax := math.Inf(1)
+	for p, v := range s.head {
+		g := -alpha[p] * dir
+		var bound float64
+		switch {
+		case g < -pivTol && !math.IsInf(s.lo[v], -1):
+			bound = (s.x[v] - s.lo[v] + ptol) / -g
+		case g > pivTol && !math.IsInf(s.up[v], 1):
+			bound = (s.up[v] - s.x[v] + ptol) / g
+		default:
+			continue
+		}
+		if bound < tmax {
+			tmax = bound
+		}
+	}
+	r, rAbs := -1, 0.0
+	if math.IsInf(tmax, 1) {
+		return -1, 0
+	}
+	for p, v := range s.head {
+		g := -alpha[p] * dir
+		var ratio float64
+		switch {
+		case g < -pivTol && !math.IsInf(s.lo[v], -1):
+			ratio = (s.x[v] - s.lo[v]) / -g
+		case g > pivTol && !math.IsInf(s.up[v], 1):
+			ratio = (s.up[v] - s.x[v]) / g
+		default:
+			continue
+		}
+		if ratio <= tmax && math.Abs(g) > rAbs {
+			r, rAbs, step = p, math.Abs(g), ratio
+		}
+	}
+	return r, step
+}
+
+// provesUnbounded checks that the entering direction moves no basic
+// variable towards a finite bound (entries under certificateZero count as
+// zero).
+func (s *Solver) provesUnbounded(alpha []float64, dir float64) bool {
+	for p, v := range s.head {
+		g := -alpha[p] * dir
+		if (g < -certificateZero && !math.IsInf(s.lo[v], -1)) || (g > certificateZero && !math.IsInf(s.up[v], 1)) {
+			return false
+		}
+	}
+	return true
 }
 
 // unboundedRay returns the primal direction (model units) along which the
