@@ -358,14 +358,8 @@ func (s *Solver) run(ctx context.Context) Status {
 		}
 		st := s.dualSimplex(lim, s.set.HasCutoff)
 		if st != Optimal {
-			if st == Infeasible && s.perturbed {
-				// Infeasibility does not depend on costs; still, confirm
-				// it without the perturbation below.
-				copy(s.work, s.cost)
-				s.perturbed = false
-				s.computeDuals()
-				continue
-			}
+			// An Infeasible status comes with a checked certificate that
+			// does not depend on the costs, perturbed or not.
 			return st
 		}
 		if s.perturbed {
