@@ -520,8 +520,16 @@ func (s *Solver) RestoreState(st *State) {
 // Solve runs the simplex method from the current basis and returns the
 // result in the model's units and sense. A new solver starts from the slack
 // basis; later calls warm-start from the last basis, which suits bound
-// changes (dual simplex) and cost changes (primal simplex). Cancelling ctx
-// stops the solve with status Cancelled.
+// changes (dual simplex) and cost changes. Cancelling ctx (nil means
+// context.Background) stops the solve with status Cancelled.
+//
+// Signs, in the model's own sense: ReducedCost = c − Aᵀ·Dual, and Dual[i]
+// is the change of the optimal objective per unit increase of the bound of
+// row i that is active. For a minimisation, a column at its lower bound has
+// ReducedCost ≥ 0, at its upper bound ≤ 0; a row at its lower bound (a
+// binding ≥ row) has Dual ≥ 0, at its upper bound ≤ 0. For a maximisation
+// every one of these signs flips. Values not Optimal (limits, cutoff) are
+// those of the last iterate.
 func (s *Solver) Solve(ctx context.Context) Result {
 	if ctx == nil {
 		ctx = context.Background()
