@@ -125,12 +125,8 @@ func runSolve(ctx context.Context, env *cmdEnv, opts *solveOptions) error {
 	if err != nil {
 		return withCode(exitFailure, err)
 	}
-	if !opts.quiet {
-		for _, w := range res.Warnings {
-			fmt.Fprintln(env.stderr, "warning:", w)
-		}
-	}
-
+	// The solve's own warnings are part of the result: the report and the
+	// JSON carry them, so they are not repeated on stderr.
 	if opts.json {
 		err = writeJSON(env.stdout, res, jsonOptions{hideEffort: opts.hideEffort})
 	} else {
