@@ -346,6 +346,13 @@ func (s *Solver) run(ctx context.Context) Status {
 	ptol, dtol := s.primalTol(), s.dualTol()
 
 	for round := 0; round < maxRounds; round++ {
+		if s.flipToDualFeasible(dtol) && round == 0 && s.warm && s.maxPrimalInfeasibility() <= ptol {
+			// A primal feasible basis with new costs (SetObjective): the
+			// primal simplex continues from it directly.
+			if st := s.primalSimplex(lim); st != Optimal {
+				return st
+			}
+		}
 		if s.flipToDualFeasible(dtol) {
 			st := s.dualPhase1(lim)
 			if st != Optimal {

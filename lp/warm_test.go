@@ -3,6 +3,7 @@ package lp
 import (
 	"context"
 	"math"
+	"math/rand"
 	"testing"
 	"time"
 )
@@ -390,5 +391,50 @@ func TestSingularBasis(t *testing.T) {
 	}
 	if err := sv.SetBasis(Basis{Cols: b.Cols, Rows: b.Rows[1:]}); err == nil {
 		t.Fatal("a basis of the wrong length was accepted")
+	}
+}
+
+// TestCostChanges replaces the costs several times (as a feasibility pump
+// or a changed scenario would) and compares every warm re-solve with a cold
+// solve; unbounded outcomes must come with a valid ray.
+func TestCostChanges(t *testing.T) {
+	for _, name := range []string{"brandy", "e226", "finnis", "p0548"} {
+		t.Run(name, func(t *testing.T) {
+			m := readSample(t, name)
+			sv, err := NewSolver(m, Settings{})
+			if err != nil {
+				t.Fatal(err)
+			}
+			solveOK(t, m, sv.Solve(context.Background()))
+			rng := rand.New(rand.NewSource(1))
+			total := 0
+			for k := 0; k < 5; k++ {
+				c := make([]float64, m.NumCols())
+				for j := range c {
+					c[j] = m.Obj[j] * (0.5 + rng.Float64())
+				}
+				sv.SetObjective(c)
+				r := sv.Solve(context.Background())
+				total += r.Iterations
+				m2 := m.Clone()
+				copy(m2.Obj, c)
+				cold, _ := Solve(context.Background(), m2, Settings{})
+				if r.Status != cold.Status {
+					t.Fatalf("change %d: warm %v, cold %v", k, r.Status, cold.Status)
+				}
+				switch r.Status {
+				case Optimal:
+					solveOK(t, m2, r)
+					if !close(r.Objective, cold.Objective, 1e-9) {
+						t.Fatalf("change %d: warm %v, cold %v", k, r.Objective, cold.Objective)
+					}
+				case Unbounded:
+					if err := verifyRay(m2, r.Ray); err != nil {
+						t.Fatalf("change %d: %v", k, err)
+					}
+				}
+			}
+			t.Logf("%d iterations over 5 cost changes", total)
+		})
 	}
 }
