@@ -12,11 +12,16 @@ type boundChange struct {
 	lo, up float64
 }
 
-// node is an open subproblem: the global domain with changes applied.
+// node is an open subproblem: the global domain with the bound changes of
+// the node and all its ancestors applied (changes are intersections, so
+// their order does not matter). Each node stores only what its parent's
+// processing changed, plus the branching bound, so memory grows with the
+// tree, not with tree × columns.
 type node struct {
 	id       int // creation order; breaks ties so the search is deterministic
 	depth    int
-	changes  []boundChange
+	parent   *node
+	delta    []boundChange
 	basis    *lp.Basis // warm start (the parent's final basis)
 	bound    float64   // lower bound on the subproblem's optimum
 	estimate float64   // estimated optimum of the best solution below

@@ -46,6 +46,8 @@ func (s *search) run(starts [][]float64) Result {
 	s.gup = append([]float64(nil), p.upper...)
 	s.lo = append([]float64(nil), s.glo...)
 	s.up = append([]float64(nil), s.gup...)
+	s.nodeLo = append([]float64(nil), s.glo...)
+	s.nodeUp = append([]float64(nil), s.gup...)
 	s.lpLo = append([]float64(nil), p.work.ColLower...)
 	s.lpUp = append([]float64(nil), p.work.ColUpper...)
 	s.prop = newPropagator(p)
@@ -435,31 +437,38 @@ func (s *search) simpleRounding(x []float64) {
 	}
 }
 
-// loadDomain sets the current domain to the global one with the node's
-// changes applied. It returns false when the result is empty.
+// loadDomain sets the current domain to the global one with the changes of
+// the node and its ancestors applied, and remembers it (nodeLo/nodeUp) so
+// that the node's own changes can be listed later. It returns false when
+// the result is empty. Cost O(n + depth + changes on the path).
 func (s *search) loadDomain(nd *node) bool {
 	copy(s.lo, s.glo)
 	copy(s.up, s.gup)
-	for _, c := range nd.changes {
-		if c.lo > s.lo[c.col] {
-			s.lo[c.col] = c.lo
-		}
-		if c.up < s.up[c.col] {
-			s.up[c.col] = c.up
-		}
-		if s.lo[c.col] > s.up[c.col] {
-			return false
+	ok := true
+	for a := nd; a != nil; a = a.parent {
+		for _, c := range a.delta {
+			if c.lo > s.lo[c.col] {
+				s.lo[c.col] = c.lo
+			}
+			if c.up < s.up[c.col] {
+				s.up[c.col] = c.up
+			}
+			if s.lo[c.col] > s.up[c.col] {
+				ok = false
+			}
 		}
 	}
-	return true
+	copy(s.nodeLo, s.lo)
+	copy(s.nodeUp, s.up)
+	return ok
 }
 
-// domainChanges lists the integer columns whose current domain differs
-// from the global one.
-func (s *search) domainChanges(extra int) []boundChange {
+// deltaSinceLoad lists the integer columns whose current domain differs
+// from the one loadDomain produced, with room for extra more entries.
+func (s *search) deltaSinceLoad(extra int) []boundChange {
 	var out []boundChange
 	for j := 0; j < s.p.n; j++ {
-		if s.p.isInt[j] && (s.lo[j] != s.glo[j] || s.up[j] != s.gup[j]) {
+		if s.p.isInt[j] && (s.lo[j] != s.nodeLo[j] || s.up[j] != s.nodeUp[j]) {
 			out = append(out, boundChange{col: j, lo: s.lo[j], up: s.up[j]})
 		}
 	}

@@ -108,6 +108,8 @@ type search struct {
 
 	glo, gup   []float64 // global domain
 	lo, up     []float64 // current node domain
+	nodeLo     []float64 // the node's domain as loaded, before its own changes
+	nodeUp     []float64
 	lpLo, lpUp []float64 // bounds loaded into the LP
 
 	rows     []lpRowInfo // every LP row, original then cuts

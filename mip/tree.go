@@ -45,6 +45,8 @@ func (s *search) treeSearch(root *node) {
 			s.queue.push(cur)
 			return
 		}
+		// The node stays only as its children's ancestor: drop its basis.
+		cur.basis = nil
 		if len(kids) == 0 {
 			cur = nil
 			s.progress(false)
@@ -86,8 +88,8 @@ func (s *search) processNode(nd *node, warm bool) (kids []*node, ok bool) {
 	if !s.loadDomain(nd) {
 		return nil, true
 	}
-	changed := make([]int, 0, len(nd.changes))
-	for _, c := range nd.changes {
+	changed := make([]int, 0, len(nd.delta))
+	for _, c := range nd.delta {
 		changed = append(changed, c.col)
 	}
 	if !s.prop.propagate(s.lo, s.up, changed, nil) {
@@ -215,11 +217,11 @@ func (s *search) branchBlind(nd *node) []*node {
 		return nil
 	}
 	mid := math.Floor((s.lo[best] + s.up[best]) / 2)
-	base := s.domainChanges(1)
-	down := &node{id: s.nextID(), depth: nd.depth + 1, bound: nd.bound, estimate: nd.bound, branchVar: -1}
-	down.changes = append(append([]boundChange(nil), base...), boundChange{best, s.lo[best], mid})
-	up := &node{id: s.nextID(), depth: nd.depth + 1, bound: nd.bound, estimate: nd.bound, branchVar: -1}
-	up.changes = append(append([]boundChange(nil), base...), boundChange{best, mid + 1, s.up[best]})
+	base := s.deltaSinceLoad(1)
+	down := &node{id: s.nextID(), depth: nd.depth + 1, parent: nd, bound: nd.bound, estimate: nd.bound, branchVar: -1}
+	down.delta = append(append([]boundChange(nil), base...), boundChange{best, s.lo[best], mid})
+	up := &node{id: s.nextID(), depth: nd.depth + 1, parent: nd, bound: nd.bound, estimate: nd.bound, branchVar: -1}
+	up.delta = append(base, boundChange{best, mid + 1, s.up[best]})
 	return []*node{down, up}
 }
 
@@ -381,16 +383,16 @@ func (s *search) makeChildren(nd *node, r lp.Result, bound float64, br branchCho
 		est += math.Min(d*fk, u*(1-fk))
 	}
 	est -= math.Min(gd, gu)
-	base := s.domainChanges(1)
+	base := s.deltaSinceLoad(1)
 	b := r.Basis
-	down := &node{id: s.nextID(), depth: nd.depth + 1, basis: &b, branchVar: j, branchUp: false,
+	down := &node{id: s.nextID(), depth: nd.depth + 1, parent: nd, basis: &b, branchVar: j, branchUp: false,
 		branchDist: f, parentObj: r.Objective}
-	down.changes = append(append([]boundChange(nil), base...), boundChange{j, s.lo[j], math.Floor(x)})
+	down.delta = append(append([]boundChange(nil), base...), boundChange{j, s.lo[j], math.Floor(x)})
 	down.bound = math.Max(bound, s.p.roundBound(br.downBound))
 	down.estimate = est + gd
-	up := &node{id: s.nextID(), depth: nd.depth + 1, basis: &b, branchVar: j, branchUp: true,
+	up := &node{id: s.nextID(), depth: nd.depth + 1, parent: nd, basis: &b, branchVar: j, branchUp: true,
 		branchDist: 1 - f, parentObj: r.Objective}
-	up.changes = append(base, boundChange{j, math.Ceil(x), s.up[j]})
+	up.delta = append(base, boundChange{j, math.Ceil(x), s.up[j]})
 	up.bound = math.Max(bound, s.p.roundBound(br.upBound))
 	up.estimate = est + gu
 	if gu < gd || (gu == gd && f >= 0.5) {
