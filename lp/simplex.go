@@ -955,6 +955,12 @@ func (s *Solver) primalSimplex(lim *limits) Status {
 			s.dse[p] = 1
 		}
 	}()
+	// Devex reference weights of the variables for pricing, starting at 1.
+	devex := resize(s.devex, n+m)
+	for v := range devex {
+		devex[v] = 1
+	}
+	s.devex = devex
 	for {
 		if st := s.checkLimits(lim); st != StatusUnknown {
 			return st
@@ -964,7 +970,7 @@ func (s *Solver) primalSimplex(lim *limits) Status {
 				return NumericalTrouble
 			}
 		}
-		q, best := -1, dtol
+		q, best := -1, 0.0
 		for v, st := range s.stat {
 			if st == Basic || st == Fixed {
 				continue
@@ -979,8 +985,11 @@ func (s *Solver) primalSimplex(lim *limits) Status {
 			case AtZero:
 				inf = math.Abs(dv)
 			}
-			if inf > best {
-				q, best = v, inf
+			if inf <= dtol {
+				continue
+			}
+			if score := inf * inf / devex[v]; score > best {
+				q, best = v, score
 			}
 		}
 		if q < 0 {
@@ -1049,13 +1058,19 @@ func (s *Solver) primalSimplex(lim *limits) Status {
 			continue
 		}
 		thetaD := s.d[q] / arq
+		wq := devex[q]
 		for v, st := range s.stat {
 			if st != Basic {
 				s.d[v] -= thetaD * row[v]
+				if row[v] != 0 {
+					ratio := row[v] / arq
+					devex[v] = math.Max(devex[v], ratio*ratio*wq)
+				}
 			}
 		}
 		s.d[q] = 0
 		s.d[leave] = -thetaD
+		devex[leave] = math.Max(wq/(arq*arq), 1)
 		for p, v := range s.head {
 			s.x[v] -= alpha[p] * dir * step
 		}

@@ -73,6 +73,7 @@ type Solver struct {
 
 	// scratch
 	rho, alphaRow, alphaCol, tau []float64
+	devex                        []float64 // primal pricing weights
 	cands                        []ratioCandidate
 	flips                        []int
 }
