@@ -6,6 +6,7 @@ import (
 	"image/color"
 	"math"
 	"regexp"
+	"sort"
 	"strconv"
 	"strings"
 
@@ -477,13 +478,10 @@ func hasNegative(xy plotter.XYs) bool {
 // utilChart draws the link × year grid of peak utilisation, before the plan
 // (top) and after it (bottom).
 func utilChart(c *plans.Case, r *plans.Result) (chart, error) {
-	var links []string
+	links, total := gridLinks(r)
 	index := map[string]int{}
-	for _, ly := range r.Links {
-		if _, ok := index[ly.Link]; !ok {
-			index[ly.Link] = len(links)
-			links = append(links, ly.Link)
-		}
+	for i, l := range links {
+		index[l] = i
 	}
 	first, last := c.FirstYear, c.FirstYear+c.Horizon-1
 	mk := func(title string, after bool) *plot.Plot {
@@ -518,14 +516,72 @@ func utilChart(c *plans.Case, r *plans.Result) (chart, error) {
 		legendArea := draw.Crop(bottom, 0.4*vg.Centimeter, 0, 0, 0)
 		drawLegendColumns(legendArea, utilLegend, 2)
 	})
+	caption := "Each cell is the link's peak utilisation in the busier direction in that year, as a share of its capacity. " +
+		"Orange cells with bold figures are at the utilisation ceiling: without more capacity, traffic there is turned away. " +
+		"A frame with a corner mark shows capacity added by the plan."
+	if len(links) < total {
+		caption += fmt.Sprintf(" The grid shows %d of the %d links: those the plan upgrades, then the busiest after the plan; the Markdown report lists every link.", len(links), total)
+	}
 	return chart{
-		ID:    "chart-utilisation",
-		Title: "Peak utilisation by link and year, before and after the plan",
-		Caption: "Each cell is the link's peak utilisation in the busier direction in that year, as a share of its capacity. " +
-			"Orange cells with bold figures are at the utilisation ceiling: without more capacity, traffic there is turned away. " +
-			"A frame with a corner mark shows capacity added by the plan.",
-		SVG: svg,
+		ID:      "chart-utilisation",
+		Title:   "Peak utilisation by link and year, before and after the plan",
+		Caption: caption,
+		SVG:     svg,
 	}, err
+}
+
+// maxGridLinks is the most links the utilisation grid draws, so that the
+// figure fits one printed page.
+const maxGridLinks = 22
+
+// gridLinks returns the links of the utilisation grid in the Result's
+// order, and how many links there are. When there are more than
+// maxGridLinks it keeps the upgraded links first, then the links with the
+// highest peak utilisation after the plan (ties by name).
+func gridLinks(r *plans.Result) ([]string, int) {
+	var all []string
+	seen := map[string]bool{}
+	upgraded := map[string]bool{}
+	peak := map[string]float64{}
+	for _, ly := range r.Links {
+		if !seen[ly.Link] {
+			seen[ly.Link] = true
+			all = append(all, ly.Link)
+		}
+		if ly.CapacityAfter > ly.CapacityBefore {
+			upgraded[ly.Link] = true
+		}
+		u := ly.UtilisationAfter
+		if ly.Ceiling > 0 {
+			u /= ly.Ceiling // how close to its own ceiling
+		}
+		peak[ly.Link] = math.Max(peak[ly.Link], u)
+	}
+	if len(all) <= maxGridLinks {
+		return all, len(all)
+	}
+	rank := append([]string(nil), all...)
+	sort.SliceStable(rank, func(i, j int) bool {
+		a, b := rank[i], rank[j]
+		if upgraded[a] != upgraded[b] {
+			return upgraded[a]
+		}
+		if peak[a] != peak[b] {
+			return peak[a] > peak[b]
+		}
+		return a < b
+	})
+	keep := map[string]bool{}
+	for _, l := range rank[:maxGridLinks] {
+		keep[l] = true
+	}
+	var out []string
+	for _, l := range all {
+		if keep[l] {
+			out = append(out, l)
+		}
+	}
+	return out, len(all)
 }
 
 // drawLegendColumns draws the entries of l in cols columns.
@@ -610,7 +666,11 @@ type utilGridPlot struct {
 func (g *utilGridPlot) Plot(c draw.Canvas, p *plot.Plot) {
 	trX, trY := p.Transforms(&c)
 	for _, ly := range g.r.Links {
-		row := float64(g.n - 1 - g.index[ly.Link])
+		i, ok := g.index[ly.Link]
+		if !ok {
+			continue // not in the grid
+		}
+		row := float64(g.n - 1 - i)
 		x0, x1 := trX(float64(ly.Year)-0.5), trX(float64(ly.Year)+0.5)
 		y0, y1 := trY(row-0.5), trY(row+0.5)
 		capacity, u := ly.CapacityBefore, ly.UtilisationBefore
@@ -632,7 +692,11 @@ func (g *utilGridPlot) Plot(c draw.Canvas, p *plot.Plot) {
 		if darkBackground(fill) {
 			txt = color.White
 		}
-		f := font.From(chartFont, 8)
+		size := vg.Length(8)
+		if x1-x0 < 0.9*vg.Centimeter { // long horizons: narrow cells
+			size = 6.5
+		}
+		f := font.From(chartFont, size)
 		if bold {
 			f.Weight = xfont.WeightBold
 		}

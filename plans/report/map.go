@@ -106,15 +106,7 @@ func mapChart(c *plans.Case, r *plans.Result) (chart, error) {
 	sc.Color = siteColor
 	sc.Radius = vg.Points(3.5)
 	p.Add(sc)
-	labels, err := plotter.NewLabels(plotter.XYLabels{XYs: sites, Labels: names})
-	if err != nil {
-		return chart{}, err
-	}
-	for i := range labels.TextStyle {
-		labels.TextStyle[i] = text.Style{Color: inkColor, Font: font.From(chartFont, 9), Handler: p.TextHandler, YAlign: draw.YBottom}
-	}
-	labels.Offset = vg.Point{X: vg.Points(5), Y: vg.Points(3)}
-	p.Add(labels)
+	p.Add(&siteLabels{at: sites, names: names})
 
 	// Ranges with room for labels, and an aspect ratio that keeps the
 	// geography: one degree of longitude is cos(latitude) of one of latitude.
@@ -269,4 +261,27 @@ func (m *mapPlot) DataRange() (xmin, xmax, ymin, ymax float64) {
 		}
 	}
 	return
+}
+
+// siteLabels writes each site's name to the upper right of its marker on a
+// light backing, so that links running under a name do not hide it.
+type siteLabels struct {
+	at    plotter.XYs
+	names []string
+}
+
+func (l *siteLabels) Plot(c draw.Canvas, p *plot.Plot) {
+	trX, trY := p.Transforms(&c)
+	sty := text.Style{Color: inkColor, Font: font.From(chartFont, 9), Handler: p.TextHandler, YAlign: draw.YBottom}
+	backing := color.NRGBA{0xff, 0xff, 0xff, 0xd0}
+	pad := vg.Points(1.5)
+	for i, xy := range l.at {
+		pt := vg.Point{X: trX(xy.X) + vg.Points(5), Y: trY(xy.Y) + vg.Points(3)}
+		w, h := sty.Width(l.names[i]), sty.Height(l.names[i])
+		c.FillPolygon(backing, []vg.Point{
+			{X: pt.X - pad, Y: pt.Y - pad}, {X: pt.X + w + pad, Y: pt.Y - pad},
+			{X: pt.X + w + pad, Y: pt.Y + h + pad}, {X: pt.X - pad, Y: pt.Y + h + pad},
+		})
+		c.FillText(sty, pt, l.names[i])
+	}
 }
