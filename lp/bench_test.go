@@ -2,13 +2,14 @@ package lp
 
 import (
 	"context"
+	"fmt"
 	"testing"
 )
 
 // BenchmarkNetlib solves each Netlib sample from a cold start.
 func BenchmarkNetlib(b *testing.B) {
 	for _, tc := range netlibCases {
-		b.Run(tc.name, func(b *testing.B) {
+		b.Run(fmt.Sprintf("%s_%dx%d", tc.name, tc.rows-1, tc.cols), func(b *testing.B) {
 			m := readSample(b, tc.name)
 			b.ReportAllocs()
 			for b.Loop() {
