@@ -17,6 +17,7 @@ func (s *search) rootCuts(r lp.Result) lp.Result {
 	p := s.p
 	stall := 0
 	lastObj := r.Objective
+	firstObj := r.Objective
 	buf := make([]float64, 0)
 	for round := 0; round < maxCutRounds; round++ {
 		if s.limitReached() {
@@ -117,7 +118,8 @@ func (s *search) rootCuts(r lp.Result) lp.Result {
 		if !s.set.NoHeuristics {
 			s.simpleRounding(r.X)
 		}
-		if r.Objective-lastObj <= cutStallRel*math.Max(1, math.Abs(r.Objective)) {
+		closed := r.Objective - firstObj
+		if r.Objective-lastObj <= cutStallRel*math.Max(1, math.Abs(r.Objective)) || r.Objective-lastObj <= cutStallShare*closed {
 			stall++
 			if stall >= cutStallRounds {
 				break

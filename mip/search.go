@@ -10,9 +10,12 @@ import (
 
 // Search parameters (common practice values, tuned on small benchmarks).
 const (
-	maxCutRounds      = 20 // root cutting-plane rounds
-	cutStallRounds    = 3  // rounds without bound progress before cutting stops
-	cutStallRel       = 1e-4
+	maxCutRounds   = 20 // root cutting-plane rounds
+	cutStallRounds = 3  // rounds without bound progress before cutting stops
+	cutStallRel    = 1e-4
+	// a round also stalls when it adds less than this share of the bound
+	// gained since the first root LP
+	cutStallShare     = 0.005
 	maxStrongBranch   = 10  // strong-branching candidates per node
 	strongLookahead   = 4   // candidates without improvement before strong branching stops
 	minStrongIters    = 10  // iteration cap of one strong-branching LP, at least …
