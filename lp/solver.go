@@ -202,11 +202,15 @@ func (s *Solver) SetObjective(c []float64) {
 
 // AddRows appends rows (cuts). Their slacks become basic, so the current
 // basis stays a basis and the next Solve continues by dual simplex. It
-// panics if a row names a missing column. Cost O(nonzeros of the model).
+// panics if a row names a missing column or has Lower > Upper (or NaN).
+// Cost O(nonzeros of the model).
 func (s *Solver) AddRows(rows []Row) {
 	for _, r := range rows {
 		if len(r.Index) != len(r.Value) {
 			panic("lp: AddRows: Index and Value differ in length")
+		}
+		if err := checkBounds("row", s.m, r.Lower, r.Upper); err != nil {
+			panic("lp: AddRows: " + err.Error())
 		}
 		s.model.AddRow(r.Name, r.Lower, r.Upper, r.Index, r.Value)
 	}
