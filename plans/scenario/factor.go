@@ -4,7 +4,6 @@ import (
 	"errors"
 	"fmt"
 	"math"
-	"reflect"
 	"strconv"
 	"strings"
 
@@ -139,19 +138,11 @@ func shallowCopy(c *plans.Case) *plans.Case {
 	return &cc
 }
 
-// withDiscountRate returns a copy of c with discount rate r. The Case keeps
-// its discount factors in an unexported field derived at load; copying only
-// the exported fields leaves it empty, and Case.DiscountFactor then derives
-// each factor from DiscountRate (a test checks this still holds).
+// withDiscountRate returns a copy of c with discount rate r. Case derives
+// every discount factor from DiscountRate when asked (TestDiscountRateRevaluesBasePlan
+// would catch a cached copy going stale).
 func withDiscountRate(c *plans.Case, r float64) *plans.Case {
-	src := reflect.ValueOf(c).Elem()
-	dst := reflect.New(src.Type()).Elem()
-	for i := 0; i < src.NumField(); i++ {
-		if src.Type().Field(i).IsExported() {
-			dst.Field(i).Set(src.Field(i))
-		}
-	}
-	out := dst.Addr().Interface().(*plans.Case)
+	out := shallowCopy(c)
 	out.DiscountRate = r
 	return out
 }

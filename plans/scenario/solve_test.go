@@ -317,3 +317,48 @@ func TestRealSweepShardsAndRegret(t *testing.T) {
 	}
 	t.Logf("regret statuses: %v", counts)
 }
+
+// TestDiscountRateRevaluesBasePlan: the base plan's yearly cash flows do
+// not depend on the discount rate (each year's routing serves what pays in
+// that year alone), so its NPV re-evaluated at rate r must equal the
+// standard NPV of those flows, Σ net_t·(1+r)^−t with salvage at the end of
+// year T (source: present value formula of corporate-finance textbooks;
+// DESIGN.md §2 for salvage). Computed here from the base solve's own
+// undiscounted cash flows, independently of the evaluator's discounting.
+func TestDiscountRateRevaluesBasePlan(t *testing.T) {
+	ctx := context.Background()
+	c := syntheticCase(t, 6, 3, 1)
+	base, err := exactSolve(ctx, c)
+	if err != nil {
+		t.Fatal(err)
+	}
+	objective(t, "base", base)
+	g, err := NewGrid([]Factor{{Name: DiscountRate, Values: []float64{0, 0.05, 0.2}}})
+	if err != nil {
+		t.Fatal(err)
+	}
+	out, err := Run(ctx, c, g, Options{Solve: exactSolve, Evaluate: FixedPlanEvaluator(exactSolve)})
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, rec := range out.Records[:g.Size()] {
+		r, _ := rec.Factors.Value(DiscountRate)
+		want := 0.0
+		for i, row := range base.Cashflow {
+			df := math.Pow(1+r, -float64(i+1))
+			if c.MidYear {
+				df = math.Pow(1+r, -(float64(i) + 0.5))
+			}
+			want += df*(row.Net-row.Salvage) + math.Pow(1+r, -float64(c.Horizon))*row.Salvage
+		}
+		if rec.BasePlan == nil || rec.BasePlan.Objective == nil {
+			t.Fatalf("r = %g: base plan not re-evaluated (%s)", r, rec.RegretStatus)
+		}
+		if got := *rec.BasePlan.Objective; math.Abs(got-want) > 1e-6*math.Max(1, math.Abs(want)) {
+			t.Errorf("r = %g: base plan NPV %.6f, want %.6f from its cash flows", r, got, want)
+		}
+		if rec.RegretStatus != RegretOK || *rec.Regret < 0 {
+			t.Errorf("r = %g: regret %v (%s), want ≥ 0", r, deref(rec.Regret), rec.RegretStatus)
+		}
+	}
+}
