@@ -209,8 +209,8 @@ func (s *Solver) AddRows(rows []Row) {
 		if len(r.Index) != len(r.Value) {
 			panic("lp: AddRows: Index and Value differ in length")
 		}
-		if err := checkBounds("row", s.m, r.Lower, r.Upper); err != nil {
-			panic("lp: AddRows: " + err.Error())
+		if checkBounds("row", 0, r.Lower, r.Upper) != nil {
+			panic(fmt.Sprintf("lp: AddRows: row %q has bounds [%v, %v]", r.Name, r.Lower, r.Upper))
 		}
 		s.model.AddRow(r.Name, r.Lower, r.Upper, r.Index, r.Value)
 	}
