@@ -108,6 +108,9 @@ func Solve(ctx context.Context, c *Case, opts SolveOptions) (*Result, error) {
 		npv := sumPV(base.cashflow)
 		res.BaselineNPV = &npv
 	}
+	if base != nil && !opts.NoBaselineStart {
+		set.Start = m.startFromBaseline(base)
+	}
 	mr, err := mipSolve(ctx, m.LP, set)
 	if err != nil {
 		return nil, fmt.Errorf("plans: %w", err)
@@ -151,13 +154,16 @@ func Solve(ctx context.Context, c *Case, opts SolveOptions) (*Result, error) {
 	if !withinRel(*res.Objective, -mr.Objective, consistencyTol) {
 		res.Warnings = append(res.Warnings, fmt.Sprintf("the NPV recomputed from the plan (%.2f) differs from the solver's objective (%.2f): numerical trouble, check the plan", *res.Objective, -mr.Objective))
 	}
-	bound := -mr.Bound
-	if res.Status == StatusOptimal && bound < *res.Objective {
-		bound = *res.Objective // the fixed LP may add a rounding-size gain
+	// A search stopped before its first LP has no bound: Bound and Gap stay
+	// nil (JSON null) rather than infinite.
+	if bound := -mr.Bound; !math.IsInf(bound, 0) && !math.IsNaN(bound) {
+		if res.Status == StatusOptimal && bound < *res.Objective {
+			bound = *res.Objective // the fixed LP may add a rounding-size gain
+		}
+		res.Bound = &bound
+		gap := math.Abs(bound-*res.Objective) / math.Max(math.Abs(*res.Objective), 1)
+		res.Gap = &gap
 	}
-	res.Bound = &bound
-	gap := math.Abs(bound-*res.Objective) / math.Max(math.Abs(*res.Objective), 1)
-	res.Gap = &gap
 	res.Stats.Seconds = time.Since(start).Seconds()
 	return res, nil
 }
@@ -226,6 +232,34 @@ func solveLex(ctx context.Context, model *lp.Model, next ...[]float64) (*lexResu
 		cur, curObj = append([]float64(nil), obj...), r.Objective
 	}
 	return out, nil
+}
+
+// startFromBaseline returns the do-nothing plan as a point of m: no
+// purchases, "no discount" chosen for every vendor-year, and the baseline's
+// routing and served traffic. When the baseline carries every committed
+// Gbps it is feasible, so the search has an incumbent before its first LP
+// (a large case may hit its time limit before finding a better one).
+func (m *Model) startFromBaseline(base *baselineSolution) []float64 {
+	x := make([]float64, m.LP.NumCols())
+	bm := base.m
+	for k := range m.served {
+		for t, j := range m.served[k] {
+			x[j] = base.x[bm.served[k][t]]
+		}
+	}
+	for si := range m.flow {
+		for a := range m.flow[si] {
+			for t, j := range m.flow[si][a] {
+				if j >= 0 && bm.flow[si][a][t] >= 0 {
+					x[j] = base.x[bm.flow[si][a][t]]
+				}
+			}
+		}
+	}
+	for _, vy := range m.tiers {
+		x[vy.choice[0]] = 1
+	}
+	return x
 }
 
 // kmObjective returns the objective Σ km·flow over all flow columns.

@@ -18,6 +18,9 @@ type SolveOptions struct {
 	NoHeuristic bool
 	// NoCutSets turns off the cut-set inequalities on link capacities.
 	NoCutSets bool
+	// NoBaselineStart does not hand the do-nothing plan to the search as
+	// its first incumbent (for measuring what it buys).
+	NoBaselineStart bool
 }
 
 // Progress is a snapshot of a running solve. Objective and Bound are in NPV
