@@ -81,9 +81,9 @@ func writeMarkdown(w io.Writer, v *view) error {
 		if v.MapNote == "" {
 			m.printf(" and a network map")
 		}
-		m.printf("; their figures are in the tables below. ")
+		m.printf("; their figures are in the tables below.")
 		if v.MapNote != "" {
-			m.printf("%s", v.MapNote)
+			m.printf(" %s", v.MapNote)
 		}
 		m.printf("\n\n### Peak utilisation by link and year, before → after the plan\n\n")
 		m.printf("Share of capacity in the busier direction. **Bold**: at the utilisation ceiling. ▲: capacity added by the plan. —: no capacity.\n\n")

@@ -580,3 +580,31 @@ func TestDecisionThisYear(t *testing.T) {
 		}
 	}
 }
+
+var revenueGainRE = regexp.MustCompile(`([A-Z]{3}\x{00a0}[0-9,]+) more revenue over the horizon`)
+
+// TestRevenueGain checks the decision's extra revenue against the JSON
+// cash flows: Σ cashflow[].revenue − Σ baseline_cashflow[].revenue.
+func TestRevenueGain(t *testing.T) {
+	c, r := solvedDemo(t)
+	j := jsonOf(t, r)
+	want := 0.0
+	for _, x := range j["cashflow"].([]any) {
+		want += jnum(t, x.(map[string]any), "revenue")
+	}
+	for _, x := range j["baseline_cashflow"].([]any) {
+		want -= jnum(t, x.(map[string]any), "revenue")
+	}
+	md := render(t, c, r, Markdown)
+	m := revenueGainRE.FindStringSubmatch(md)
+	if want < 0.5 || len(r.Plan) == 0 {
+		if m != nil {
+			t.Errorf("decision claims %s more revenue; the JSON gives %v", m[1], want)
+		}
+		return
+	}
+	if m == nil {
+		t.Fatalf("decision does not give the extra revenue (%v)", want)
+	}
+	checkClose(t, "extra revenue", num(t, m[1]), want, moneyTol)
+}

@@ -257,6 +257,9 @@ func decision(c *plans.Case, r *plans.Result) string {
 		if len(parts) > 0 {
 			b.WriteString("The upgrades have " + joinAnd(parts) + ". ")
 		}
+		if gain := revenueGain(r); gain >= zeroMoney && len(r.Plan) > 0 {
+			fmt.Fprintf(&b, "They let the network carry more paying traffic: %s more revenue over the horizon than doing nothing. ", moneyCur(gain, cur))
+		}
 	}
 	if len(r.Plan) > 0 {
 		fmt.Fprintf(&b, "Total capex is %s", moneyCur(r.TotalCapex, cur))
@@ -267,6 +270,22 @@ func decision(c *plans.Case, r *plans.Result) string {
 		fmt.Fprintf(&b, " The solver stopped at its limit: this plan is within %s of the best possible NPV, not proven optimal.", percent(*r.Gap))
 	}
 	return strings.TrimSpace(b.String())
+}
+
+// revenueGain is the plan's undiscounted revenue over the horizon minus the
+// do-nothing network's.
+func revenueGain(r *plans.Result) float64 {
+	if len(r.BaselineCashflow) == 0 {
+		return 0
+	}
+	g := 0.0
+	for _, cf := range r.Cashflow {
+		g += cf.Revenue
+	}
+	for _, cf := range r.BaselineCashflow {
+		g -= cf.Revenue
+	}
+	return g
 }
 
 func moreOrLess(inc float64) string {
