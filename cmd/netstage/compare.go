@@ -10,6 +10,7 @@ import (
 	"fmt"
 	"io"
 	"math"
+	"runtime"
 	"strconv"
 	"strings"
 	"text/tabwriter"
@@ -36,6 +37,7 @@ type compareOptions struct {
 	timeLimit   string
 	gap         float64
 	noBreakEven bool
+	jobs        int
 	quiet       bool
 }
 
@@ -72,6 +74,9 @@ usage, 3 no variant has a plan.`,
 			if _, err := scenarioTimeLimit(opts.timeLimit); err != nil {
 				return err
 			}
+			if opts.jobs < 0 {
+				return withCode(exitBadInput, fmt.Errorf("--jobs must be ≥ 1 (0: one per CPU), got %d", opts.jobs))
+			}
 			return runCompare(cmd.Context(), env, opts)
 		},
 	}
@@ -82,6 +87,7 @@ usage, 3 no variant has a plan.`,
 	f.StringVar(&opts.timeLimit, "time-limit", "", "limit each solve to this `duration` (90s, 2m; a bare number is seconds)")
 	f.Float64Var(&opts.gap, "gap", 0, "relative gap at which a plan counts as optimal (default 1e-4)")
 	f.BoolVar(&opts.noBreakEven, "no-break-even", false, "skip the break-even search (one solve per variant only)")
+	f.IntVar(&opts.jobs, "jobs", 1, "run this many solves at once (0: one per CPU)")
 	f.BoolVar(&opts.quiet, "quiet", false, "print nothing on stderr but errors")
 	return cmd
 }
@@ -153,7 +159,11 @@ func runCompare(ctx context.Context, env *cmdEnv, opts *compareOptions) error {
 	if len(c.Catalogs) == 0 {
 		return withCode(exitBadInput, errors.New("compare: the case names no catalog"))
 	}
-	cmp, err := scenario.Compare(ctx, c, scenario.CompareOptions{Solve: solve, NoBreakEven: opts.noBreakEven})
+	jobs := opts.jobs
+	if jobs == 0 {
+		jobs = runtime.NumCPU()
+	}
+	cmp, err := scenario.Compare(ctx, c, scenario.CompareOptions{Solve: solve, NoBreakEven: opts.noBreakEven, Jobs: jobs})
 	if err != nil {
 		return withCode(exitFailure, err)
 	}

@@ -2,10 +2,12 @@ package scenario
 
 import (
 	"context"
+	"errors"
 	"fmt"
 	"math"
 	"sort"
 	"strings"
+	"sync"
 
 	"netstage/plans"
 )
@@ -154,6 +156,28 @@ type CompareOptions struct {
 	Solve SolveFunc
 	// NoBreakEven skips the break-even search.
 	NoBreakEven bool
+	// Jobs is the number of solves run at once (0 or 1: one at a time):
+	// the variants, then the break-even searches of the losing catalogs.
+	Jobs int
+}
+
+// parallel runs f(0..n−1) with at most jobs calls at once and returns the
+// first error by index.
+func parallel(n, jobs int, f func(i int) error) error {
+	errs := make([]error, n)
+	sem := make(chan struct{}, max(jobs, 1))
+	var wg sync.WaitGroup
+	for i := 0; i < n; i++ {
+		wg.Add(1)
+		sem <- struct{}{}
+		go func() {
+			defer wg.Done()
+			defer func() { <-sem }()
+			errs[i] = f(i)
+		}()
+	}
+	wg.Wait()
+	return errors.Join(errs...)
 }
 
 // Compare solves c once per catalog alone and once with all catalogs, and
@@ -163,18 +187,23 @@ func Compare(ctx context.Context, c *plans.Case, opts CompareOptions) (*Comparis
 		panic("scenario: Compare without a solve function")
 	}
 	cmp := &Comparison{Case: c.Name, Currency: c.Currency, Differences: []Difference{}}
-	for k, cf := range c.Catalogs {
-		res, err := opts.Solve(ctx, OnlyCatalog(c, k))
-		if err != nil {
-			return nil, fmt.Errorf("scenario: variant %s: %w", cf.Name, err)
+	n := len(c.Catalogs)
+	cmp.Variants = make([]Variant, n+1)
+	err := parallel(n+1, opts.Jobs, func(k int) error {
+		name, vc, catalog := AllVariant, c, -1
+		if k < n {
+			name, vc, catalog = c.Catalogs[k].Name, OnlyCatalog(c, k), k
 		}
-		cmp.Variants = append(cmp.Variants, newVariant(cf.Name, k, c, res))
-	}
-	res, err := opts.Solve(ctx, c)
+		res, err := opts.Solve(ctx, vc)
+		if err != nil {
+			return fmt.Errorf("scenario: variant %s: %w", name, err)
+		}
+		cmp.Variants[k] = newVariant(name, catalog, c, res)
+		return nil
+	})
 	if err != nil {
-		return nil, fmt.Errorf("scenario: variant %s: %w", AllVariant, err)
+		return nil, err
 	}
-	cmp.Variants = append(cmp.Variants, newVariant(AllVariant, -1, c, res))
 
 	win := -1
 	for i, v := range cmp.Variants {
@@ -187,20 +216,24 @@ func Compare(ctx context.Context, c *plans.Case, opts CompareOptions) (*Comparis
 		cmp.Winner = cmp.Variants[win].Name
 	}
 	if !opts.NoBreakEven {
-		for i := range cmp.Variants {
+		err := parallel(len(cmp.Variants), opts.Jobs, func(i int) error {
 			v := &cmp.Variants[i]
 			if v.Catalog < 0 || i == win {
-				continue
+				return nil
 			}
 			if win < 0 {
 				v.BreakEvenNote = "no catalog alone has a plan"
-				continue
+				return nil
 			}
 			be, err := BreakEven(ctx, c, v.Catalog, *cmp.Variants[win].Objective, opts.Solve)
 			if err != nil {
-				return nil, err
+				return err
 			}
 			v.BreakEvenDiscount, v.BreakEvenNPV, v.BreakEvenNote = be.Discount, be.NPV, be.Note
+			return nil
+		})
+		if err != nil {
+			return nil, err
 		}
 	}
 	cmp.Differences = differences(cmp.Variants)

@@ -536,6 +536,16 @@ func TestBreakEvenFake(t *testing.T) {
 	if len(cmp.Differences) == 0 {
 		t.Error("no differences between the north and south plans")
 	}
+	// Solving the variants and break-evens in parallel changes nothing.
+	par, err := Compare(ctx, c, CompareOptions{Solve: fakeSolve, Jobs: 3})
+	if err != nil {
+		t.Fatal(err)
+	}
+	a, _ := json.Marshal(cmp)
+	b, _ := json.Marshal(par)
+	if !bytes.Equal(a, b) {
+		t.Errorf("jobs 3 differs from jobs 1:\n%s\n%s", b, a)
+	}
 }
 
 func TestCompareInfeasibleVariant(t *testing.T) {
