@@ -13,7 +13,13 @@ type propagator struct {
 	inRow  []bool // row queued
 	queue  []int
 	cutoff float64 // objective cutoff (internal sense, constant removed); +Inf for none
+	objIdx []int   // the objective as a row, built on first use
+	objVal []float64
 }
+
+// infeasTol is the relative amount by which a row's activity range must
+// miss its sides before propagation declares a domain empty.
+const infeasTol = 1e-5
 
 // maxPropagationRounds bounds the work of one propagate call: each round
 // visits the queued rows once.
@@ -89,7 +95,10 @@ func (pr *propagator) propagate(lo, up []float64, changed []int, tightened func(
 			}
 		}
 	}
-	objIdx, objVal := pr.objRow()
+	if pr.objIdx == nil {
+		pr.objIdx, pr.objVal = pr.objRow()
+	}
+	objIdx, objVal := pr.objIdx, pr.objVal
 	for round := 0; round < maxPropagationRounds && len(pr.queue) > 0; round++ {
 		work := append([]int(nil), pr.queue...)
 		pr.queue = pr.queue[:0]
@@ -144,11 +153,15 @@ func (pr *propagator) objRow() ([]int, []float64) {
 func (pr *propagator) propagateRow(idx []int, val []float64, rl, ru float64, lo, up []float64, tightened func(j int)) bool {
 	p := pr.p
 	minAct, maxAct, minInf, maxInf := rowActivity(idx, val, lo, up)
-	scale := 1.0
-	for _, a := range val {
-		scale = math.Max(scale, math.Abs(a))
+	// infeasibility tolerance, relative to the finite sides
+	mag := 1.0
+	if !math.IsInf(rl, 0) {
+		mag = math.Max(mag, math.Abs(rl))
 	}
-	tol := boundTol * math.Max(1, math.Max(math.Abs(rl), math.Abs(ru))) * 10
+	if !math.IsInf(ru, 0) {
+		mag = math.Max(mag, math.Abs(ru))
+	}
+	tol := infeasTol * mag
 	if minInf == 0 && !math.IsInf(ru, 1) && minAct > ru+tol {
 		return false
 	}
@@ -234,7 +247,6 @@ func (pr *propagator) propagateRow(idx []int, val []float64, rl, ru float64, lo,
 			tightened(j)
 		}
 	}
-	_ = scale
 	return true
 }
 

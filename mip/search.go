@@ -2,7 +2,6 @@ package mip
 
 import (
 	"math"
-	"sort"
 	"time"
 
 	"netstage/lp"
@@ -496,6 +495,3 @@ func (s *search) slackBasis() lp.Basis {
 	}
 	return b
 }
-
-// sortInts sorts in place (deterministic order helper).
-func sortInts(a []int) { sort.Ints(a) }
