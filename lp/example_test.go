@@ -108,14 +108,14 @@ func ExampleWriteMPS() {
 	//  N  obj
 	//  G  r
 	// COLUMNS
-	//     MARKER0 'MARKER' 'INTORG'
-	//     k obj 1
-	//     k r 3
-	//     MARKER1 'MARKER' 'INTEND'
+	//     MARKER0   'MARKER'                 'INTORG'
+	//     k         obj       1
+	//     k         r         3
+	//     MARKER1   'MARKER'                 'INTEND'
 	// RHS
-	//     RHS r 2
+	//     RHS       r         2
 	// BOUNDS
-	//  LO BND k 0
-	//  PL BND k
+	//  LO BND       k         0
+	//  PL BND       k
 	// ENDATA
 }

@@ -546,8 +546,22 @@ func (p *mpsParser) finish() {
 	}
 }
 
-// WriteMPS writes m in free MPS format. Names that are empty or contain
-// white space are replaced by C<j> or R<i>. Every integer column gets
+// card writes one data line with its fields at the fixed-format columns
+// (2, 5, 15, 25 and 40) where the names allow, so that readers which guess
+// between fixed and free format see the same fields either way. Numbers may
+// run past column 36; free readers and the common fixed readers accept it.
+func card(w *bufio.Writer, typ, name1, name2, value, marker string) {
+	line := fmt.Sprintf(" %-2s %-8s  %-8s  %s", typ, name1, name2, value)
+	if marker != "" {
+		line = fmt.Sprintf("%-39s%s", line, marker)
+	}
+	w.WriteString(strings.TrimRight(line, " "))
+	w.WriteByte('\n')
+}
+
+// WriteMPS writes m in free MPS format, with fields placed at the fixed
+// columns when names have at most 8 characters. Names that are empty or
+// contain white space are replaced by C<j> or R<i>. Every integer column gets
 // explicit bounds (other readers take unbounded integer markers as
 // binaries). Ranged rows are written as G rows with a RANGES entry. Numbers
 // are written with 17 significant digits, so ReadMPS gives back the same
@@ -611,31 +625,31 @@ func WriteMPS(w io.Writer, m *Model) error {
 			if inInt {
 				kind = "INTEND"
 			}
-			fmt.Fprintf(bw, "    MARKER%d 'MARKER' '%s'\n", marker, kind)
+			card(bw, "", fmt.Sprintf("MARKER%d", marker), "'MARKER'", "", "'"+kind+"'")
 			marker++
 			inInt = m.Integer[j]
 		}
 		cn := colName(j)
 		wrote := false
 		if m.Obj[j] != 0 {
-			fmt.Fprintf(bw, "    %s %s %s\n", cn, obj, num(m.Obj[j]))
+			card(bw, "", cn, obj, num(m.Obj[j]), "")
 			wrote = true
 		}
 		for p := cols.Start[j]; p < cols.Start[j+1]; p++ {
-			fmt.Fprintf(bw, "    %s %s %s\n", cn, rowName(cols.Index[p]), num(cols.Value[p]))
+			card(bw, "", cn, rowName(cols.Index[p]), num(cols.Value[p]), "")
 			wrote = true
 		}
 		if !wrote {
 			// Keep empty columns: a zero objective entry declares them.
-			fmt.Fprintf(bw, "    %s %s 0\n", cn, obj)
+			card(bw, "", cn, obj, "0", "")
 		}
 	}
 	if inInt {
-		fmt.Fprintf(bw, "    MARKER%d 'MARKER' 'INTEND'\n", marker)
+		card(bw, "", fmt.Sprintf("MARKER%d", marker), "'MARKER'", "", "'INTEND'")
 	}
 	fmt.Fprintf(bw, "RHS\n")
 	if m.Constant != 0 {
-		fmt.Fprintf(bw, "    RHS %s %s\n", obj, num(-m.Constant))
+		card(bw, "", "RHS", obj, num(-m.Constant), "")
 	}
 	var ranged []int
 	for i := range m.RowLower {
@@ -651,13 +665,13 @@ func WriteMPS(w io.Writer, m *Model) error {
 			ranged = append(ranged, i)
 		}
 		if b != 0 && !math.IsInf(b, 0) {
-			fmt.Fprintf(bw, "    RHS %s %s\n", rowName(i), num(b))
+			card(bw, "", "RHS", rowName(i), num(b), "")
 		}
 	}
 	if len(ranged) > 0 {
 		fmt.Fprintf(bw, "RANGES\n")
 		for _, i := range ranged {
-			fmt.Fprintf(bw, "    RNG %s %s\n", rowName(i), num(m.RowUpper[i]-m.RowLower[i]))
+			card(bw, "", "RNG", rowName(i), num(m.RowUpper[i]-m.RowLower[i]), "")
 		}
 	}
 	fmt.Fprintf(bw, "BOUNDS\n")
@@ -666,23 +680,23 @@ func WriteMPS(w io.Writer, m *Model) error {
 		lo, up := m.ColLower[j], m.ColUpper[j]
 		switch {
 		case lo == up:
-			fmt.Fprintf(bw, " FX BND %s %s\n", cn, num(lo))
+			card(bw, "FX", "BND", cn, num(lo), "")
 			continue
 		case math.IsInf(lo, -1) && math.IsInf(up, 1):
-			fmt.Fprintf(bw, " FR BND %s\n", cn)
+			card(bw, "FR", "BND", cn, "", "")
 			continue
 		}
 		if math.IsInf(lo, -1) {
-			fmt.Fprintf(bw, " MI BND %s\n", cn)
+			card(bw, "MI", "BND", cn, "", "")
 		} else if lo != 0 || m.Integer[j] || up < 0 {
-			fmt.Fprintf(bw, " LO BND %s %s\n", cn, num(lo))
+			card(bw, "LO", "BND", cn, num(lo), "")
 		}
 		if math.IsInf(up, 1) {
 			if m.Integer[j] {
-				fmt.Fprintf(bw, " PL BND %s\n", cn)
+				card(bw, "PL", "BND", cn, "", "")
 			}
 		} else {
-			fmt.Fprintf(bw, " UP BND %s %s\n", cn, num(up))
+			card(bw, "UP", "BND", cn, num(up), "")
 		}
 	}
 	fmt.Fprintf(bw, "ENDATA\n")
