@@ -90,6 +90,9 @@ func column(t *testing.T, head []string, name string) int {
 // decimals of a discount factor). It also checks that --out picks Markdown
 // from the extension and writes nothing to stdout.
 func TestReportMatchesSolveJSON(t *testing.T) {
+	if testing.Short() {
+		t.Skip("two solves of the demo take tens of seconds; skipped in -short (the full suite runs it)")
+	}
 	var out, errOut bytes.Buffer
 	if code := run([]string{"solve", "--demo", "--json"}, &out, &errOut); code != exitOK {
 		t.Fatalf("solve --demo --json: exit %d: %s", code, errOut.String())

@@ -33,6 +33,11 @@ var (
 // solvedDemo loads and solves the embedded demo once per test binary.
 func solvedDemo(t *testing.T) (*plans.Case, *plans.Result) {
 	t.Helper()
+	if raceEnabled && testing.Short() {
+		// The report code has no concurrency; what takes minutes under the
+		// race detector is the demo's solve, which package plans tests.
+		t.Skip("solving the demo under -race -short takes minutes; the full suite (go test ./...) runs this check")
+	}
 	demoOnce.Do(func() {
 		demoCase, _, demoErr = plans.LoadDemo()
 		if demoErr != nil {
