@@ -116,7 +116,7 @@ func (s *search) rootCuts(r lp.Result) lp.Result {
 		}
 		s.ageCuts(false)
 		if !s.set.NoHeuristics {
-			s.simpleRounding(r.X)
+			s.simpleRounding(r.X, true)
 		}
 		closed := r.Objective - firstObj
 		if r.Objective-lastObj <= cutStallRel*math.Max(1, math.Abs(r.Objective)) || r.Objective-lastObj <= cutStallShare*closed {

@@ -23,9 +23,12 @@ const (
 	plungeGapFraction = 0.5 // a plunge stops when the child's bound is this far into the gap
 	maxPlungeDepth    = 1000
 	maxDiveDepth      = 200
-	diveEvery         = 200 // nodes between two dives
-	diveIterFactor    = 4   // a dive's LP iteration cap, in mean iterations per node
-	maxNodeResolves   = 20  // re-solves of one node after strong branching fixes a column
+	diveEvery         = 200   // nodes between two dives
+	repairEvery       = 10    // nodes between two roundings repaired by LP
+	diveIterFactor    = 4     // a dive's LP iteration cap, in mean iterations per node
+	maxNodeResolves   = 20    // re-solves of one node after strong branching fixes a column
+	strongShare       = 0.5   // strong-branching iterations allowed per node LP iteration …
+	strongOffset      = 20000 // … plus this many (common practice: a half, plus an offset)
 )
 
 // run performs the whole search and returns the result.
@@ -94,7 +97,7 @@ func (s *search) run(starts [][]float64) Result {
 	s.rootBound = p.roundBound(r.Objective)
 	s.curBound = s.rootBound
 	if !s.set.NoHeuristics {
-		s.simpleRounding(r.X)
+		s.simpleRounding(r.X, true)
 	}
 	s.callHeuristic(r.X)
 	if !s.set.NoCuts {
@@ -406,11 +409,13 @@ func (s *search) callHeuristic(x []float64) {
 }
 
 // simpleRounding rounds each fractional column in a direction no row
-// objects to (no locks); then rounds to nearest. Cost O(nonzeros).
-func (s *search) simpleRounding(x []float64) {
+// objects to (no locks), else to the nearest integer. With repair, a
+// rounded point that violates rows has its continuous columns re-optimised
+// by LP (one LP solve: used at the root, too costly at every node). Cost
+// O(nonzeros) without repair.
+func (s *search) simpleRounding(x []float64, repair bool) {
 	p := s.p
 	y := append([]float64(nil), x...)
-	ok := true
 	for j := range y {
 		if !p.isInt[j] {
 			continue
@@ -426,15 +431,10 @@ func (s *search) simpleRounding(x []float64) {
 		case s.upLocks[j] == 0:
 			y[j] = math.Ceil(v)
 		default:
-			ok = false
 			y[j] = math.Round(v)
 		}
 	}
-	if ok || p.nInt < p.n {
-		s.tryCandidate(y)
-		return
-	}
-	if p.check(y, s.set.FeasTol, s.set.IntTol) {
+	if repair || p.check(p.snap(y), s.set.FeasTol, s.set.IntTol) {
 		s.tryCandidate(y)
 	}
 }

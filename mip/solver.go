@@ -104,6 +104,8 @@ type search struct {
 	lpLost    bool    // some subproblem was given up after LP failure
 
 	nodes, iters int
+	nodeLPIters  int // iterations of node LP solves (not strong branching or dives)
+	sbIters      int // iterations of strong branching
 	stopped      StopReason
 
 	glo, gup   []float64 // global domain

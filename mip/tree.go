@@ -103,6 +103,7 @@ func (s *search) processNode(nd *node, warm bool) (kids []*node, ok bool) {
 	for round := 0; round < maxNodeResolves; round++ {
 		limit := s.pruneLimit()
 		r := s.lpSolve(limit, 0)
+		s.nodeLPIters += r.Iterations
 		if first && !nd.solved {
 			s.nodes++
 			s.nodeIters += (float64(r.Iterations) - s.nodeIters) / float64(s.nodes)
@@ -161,7 +162,7 @@ func (s *search) processNode(nd *node, warm bool) (kids []*node, ok bool) {
 			}
 		}
 		if !s.set.NoHeuristics {
-			s.simpleRounding(r.X)
+			s.simpleRounding(r.X, s.nodes%repairEvery == 0)
 			if s.nodes%diveEvery == 0 {
 				s.dive(r.X)
 			}
@@ -280,7 +281,7 @@ func (s *search) chooseBranch(r lp.Result, frac []int, bound float64) branchChoi
 		sc := c.score
 		dg, ug := math.NaN(), math.NaN()
 		dBound, uBound := math.Inf(-1), math.Inf(-1)
-		if !s.pc.reliable(c.j) && sbDone < maxStrongBranch && noImprove < strongLookahead {
+		if !s.pc.reliable(c.j) && sbDone < maxStrongBranch && noImprove < strongLookahead && s.strongAllowed() {
 			if state == nil {
 				state = s.lps.SaveState()
 			}
@@ -295,6 +296,7 @@ func (s *search) chooseBranch(r lp.Result, frac []int, bound float64) branchChoi
 			rd := s.lpSolve(limit, iterCap)
 			s.lps.SetColBounds(j, fl+1, up)
 			ru := s.lpSolve(limit, iterCap)
+			s.sbIters += rd.Iterations + ru.Iterations
 			s.lps.SetColBounds(j, lo, up)
 			downDead := rd.Status == lp.Infeasible || rd.Status == lp.ObjectiveCutoff
 			upDead := ru.Status == lp.Infeasible || ru.Status == lp.ObjectiveCutoff
@@ -411,14 +413,16 @@ func (s *search) dive(x0 []float64) {
 	saveUp := append([]float64(nil), s.up...)
 	saveLpLo := append([]float64(nil), s.lpLo...)
 	saveLpUp := append([]float64(nil), s.lpUp...)
+	x := x0
 	defer func() {
+		// One repaired rounding of the last LP point of the dive.
+		s.simpleRounding(x, true)
 		s.lps.RestoreState(state)
 		copy(s.lo, saveLo)
 		copy(s.up, saveUp)
 		copy(s.lpLo, saveLpLo)
 		copy(s.lpUp, saveLpUp)
 	}()
-	x := x0
 	iterCap := int(math.Max(100, diveIterFactor*s.nodeIters))
 	for depth := 0; depth < maxDiveDepth; depth++ {
 		if s.limitReached() {
@@ -429,7 +433,7 @@ func (s *search) dive(x0 []float64) {
 			s.tryCandidate(x)
 			return
 		}
-		s.simpleRounding(x)
+		s.simpleRounding(x, false)
 		best, bestDist := -1, 2.0
 		for _, j := range frac {
 			f := x[j] - math.Floor(x[j])
@@ -461,4 +465,11 @@ func (s *search) dive(x0 []float64) {
 		}
 		x = r.X
 	}
+}
+
+// strongAllowed keeps strong branching within a share of the node LP
+// work: its iterations may not exceed strongShare times the node LP
+// iterations plus strongOffset.
+func (s *search) strongAllowed() bool {
+	return float64(s.sbIters) < strongShare*float64(s.nodeLPIters)+strongOffset
 }
