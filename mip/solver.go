@@ -118,6 +118,7 @@ type search struct {
 	pool     []*cut
 	poolKeys map[uint64]bool
 	nCuts    int
+	treeCuts int // pool cuts put back into the LP during the tree search
 
 	downLocks, upLocks []int
 

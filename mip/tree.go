@@ -97,7 +97,7 @@ func (s *search) processNode(nd *node, warm bool) (kids []*node, ok bool) {
 	}
 	s.syncBounds()
 	if !warm && nd.basis != nil {
-		_ = s.lps.SetBasis(*nd.basis)
+		_ = s.lps.SetBasis(s.padBasis(*nd.basis))
 	}
 	first := true
 	for round := 0; round < maxNodeResolves; round++ {
@@ -146,6 +146,9 @@ func (s *search) processNode(nd *node, warm bool) (kids []*node, ok bool) {
 			return nil, true
 		}
 		frac := s.fractional(r.X)
+		if len(frac) > 0 && s.poolToLP(r.X) {
+			continue // re-solve with the violated pool cuts
+		}
 		if len(frac) == 0 {
 			if !s.tryCandidate(r.X) && p.objective(p.snap(r.X)) < s.incObj-s.gapTol() {
 				// Integral LP point the check rejects (tolerances): give the
@@ -472,4 +475,46 @@ func (s *search) dive(x0 []float64) {
 // iterations plus strongOffset.
 func (s *search) strongAllowed() bool {
 	return float64(s.sbIters) < strongShare*float64(s.nodeLPIters)+strongOffset
+}
+
+// padBasis extends a basis saved before pool cuts entered the LP: the new
+// rows' slacks are basic.
+func (s *search) padBasis(b lp.Basis) lp.Basis {
+	m := s.lps.NumRows()
+	if len(b.Rows) >= m {
+		return b
+	}
+	rows := make([]lp.VarStatus, m)
+	copy(rows, b.Rows)
+	for i := len(b.Rows); i < m; i++ {
+		rows[i] = lp.Basic
+	}
+	return lp.Basis{Cols: b.Cols, Rows: rows}
+}
+
+// poolToLP adds the pool cuts (globally valid) that the node's LP point x
+// violates, up to maxTreeCuts over the whole tree, and reports whether it
+// added any.
+func (s *search) poolToLP(x []float64) bool {
+	if s.treeCuts >= maxTreeCuts {
+		return false
+	}
+	var rows []lp.Row
+	for _, c := range s.pool {
+		if c.lpRow >= 0 || c.efficacy(x) <= minEfficacy {
+			continue
+		}
+		c.lpRow = s.lps.NumRows() + len(rows)
+		rows = append(rows, c.row("pool"))
+		s.rows = append(s.rows, lpRowInfo{idx: c.idx, val: c.val, lower: c.lower, upper: c.upper, intSlack: c.kind == "cover"})
+		s.treeCuts++
+		if s.treeCuts >= maxTreeCuts {
+			break
+		}
+	}
+	if len(rows) == 0 {
+		return false
+	}
+	s.lps.AddRows(rows)
+	return true
 }
