@@ -28,15 +28,20 @@
 //     sequentially lifted knapsack cover cuts on the rows and Gomory
 //     mixed-integer cuts on tableau rows, with a small pool that ages slack
 //     cuts out of the LP; reduced-cost fixing of the global domain whenever
-//     the incumbent improves; rounding and diving heuristics.
+//     the incumbent improves; rounding and diving heuristics (a rounding
+//     that violates rows is repaired by an LP over the continuous columns
+//     at the root, after each dive and every few nodes).
 //   - Nodes: each node LP is warm-started from its parent's basis by the
 //     dual simplex, with the incumbent (minus the allowed gap) as objective
-//     cutoff; bounds are propagated on rows and on the objective cutoff, and
-//     reduced costs fix columns inside the subtree.
+//     cutoff; bounds are propagated on rows and on the objective cutoff,
+//     reduced costs fix columns inside the subtree, and a few pool cuts
+//     that the node's LP point violates re-enter the LP. Each node stores
+//     only its own bound changes, chained to its parent's.
 //   - Branching: reliability branching — pseudocosts with the product score,
 //     strong branching with an iteration cap on columns whose pseudocosts
 //     have fewer than 4 observations (common practice is about 8; 4 was
-//     faster on our benchmarks).
+//     faster on our benchmarks); strong branching may spend at most half
+//     the node LP iterations plus an offset.
 //   - Node selection: depth-first plunging into the preferred child while it
 //     stays promising, then best estimate, with a best-bound node taken
 //     every few picks so that the bound rises.
