@@ -34,7 +34,10 @@
 // while that keeps the leaving variable infeasible (bound flipping, "long
 // step"), then picks the largest pivot within Harris' tolerance; the primal
 // ratio test is Harris' two-pass test. Leaving rows are priced by dual
-// steepest edge. Long runs of degenerate pivots in an unperturbed solve
+// steepest edge, entering columns of the primal simplex by Devex. After a
+// cost change the primal simplex continues from the old, primal feasible
+// basis. Infeasibility and unboundedness are reported only with a
+// certificate (Result.Ray) that the solver has checked. Long runs of degenerate pivots in an unperturbed solve
 // switch the perturbation on. The basis is factorised as sparse LU (singletons
 // first, then Markowitz pivoting with threshold 0.1) with product-form
 // updates and a refactorisation every 100 updates or when the pivot seen

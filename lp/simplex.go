@@ -943,7 +943,7 @@ func (s *Solver) applyFlips(flips []int) {
 	}
 }
 
-// primalSimplex runs primal simplex iterations (Dantzig pricing, Harris
+// primalSimplex runs primal simplex iterations (Devex pricing, Harris
 // ratio test, bound flips) from a primal feasible basis until dual
 // feasibility (Optimal), an unbounded ray (Unbounded) or a limit.
 func (s *Solver) primalSimplex(lim *limits) Status {
