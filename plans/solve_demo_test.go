@@ -8,6 +8,9 @@ import (
 // TestSolveDemo solves the embedded demo to proven optimality and checks
 // the invariants of every solve on it.
 func TestSolveDemo(t *testing.T) {
+	if testing.Short() {
+		t.Skip("the demo solve runs in the full suite (too slow under the race detector)")
+	}
 	c, _, err := LoadDemo()
 	if err != nil {
 		t.Fatal(err)

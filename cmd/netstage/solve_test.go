@@ -232,6 +232,9 @@ func TestSolveDemoJSON(t *testing.T) {
 // goes to stdout, nothing but warnings to stderr, and the CSV files agree
 // with the JSON of the same run.
 func TestSolveCSV(t *testing.T) {
+	if testing.Short() {
+		t.Skip("solves the demo to optimality; too slow under the race detector, the full suite runs it")
+	}
 	dir := filepath.Join(t.TempDir(), "csv")
 	js, errOut, code := runSolveCapture(t, &solveOptions{useDemo: true, csvDir: dir, json: true, quiet: true})
 	if code != exitOK {
