@@ -25,7 +25,7 @@ const (
 	maxDiveDepth      = 200
 	diveEvery         = 200   // nodes between two dives
 	repairEvery       = 10    // nodes between two roundings repaired by LP
-	maxTreeCuts       = 20   // pool cuts that may re-enter the LP in the tree
+	maxTreeCuts       = 20    // pool cuts that may re-enter the LP in the tree
 	diveIterFactor    = 4     // a dive's LP iteration cap, in mean iterations per node
 	maxNodeResolves   = 20    // re-solves of one node after strong branching fixes a column
 	strongShare       = 0.5   // strong-branching iterations allowed per node LP iteration …
