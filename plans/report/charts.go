@@ -477,7 +477,7 @@ func hasNegative(xy plotter.XYs) bool {
 
 // utilChart draws the link × year grid of peak utilisation, before the plan
 // (top) and after it (bottom).
-func utilChart(c *plans.Case, r *plans.Result) (chart, error) {
+func utilChart(c *plans.Case, r *plans.Result) ([]chart, error) {
 	links, total := gridLinks(r)
 	index := map[string]int{}
 	for i, l := range links {
@@ -486,7 +486,6 @@ func utilChart(c *plans.Case, r *plans.Result) (chart, error) {
 	first, last := c.FirstYear, c.FirstYear+c.Horizon-1
 	mk := func(title string, after bool) *plot.Plot {
 		p := newPlot(title, "Year", "Link")
-		p.Title.TextStyle.Font = font.From(chartFont, 11)
 		p.X.Tick.Marker = yearTicks{first, last}
 		var ticks []plot.Tick
 		for i, l := range links {
@@ -501,33 +500,36 @@ func utilChart(c *plans.Case, r *plans.Result) (chart, error) {
 		p.Add(&utilGridPlot{r: r, index: index, n: len(links), after: after})
 		return p
 	}
-	before := mk("Before the plan (doing nothing), % of capacity", false)
-	after := mk("After the plan, % of capacity", true)
 	rowH := 0.62 * vg.Centimeter
-	panelH := vg.Length(len(links))*rowH + 2.2*vg.Centimeter
-	legendH := 2.6 * vg.Centimeter
-	h := 2*panelH + legendH
-	svg, err := svgOf(chartWidth, h, func(dc draw.Canvas) {
-		top := draw.Crop(dc, 0, 0, h-panelH, 0)
-		mid := draw.Crop(dc, 0, 0, legendH, -panelH)
-		bottom := draw.Crop(dc, 0, 0, 0, -(h - legendH))
-		before.Draw(top)
-		after.Draw(mid)
-		legendArea := draw.Crop(bottom, 0.4*vg.Centimeter, 0, 0, 0)
-		drawLegendColumns(legendArea, utilLegend, 2)
-	})
-	caption := "Each cell is the link's peak utilisation in the busier direction in that year, as a share of its capacity. " +
-		"Orange cells with bold figures are at the utilisation ceiling: without more capacity, traffic there is turned away. " +
-		"A frame with a corner mark shows capacity added by the plan."
+	panelH := vg.Length(len(links))*rowH + 2.0*vg.Centimeter
+	legendH := 2.4 * vg.Centimeter
+	// One figure per panel, each with its legend, so that each fits a
+	// printed page.
+	panel := func(title string, after bool) (string, error) {
+		p := mk(title, after)
+		return svgOf(chartWidth, panelH+legendH, func(dc draw.Canvas) {
+			p.Draw(draw.Crop(dc, 0, 0, legendH, 0))
+			drawLegendColumns(draw.Crop(dc, 0.4*vg.Centimeter, 0, 0, -panelH), utilLegend, 2)
+		})
+	}
+	before, err := panel("", false)
+	if err != nil {
+		return nil, err
+	}
+	after, err := panel("", true)
+	if err != nil {
+		return nil, err
+	}
+	caption := "Each cell is the link's peak utilisation in the busier direction in that year, as a share of its capacity (%). " +
+		"Orange cells with bold figures are at the utilisation ceiling: without more capacity, traffic there is turned away."
 	if len(links) < total {
 		caption += fmt.Sprintf(" The grid shows %d of the %d links: those the plan upgrades, then the busiest after the plan; the Markdown report lists every link.", len(links), total)
 	}
-	return chart{
-		ID:      "chart-utilisation",
-		Title:   "Peak utilisation by link and year, before and after the plan",
-		Caption: caption,
-		SVG:     svg,
-	}, err
+	return []chart{
+		{ID: "chart-utilisation-before", Title: "Peak utilisation by link and year before the plan (doing nothing)", Caption: caption, SVG: before},
+		{ID: "chart-utilisation-after", Title: "Peak utilisation by link and year after the plan",
+			Caption: "As above, with the plan's purchases in service. A frame with a corner mark shows capacity added by the plan.", SVG: after},
+	}, nil
 }
 
 // maxGridLinks is the most links the utilisation grid draws, so that the

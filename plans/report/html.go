@@ -55,6 +55,8 @@ tr.total td { font-weight:600; border-top:2px solid var(--ink); }
 tr.stage td { background:#fafbfc; font-weight:600; }
 .why { break-inside:avoid; page-break-inside:avoid; margin-bottom:14px; }
 .why ul { margin:4px 0 6px 20px; padding:0; }
+.why p { margin:0 0 4px; }
+table.narrow { width:auto; min-width:50%; }
 .note { color:var(--muted); font-size:13px; }
 .caution { border:2px solid var(--warn); border-radius:6px; padding:12px 16px; break-inside:avoid; page-break-inside:avoid; }
 .caution h2 { border:0; margin-top:0; }
@@ -71,7 +73,8 @@ tr.stage td { background:#fafbfc; font-weight:600; }
   table { font-size:8pt; }
   th, td { padding:2.5pt 3.5pt; }
   .wide { overflow:visible; }
-  section.charts figure { break-before:auto; }
+  #chart-capex svg.chart, #chart-cash svg.chart { width:82%; }
+  figure { margin:4mm 0 8mm; }
   a { color:inherit; text-decoration:none; }
 }
 `
@@ -157,7 +160,7 @@ const htmlSource = `<!DOCTYPE html>
 {{range .Assumptions}}<tr><th scope="row">{{.Label}}</th><td>{{.Value}}</td></tr>
 {{end}}</tbody></table>
 {{if .Budgets}}<h3>Budget by year ({{.Currency}})</h3>
-<div class="wide"><table><thead><tr><th>Year</th><th class="num">Cap</th><th class="num">Capex of the plan</th></tr></thead><tbody>
+<div class="wide"><table class="narrow"><thead><tr><th>Year</th><th class="num">Cap</th><th class="num">Capex of the plan</th></tr></thead><tbody>
 {{range .Budgets}}<tr><td>{{.Year}}</td><td class="num">{{.Cap}}</td><td class="num">{{.Used}}</td></tr>
 {{end}}</tbody></table></div>{{end}}
 {{if .Demands}}<h3>Demand forecast and tariffs</h3>

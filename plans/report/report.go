@@ -88,13 +88,18 @@ func WriteWith(w io.Writer, c *plans.Case, r *plans.Result, f Format, opts Optio
 // addCharts draws the HTML charts: capex, cash flow, utilisation, and the
 // map when the case has coordinates.
 func addCharts(v *view, c *plans.Case, r *plans.Result) error {
-	for _, f := range []func(*plans.Case, *plans.Result) (chart, error){capexChart, cashChart, utilChart} {
+	for _, f := range []func(*plans.Case, *plans.Result) (chart, error){capexChart, cashChart} {
 		ch, err := f(c, r)
 		if err != nil {
 			return err
 		}
 		v.Charts = append(v.Charts, ch)
 	}
+	grid, err := utilChart(c, r)
+	if err != nil {
+		return err
+	}
+	v.Charts = append(v.Charts, grid...)
 	if v.MapNote == "" {
 		ch, err := mapChart(c, r)
 		if err != nil {

@@ -442,8 +442,8 @@ func TestNoCoordinates(t *testing.T) {
 		bare.Sites[i].HasLatLon, bare.Sites[i].HasXY = false, false
 	}
 	page := render(t, &bare, r, HTML)
-	if n := strings.Count(page, "<svg"); n != 3 {
-		t.Errorf("html has %d <svg> charts, want 3 without coordinates", n)
+	if n := strings.Count(page, "<svg"); n != 4 {
+		t.Errorf("html has %d <svg> charts, want 4 without coordinates (capex, cash flow, utilisation before and after)", n)
 	}
 	if !strings.Contains(page, "no site coordinates") {
 		t.Error("html does not say why the map is missing")
