@@ -8,31 +8,58 @@ import (
 // integer when rounding up.
 const heuristicIntTol = 1e-6
 
+// roundingThresholds are the fractional parts from which the heuristic
+// rounds a unit count up (0: always, as the capacity the LP routed needs;
+// larger: round slivers down and let the LP serve less uncommitted
+// traffic). Each gives one candidate.
+var roundingThresholds = []float64{0, 0.5, 0.8}
+
 // roundUpHeuristic is the primal heuristic handed to mip: from a node's LP
-// point it rounds every link's cumulative module counts up to whole units
-// (so every link has at least the capacity the LP routed over it), builds
-// the candidate links those units need, repairs slots and budgets by
-// rounding down where the LP was fractional, and sets the tier columns to
-// the tier the purchases reach. Flows and served traffic are left as in the
-// LP: mip re-optimises the continuous columns when they no longer fit.
-// Cost O(columns + nonzeros of the purchases).
+// point it rounds every link's cumulative module counts to whole units —
+// up, so that every link has at least the capacity the LP routed over it,
+// and also with the thresholds of roundingThresholds, since rounding a
+// sliver of a large module up costs more than the traffic it carries earns
+// — builds the candidate links those units need, repairs slots and budgets
+// by rounding down where the LP was fractional, and sets the tier columns
+// to the tier the purchases reach. Flows and served traffic are left as in
+// the LP: mip re-optimises the continuous columns (and drops a candidate
+// that cannot carry the committed traffic).
+//
+// A further candidate rounds each link's capacity instead: the LP's
+// capacity on the link in each year is covered with whole units of the one
+// item the LP used most there (when that item can serve in time).
+// Cost O(columns + nonzeros of the purchases) per candidate.
 func (m *Model) roundUpHeuristic(xlp []float64) [][]float64 {
-	x := append([]float64(nil), xlp...)
-	for oi := range m.options {
-		m.roundOption(x, xlp, oi, math.Ceil)
+	var out [][]float64
+	add := func(theta float64, perLink bool) {
+		x := append([]float64(nil), xlp...)
+		round := func(v float64) float64 { return math.Floor(v + 1 - theta) }
+		if theta == 0 {
+			round = math.Ceil
+		}
+		for oi := range m.options {
+			m.roundOption(x, xlp, oi, round)
+		}
+		if perLink {
+			m.roundLinks(x, xlp)
+		}
+		m.repairSlots(x, xlp)
+		m.gateBuilds(x)
+		if !m.repairBudget(x, xlp) {
+			return
+		}
+		m.setTiers(x)
+		out = append(out, x)
 	}
-	m.repairSlots(x, xlp)
-	m.gateBuilds(x)
-	if !m.repairBudget(x, xlp) {
-		return nil
+	for _, theta := range roundingThresholds {
+		add(theta, false)
 	}
-	m.setTiers(x)
-	return [][]float64{x}
+	add(0, true)
+	return out
 }
 
 // roundOption rounds the cumulative columns of option oi with round
-// (math.Ceil or math.Floor of the LP value), keeping them non-decreasing and
-// within bounds.
+// (of the LP value), keeping them non-decreasing and within bounds.
 func (m *Model) roundOption(x, xlp []float64, oi int, round func(float64) float64) {
 	o := &m.options[oi]
 	run := 0.0
@@ -41,13 +68,86 @@ func (m *Model) roundOption(x, xlp []float64, oi int, round func(float64) float6
 			continue
 		}
 		v := xlp[j]
-		if round(v) != v && math.Abs(v-math.Round(v)) <= heuristicIntTol {
+		if math.Abs(v-math.Round(v)) <= heuristicIntTol {
 			v = math.Round(v)
 		}
 		v = math.Max(round(v), run)
 		v = math.Min(v, m.LP.ColUpper[j])
 		x[j] = v
 		run = v
+	}
+}
+
+// roundLinks replaces, link by link, the rounded units of x by whole units
+// of the item carrying most of the LP's added capacity on that link, enough
+// in every year for the LP's capacity there. A link whose early capacity
+// that item cannot serve in time keeps x as it is.
+func (m *Model) roundLinks(x, xlp []float64) {
+	c := m.Case
+	byLink := make([][]int, len(c.Links))
+	for oi := range m.options {
+		byLink[m.options[oi].link] = append(byLink[m.options[oi].link], oi)
+	}
+	T := c.Horizon
+	for _, opts := range byLink {
+		if len(opts) < 2 {
+			continue
+		}
+		need := make([]float64, T)
+		best, bestGbps := -1, 0.0
+		for _, oi := range opts {
+			o := &m.options[oi]
+			g := c.Items[o.item].Gbps
+			for t := 0; t < T; t++ {
+				if j := o.unitsInService(t); j >= 0 {
+					need[t] += g * xlp[j]
+				}
+			}
+			if j := o.unitsInService(T - 1); j >= 0 && g*xlp[j] > bestGbps {
+				best, bestGbps = oi, g*xlp[j]
+			}
+		}
+		if best < 0 {
+			continue
+		}
+		o := &m.options[best]
+		g := c.Items[o.item].Gbps
+		units := make([]float64, T) // units of o needed in service by year t
+		ok := true
+		for t := 0; t < T; t++ {
+			if need[t] <= heuristicIntTol {
+				continue
+			}
+			if o.unitsInService(t) < 0 {
+				ok = false
+				break
+			}
+			units[t] = math.Ceil(need[t]/g - heuristicIntTol)
+		}
+		if !ok {
+			continue
+		}
+		for _, oi := range opts {
+			for _, j := range m.options[oi].col {
+				if j >= 0 {
+					x[j] = 0
+				}
+			}
+		}
+		run := 0.0
+		for tau, j := range o.col {
+			if j < 0 {
+				continue
+			}
+			v := run
+			for t := o.inService[tau]; t < T; t++ {
+				if o.unitsInService(t) == j {
+					v = math.Max(v, units[t])
+				}
+			}
+			v = math.Min(v, m.LP.ColUpper[j])
+			x[j], run = v, v
+		}
 	}
 }
 
