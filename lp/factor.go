@@ -352,7 +352,13 @@ func factorize(m int, col columnFunc) (f *factor, badCols, freeRows []int) {
 		}
 		return nil, badCols, freeRows
 	}
-	f.etaStart = append(f.etaStart, 0)
+	// Room for a few dense eta columns up front: growing the eta file by
+	// doubling from nothing copies it many times.
+	f.etaIdx = make([]int, 0, 8*m+64)
+	f.etaVal = make([]float64, 0, 8*m+64)
+	f.etaPos = make([]int, 0, refactorEvery)
+	f.etaPiv = make([]float64, 0, refactorEvery)
+	f.etaStart = make([]int, 1, refactorEvery+1)
 	f.transpose()
 	return f, nil, nil
 }

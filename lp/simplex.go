@@ -77,6 +77,12 @@ func (s *Solver) resizeScratch() {
 	s.tau = resize(s.tau, s.m)
 	s.alphaCol = resize(s.alphaCol, s.m)
 	s.alphaRow = resize(s.alphaRow, nm)
+	if cap(s.rowMark) >= nm {
+		s.rowMark = s.rowMark[:nm]
+	} else {
+		s.rowMark = make([]bool, nm)
+	}
+	s.rowDirty = true
 	s.work = resize(s.work, nm)
 }
 
@@ -145,6 +151,46 @@ func (s *Solver) pivotRow(rho []float64, row []float64) {
 			row[s.csr.Index[p]] += r * s.csr.Value[p]
 		}
 	}
+}
+
+// pivotRowSparse fills s.alphaRow with the pivot row ρᵀ[A | −I] over all
+// variables and lists in s.rowNZ the variables whose entry may be nonzero,
+// touching only the rows where ρ is nonzero and their entries. Entries
+// outside the list are zero.
+func (s *Solver) pivotRowSparse(rho []float64) {
+	row, mark := s.alphaRow, s.rowMark
+	if s.rowDirty {
+		for v := range row {
+			row[v] = 0
+			mark[v] = false
+		}
+		s.rowDirty = false
+	} else {
+		for _, v := range s.rowNZ {
+			row[v] = 0
+			mark[v] = false
+		}
+	}
+	nz := s.rowNZ[:0]
+	n := s.n
+	for i, r := range rho {
+		if r == 0 {
+			continue
+		}
+		v := n + i
+		row[v] = -r
+		mark[v] = true
+		nz = append(nz, v)
+		for p := s.csr.Start[i]; p < s.csr.Start[i+1]; p++ {
+			j := s.csr.Index[p]
+			if !mark[j] {
+				mark[j] = true
+				nz = append(nz, j)
+			}
+			row[j] += r * s.csr.Value[p]
+		}
+	}
+	s.rowNZ = nz
 }
 
 // fixStatuses makes every nonbasic status consistent with the bounds and
@@ -634,7 +680,6 @@ func (s *Solver) cutoffScaled() float64 {
 // Settings.ObjectiveCutoff.
 func (s *Solver) dualSimplex(lim *limits, useCutoff bool) Status {
 	ptol, dtol := s.primalTol(), s.dualTol()
-	m, n := s.m, s.n
 	rho, row, alpha, tau := s.rho, s.alphaRow, s.alphaCol, s.tau
 	cutoff := s.cutoffScaled()
 	degenerate := 0
@@ -692,10 +737,7 @@ func (s *Solver) dualSimplex(lim *limits, useCutoff bool) Status {
 		}
 		rho[r] = 1
 		s.fac.btran(rho)
-		s.pivotRow(rho, row)
-		for i := 0; i < m; i++ {
-			row[n+i] = -rho[i]
-		}
+		s.pivotRowSparse(rho)
 		// Bound-flipping ratio test with Harris tolerances.
 		usedTol := pivotTol
 		q, flips, st := s.dualRatioTest(sgn, math.Abs(delta), row, usedTol)
@@ -755,8 +797,8 @@ func (s *Solver) dualSimplex(lim *limits, useCutoff bool) Status {
 			degenerate = 0
 		}
 		if thetaD != 0 {
-			for v, st := range s.stat {
-				if st != Basic {
+			for _, v := range s.rowNZ {
+				if s.stat[v] != Basic {
 					s.d[v] -= thetaD * row[v]
 				}
 			}
@@ -821,7 +863,8 @@ type ratioCandidate struct {
 func (s *Solver) dualRatioTest(sgn, slope float64, row []float64, pivTol float64) (q int, flips []int, st Status) {
 	ptol, dtol := s.primalTol(), s.dualTol()
 	cands := s.cands[:0]
-	for v, vs := range s.stat {
+	for _, v := range s.rowNZ {
+		vs := s.stat[v]
 		if vs == Basic || vs == Fixed {
 			continue
 		}
@@ -1047,10 +1090,7 @@ func (s *Solver) primalSimplex(lim *limits) Status {
 		}
 		rho[r] = 1
 		s.fac.btran(rho)
-		s.pivotRow(rho, row)
-		for i := 0; i < m; i++ {
-			row[n+i] = -rho[i]
-		}
+		s.pivotRowSparse(rho)
 		if math.Abs(arq-row[q]) > pivotMismatchTol*(1+math.Abs(arq)) && s.fac.numUpdates() > 0 {
 			if !s.refactor() {
 				return NumericalTrouble
@@ -1059,8 +1099,8 @@ func (s *Solver) primalSimplex(lim *limits) Status {
 		}
 		thetaD := s.d[q] / arq
 		wq := devex[q]
-		for v, st := range s.stat {
-			if st != Basic {
+		for _, v := range s.rowNZ {
+			if s.stat[v] != Basic {
 				s.d[v] -= thetaD * row[v]
 				if row[v] != 0 {
 					ratio := row[v] / arq

@@ -74,6 +74,9 @@ type Solver struct {
 	// scratch
 	rho, alphaRow, alphaCol, tau []float64
 	devex                        []float64 // primal pricing weights
+	rowNZ                        []int     // variables with a nonzero in alphaRow
+	rowMark                      []bool
+	rowDirty                     bool // alphaRow must be cleared in full
 	cands                        []ratioCandidate
 	flips                        []int
 }
