@@ -67,7 +67,6 @@ type Solver struct {
 
 	iterations int // in the current solve
 	ray        []float64
-	status     Status
 	warm       bool // the basis comes from an earlier solve: no perturbation
 	perturbed  bool // the working costs differ from the true costs
 
@@ -547,7 +546,6 @@ func (s *Solver) Solve(ctx context.Context) Result {
 	if st != NumericalTrouble && st != Cancelled {
 		s.warm = true
 	}
-	s.status = st
 	return s.result(st)
 }
 
