@@ -114,7 +114,10 @@ type Settings struct {
 // sense.
 type Result struct {
 	Status    Status
-	Objective float64 // c·x + constant, in the model's sense; meaningful when Optimal
+	// Objective is c·x + constant in the model's sense: the optimum when
+	// Optimal; for ObjectiveCutoff, the dual bound that passed the cutoff
+	// (X is then the infeasible basic point that attains it).
+	Objective float64
 	// X holds column values, RowActivity the row activities a·x.
 	X           []float64
 	RowActivity []float64
