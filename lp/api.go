@@ -113,7 +113,7 @@ type Settings struct {
 // Result is the outcome of a solve, in the model's own (unscaled) units and
 // sense.
 type Result struct {
-	Status    Status
+	Status Status
 	// Objective is c·x + constant in the model's sense: the optimum when
 	// Optimal; for ObjectiveCutoff, the dual bound that passed the cutoff
 	// (X is then the infeasible basic point that attains it).
