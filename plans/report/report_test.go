@@ -613,3 +613,22 @@ func TestRevenueGain(t *testing.T) {
 	}
 	checkClose(t, "extra revenue", num(t, m[1]), want, moneyTol)
 }
+
+// TestEmptyPlan: when the plan buys nothing, the report says so and gives
+// no IRR or payback, whatever rounding noise the incremental flows carry.
+func TestEmptyPlan(t *testing.T) {
+	c, r := solvedDemo(t)
+	empty := *r
+	empty.Plan = nil
+	irr, year := -0.643, c.FirstYear
+	empty.IRR, empty.PaybackYear = &irr, &year
+	md := render(t, c, &empty, Markdown)
+	if !strings.Contains(md, "Order nothing in") || !strings.Contains(md, "The plan buys nothing.") {
+		t.Error("empty plan: the report does not say that nothing is bought")
+	}
+	for _, bad := range []string{"IRR of", "payback in", "−64.3%"} {
+		if strings.Contains(md, bad) {
+			t.Errorf("empty plan: the report contains %q", bad)
+		}
+	}
+}

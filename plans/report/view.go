@@ -246,10 +246,14 @@ func decision(c *plans.Case, r *plans.Result) string {
 		}
 		b.WriteString(". ")
 		var parts []string
-		if r.IRR != nil {
+		if len(r.Plan) == 0 {
+			// Without purchases the incremental flows are rounding noise:
+			// an IRR or payback of them means nothing.
+		} else if r.IRR != nil {
 			parts = append(parts, "an IRR of "+percent(*r.IRR))
 		}
-		if r.PaybackYear != nil {
+		if len(r.Plan) == 0 {
+		} else if r.PaybackYear != nil {
 			parts = append(parts, "payback in "+strconv.Itoa(*r.PaybackYear))
 		} else if len(r.Plan) > 0 {
 			parts = append(parts, "no payback within the horizon")
@@ -439,6 +443,10 @@ func keyFigures(r *plans.Result) []keyFigure {
 	if r.Objective == nil {
 		return []keyFigure{{Label: "Status", Value: string(r.Status)}}
 	}
+	irr, payback := r.IRR, r.PaybackYear
+	if len(r.Plan) == 0 {
+		irr, payback = nil, nil // no purchases: nothing to pay back
+	}
 	if r.CostMode {
 		k = append(k,
 			keyFigure{"Present cost of the plan", m(-*r.Objective), "all committed traffic carried"},
@@ -450,8 +458,8 @@ func keyFigures(r *plans.Result) []keyFigure {
 			keyFigure{"NPV of the plan", m(*r.Objective), ""},
 			keyFigure{"NPV of doing nothing", opt(r.BaselineNPV, m, "n/a"), "baseline"},
 			keyFigure{"Incremental NPV", opt(r.IncrementalNPV, m, "n/a"), "plan − baseline"},
-			keyFigure{"IRR", opt(r.IRR, percent, "n/a"), "of the incremental cash flow"},
-			keyFigure{"Payback year", optInt(r.PaybackYear), "undiscounted, incremental"},
+			keyFigure{"IRR", opt(irr, percent, "n/a"), "of the incremental cash flow"},
+			keyFigure{"Payback year", optInt(payback), "undiscounted, incremental"},
 		)
 	}
 	k = append(k,
