@@ -492,16 +492,17 @@ func (s *search) padBasis(b lp.Basis) lp.Basis {
 	return lp.Basis{Cols: b.Cols, Rows: rows}
 }
 
-// poolToLP adds the pool cuts (globally valid) that the node's LP point x
-// violates, up to maxTreeCuts over the whole tree, and reports whether it
-// added any.
+// poolToLP adds the pool's cover cuts (globally valid) that the node's LP
+// point x violates, up to maxTreeCuts over the whole tree, and reports
+// whether it added any. Gomory cuts stay out: on the planning models they
+// slowed the node LPs more than they pruned.
 func (s *search) poolToLP(x []float64) bool {
 	if s.treeCuts >= maxTreeCuts {
 		return false
 	}
 	var rows []lp.Row
 	for _, c := range s.pool {
-		if c.lpRow >= 0 || c.efficacy(x) <= minEfficacy {
+		if c.lpRow >= 0 || c.kind != "cover" || c.efficacy(x) <= minEfficacy {
 			continue
 		}
 		c.lpRow = s.lps.NumRows() + len(rows)
