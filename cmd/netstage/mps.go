@@ -124,6 +124,10 @@ func runMPS(ctx context.Context, env *cmdEnv, opts *mpsOptions) error {
 		rep, err = solveMIPFile(ctx, m, mpsFileOptions{TimeLimit: limit, Gap: opts.gap})
 	}
 	if err != nil {
+		var ce *codedError
+		if errors.As(err, &ce) {
+			return err
+		}
 		return withCode(exitFailure, err)
 	}
 	rep.Seconds = math.Round(time.Since(start).Seconds()*1e3) / 1e3
@@ -143,7 +147,8 @@ func runMPS(ctx context.Context, env *cmdEnv, opts *mpsOptions) error {
 func solveLPFile(ctx context.Context, m *lp.Model, limit time.Duration) (mpsReport, error) {
 	r, err := lp.Solve(ctx, m, lp.Settings{TimeLimit: limit})
 	if err != nil {
-		return mpsReport{}, err
+		// The file read but describes no valid model (crossed bounds).
+		return mpsReport{}, withCode(exitBadInput, err)
 	}
 	rep := mpsReport{Iterations: r.Iterations}
 	switch r.Status {

@@ -29,6 +29,11 @@ func TestMPSCommand(t *testing.T) {
 	if err := os.WriteFile(infeasible, []byte(src), 0o644); err != nil {
 		t.Fatal(err)
 	}
+	crossed := filepath.Join(dir, "crossed.mps")
+	// Reads fine, but the column's bounds cross: bad input, not a failure.
+	if err := os.WriteFile(crossed, []byte("NAME c\nROWS\n N obj\n G r\nCOLUMNS\n x r 1\nBOUNDS\n LO BND x 2\n UP BND x 1\nENDATA\n"), 0o644); err != nil {
+		t.Fatal(err)
+	}
 	broken := filepath.Join(dir, "broken.mps")
 	if err := os.WriteFile(broken, []byte("NAME b\nROWS\n Q r\nENDATA\n"), 0o644); err != nil {
 		t.Fatal(err)
@@ -47,6 +52,7 @@ func TestMPSCommand(t *testing.T) {
 		{"afiro relaxation", []string{"mps", mpsSample(t, "afiro"), "--relax", "--json", "--time-limit", "60"}, 0, "optimal", -464.75314286, ""},
 		{"infeasible", []string{"mps", infeasible, "--relax", "--json"}, 3, "infeasible", math.NaN(), ""},
 		{"bad file", []string{"mps", broken, "--relax"}, 2, "", 0, "broken.mps:3"},
+		{"crossed bounds", []string{"mps", crossed, "--relax"}, 2, "", 0, "bounds"},
 		{"missing file", []string{"mps", filepath.Join(dir, "none.mps"), "--relax"}, 2, "", 0, "no such file"},
 		{"bad time limit", []string{"mps", infeasible, "--relax", "--time-limit", "soon"}, 2, "", 0, "--time-limit"},
 		{"MIP not wired", []string{"mps", infeasible}, 1, "", 0, "not wired"},
