@@ -140,12 +140,22 @@ func buildView(c *plans.Case, r *plans.Result) (*view, error) {
 	v.Vendors, v.Items = catalogs(c)
 	v.Solver = solver(r)
 	for _, x := range r.Infeasibility {
-		amount := gbps(x.Amount)
-		if x.Kind == plans.InfeasibleBudget {
+		var amount string
+		switch x.Kind {
+		case plans.InfeasibleBudget:
 			amount = moneyCur(x.Amount, v.Currency)
+		case plans.InfeasibleDemand:
+			amount = gbps(x.Amount)
+		default:
+			// A link can have to give Gbps or slots; the message says which.
+			amount = trimZero(formatFixed(x.Amount, 1))
+		}
+		year := "all years"
+		if x.Year != 0 {
+			year = strconv.Itoa(x.Year)
 		}
 		v.Infeasibility = append(v.Infeasibility, infeasibleRow{
-			Kind: x.Kind, Name: x.Name, Year: strconv.Itoa(x.Year), Amount: amount, Message: x.Message,
+			Kind: x.Kind, Name: x.Name, Year: year, Amount: amount, Message: x.Message,
 		})
 	}
 	v.Warnings = append(v.Warnings, r.Warnings...)
@@ -906,7 +916,7 @@ func budgets(c *plans.Case, r *plans.Result) []budgetRow {
 		if v, ok := c.Budget.YearCap(i); ok {
 			cap = money(v)
 		}
-		used := ""
+		used := "—"
 		if cf := cashYear(r.Cashflow, c.Year(i)); cf != nil {
 			used = money(cf.Capex)
 		}
