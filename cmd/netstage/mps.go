@@ -135,7 +135,9 @@ func runMPS(ctx context.Context, env *cmdEnv, opts *mpsOptions) error {
 		return withCode(exitFailure, err)
 	}
 	switch rep.Status {
-	case "optimal":
+	case "optimal", "feasible":
+		// A solution found at a limit is still success (DESIGN.md §4);
+		// its status and gap say it is not proven optimal.
 		return nil
 	case "infeasible", "unbounded":
 		return &silentExit{code: exitInfeasible}

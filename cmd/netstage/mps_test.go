@@ -55,12 +55,11 @@ func TestMPSCommand(t *testing.T) {
 		{"crossed bounds", []string{"mps", crossed, "--relax"}, 2, "", 0, "bounds"},
 		{"missing file", []string{"mps", filepath.Join(dir, "none.mps"), "--relax"}, 2, "", 0, "no such file"},
 		{"bad time limit", []string{"mps", infeasible, "--relax", "--time-limit", "soon"}, 2, "", 0, "--time-limit"},
-		{"MIP not wired", []string{"mps", infeasible}, 1, "", 0, "not wired"},
+		// source: MIPLIB 3 problem table (REFERENCES.md §2), p0033 optimum 3089.
+		{"p0033 MIP", []string{"mps", mpsSample(t, "p0033"), "--json", "--gap", "1e-9"}, 0, "optimal", 3089, ""},
+		{"infeasible MIP", []string{"mps", infeasible, "--json"}, 3, "infeasible", math.NaN(), ""},
 	} {
 		t.Run(tc.name, func(t *testing.T) {
-			if tc.name == "MIP not wired" && solveMIPFile != nil {
-				t.Skip("package mip is wired in")
-			}
 			var stdout, stderr bytes.Buffer
 			code := run(tc.args, &stdout, &stderr)
 			if code != tc.code {
