@@ -3,6 +3,7 @@ package report
 import (
 	"bufio"
 	"fmt"
+	"html"
 	"io"
 	"strings"
 
@@ -106,6 +107,12 @@ func addCharts(v *view, c *plans.Case, r *plans.Result) error {
 			return err
 		}
 		v.Charts = append(v.Charts, ch)
+	}
+	// Name each chart for screen readers.
+	for i := range v.Charts {
+		ch := &v.Charts[i]
+		ch.SVG = strings.Replace(ch.SVG, `<svg class="chart" role="img"`,
+			`<svg class="chart" role="img" aria-label="`+html.EscapeString(ch.Title)+`"`, 1)
 	}
 	return nil
 }
