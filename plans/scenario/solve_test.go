@@ -124,7 +124,7 @@ func TestAllCatalogsBeatEachAlone(t *testing.T) {
 	ctx := context.Background()
 	for name, c := range testCases(t) {
 		t.Run(name, func(t *testing.T) {
-			cmp, err := Compare(ctx, c, CompareOptions{Solve: exactSolve, NoBreakEven: true})
+			cmp, err := Compare(ctx, c, CompareOptions{Solve: exactSolve, NoBreakEven: true, Jobs: 2})
 			if err != nil {
 				t.Fatal(err)
 			}
@@ -212,7 +212,7 @@ func TestBreakEvenMatchesWinner(t *testing.T) {
 	for _, name := range names {
 		c := cases[name]
 		t.Run(name, func(t *testing.T) {
-			cmp, err := Compare(ctx, c, CompareOptions{Solve: solve})
+			cmp, err := Compare(ctx, c, CompareOptions{Solve: solve, Jobs: 2})
 			if err != nil {
 				t.Fatal(err)
 			}
