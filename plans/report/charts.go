@@ -142,7 +142,7 @@ func newPlot(title, xLabel, yLabel string) *plot.Plot {
 // yearTicks labels every year (every second one on long horizons).
 type yearTicks struct{ first, last int }
 
-func (t yearTicks) Ticks(min, max float64) []plot.Tick {
+func (t yearTicks) Ticks(_, _ float64) []plot.Tick {
 	step := 1
 	if t.last-t.first >= 12 {
 		step = 2
@@ -184,18 +184,16 @@ func (numberTicks) Ticks(lo, hi float64) []plot.Tick {
 	return ticks
 }
 
-// svgOf draws p (or a grid of plots) to an inline SVG element.
-func svgOf(w, h vg.Length, draw func(dc draw.Canvas)) (string, error) {
+// svgOf paints a canvas of w × h and returns it as an inline SVG element.
+func svgOf(w, h vg.Length, paint func(dc draw.Canvas)) (string, error) {
 	c := vgsvg.NewWith(vgsvg.UseWH(w, h), vgsvg.EmbedFonts(false))
-	draw(drawCanvas(c))
+	paint(draw.New(c))
 	var buf bytes.Buffer
 	if _, err := c.WriteTo(&buf); err != nil {
 		return "", fmt.Errorf("report: writing svg: %w", err)
 	}
 	return inlineSVG(buf.String()), nil
 }
-
-func drawCanvas(c vg.CanvasSizer) draw.Canvas { return draw.New(c) }
 
 var (
 	xmlHeader  = regexp.MustCompile(`(?s)^<\?xml[^>]*\?>\s*(<!--.*?-->\s*)?`)
@@ -654,7 +652,7 @@ func (s swatch) Thumbnail(c *draw.Canvas) {
 // drawCornerMark draws the "capacity added" mark: a dark triangle in the
 // top-right corner at (x, y).
 func drawCornerMark(c *draw.Canvas, x, y, size vg.Length) {
-	c.FillPolygon(inkColor, []vg.Point{{X: x - size, Y: y}, {X: x, Y: y}, {X: x, Y: y - size}})
+	drawCornerMarkColor(c, x, y, size, inkColor)
 }
 
 // utilGridPlot draws the cells of one utilisation panel.

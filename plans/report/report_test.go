@@ -632,3 +632,29 @@ func TestEmptyPlan(t *testing.T) {
 		}
 	}
 }
+
+// TestGridLinks: a large network's grid keeps every upgraded link, then
+// the links closest to their ceiling, in the Result's order.
+func TestGridLinks(t *testing.T) {
+	r := &plans.Result{}
+	n := maxGridLinks + 8
+	for i := 0; i < n; i++ {
+		ly := plans.LinkYear{Link: fmt.Sprintf("L%02d", i), Year: 2030, CapacityBefore: 100, CapacityAfter: 100,
+			Ceiling: 0.7, UtilisationAfter: float64(i) / float64(n) * 0.7}
+		if i == 0 || i == 3 {
+			ly.CapacityAfter = 200 // upgraded, yet lightly used
+		}
+		r.Links = append(r.Links, ly)
+	}
+	got, total := gridLinks(r)
+	if total != n || len(got) != maxGridLinks {
+		t.Fatalf("gridLinks: %d of %d links, want %d of %d", len(got), total, maxGridLinks, n)
+	}
+	if got[0] != "L00" || got[1] != "L03" {
+		t.Errorf("gridLinks starts %v, want the upgraded L00 and L03 first (Result order)", got[:2])
+	}
+	// The rest are the busiest: the last maxGridLinks−2 by index.
+	if want := fmt.Sprintf("L%02d", n-(maxGridLinks-2)); got[2] != want {
+		t.Errorf("gridLinks third link %s, want %s", got[2], want)
+	}
+}
