@@ -15,6 +15,7 @@ import (
 	"strings"
 	"text/tabwriter"
 	"time"
+	"unicode/utf8"
 
 	"github.com/spf13/cobra"
 
@@ -195,9 +196,13 @@ func writeComparison(w io.Writer, c *plans.Case, cmp *scenario.Comparison, break
 	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', tabwriter.AlignRight)
 	// Labels are padded to one width so that they read left-aligned in a
 	// right-aligned table.
-	labelWidth := len("break-even discount")
+	npvLabel := "NPV"
+	if c.CostMode() {
+		npvLabel = "NPV (−present cost)"
+	}
+	labelWidth := max(utf8.RuneCountInString(npvLabel), len("break-even discount"))
 	for _, v := range c.Vendors {
-		labelWidth = max(labelWidth, len("units ")+len(v.ID))
+		labelWidth = max(labelWidth, utf8.RuneCountInString("units "+v.ID))
 	}
 	row := func(label string, cell func(v *scenario.Variant) string) {
 		fmt.Fprintf(tw, "%-*s\t", labelWidth, label)
@@ -220,7 +225,7 @@ func writeComparison(w io.Writer, c *plans.Case, cmp *scenario.Comparison, break
 		return v.Name
 	})
 	row("status", func(v *scenario.Variant) string { return v.Status })
-	row("NPV", func(v *scenario.Variant) string { return optMoney(v.Objective) })
+	row(npvLabel, func(v *scenario.Variant) string { return optMoney(v.Objective) })
 	row("incremental NPV", func(v *scenario.Variant) string { return optMoney(v.IncrementalNPV) })
 	row("IRR", func(v *scenario.Variant) string {
 		if v.IRR == nil {

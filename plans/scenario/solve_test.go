@@ -152,8 +152,9 @@ func TestAllCatalogsBeatEachAlone(t *testing.T) {
 // optimum cannot fall; with higher equipment prices every plan costs at
 // least as much (capex scales by the multiplier, tiers with it) and a plan
 // within budget at the higher price is within budget at the lower one, so
-// the optimum cannot rise.
-func TestNPVMonotoneInTariffAndCapex(t *testing.T) {
+// the optimum cannot rise. A larger budget keeps every plan feasible, so
+// the optimum cannot fall either (the budget frontier rises).
+func TestNPVMonotoneInTariffCapexBudget(t *testing.T) {
 	ctx := context.Background()
 	values := []float64{0.6, 0.8, 1, 1.25, 1.5}
 	for name, c := range testCases(t) {
@@ -166,7 +167,7 @@ func TestNPVMonotoneInTariffAndCapex(t *testing.T) {
 		for _, f := range []struct {
 			name string
 			sign float64 // +1 non-decreasing, −1 non-increasing
-		}{{Tariff, 1}, {Capex, -1}} {
+		}{{Tariff, 1}, {Capex, -1}, {Budget, 1}} {
 			t.Run(name+"/"+f.name, func(t *testing.T) {
 				g, err := NewGrid([]Factor{{Name: f.name, Values: values}})
 				if err != nil {
