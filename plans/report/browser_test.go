@@ -8,6 +8,8 @@ import (
 	"os"
 	"os/exec"
 	"path/filepath"
+	"regexp"
+	"strconv"
 	"strings"
 	"testing"
 	"time"
@@ -60,20 +62,7 @@ func TestBrowserRender(t *testing.T) {
 		t.Fatal(err)
 	}
 	shot := filepath.Join(dir, "report.png")
-	ctx, cancel := context.WithTimeout(context.Background(), browserTimeout)
-	defer cancel()
-	cmd := exec.CommandContext(ctx, bin,
-		"--headless", "--no-sandbox", "--disable-gpu", "--no-first-run",
-		"--disable-background-networking", "--disable-component-update",
-		"--disable-sync", "--disable-quic", "--hide-scrollbars",
-		"--user-data-dir="+filepath.Join(dir, "profile"),
-		"--window-size=1100,3000",
-		"--screenshot="+shot,
-		"file://"+htmlPath)
-	out, err := cmd.CombinedOutput()
-	if err != nil {
-		t.Fatalf("chromium: %v\n%s", err, out)
-	}
+	out := chromium(t, bin, dir, "--window-size=1100,3000", "--screenshot="+shot, "file://"+htmlPath)
 	f, err := os.Open(shot)
 	if err != nil {
 		t.Fatalf("chromium wrote no screenshot: %v\n%s", err, out)
@@ -95,6 +84,93 @@ func TestBrowserRender(t *testing.T) {
 	// blue or the ceiling orange must appear somewhere.
 	if !hasColour(img) {
 		t.Error("screenshot has no chart colours: the SVG charts did not render")
+	}
+}
+
+// chromium runs headless chromium with a fresh profile under dir and
+// returns its output.
+func chromium(t *testing.T, bin, dir string, args ...string) []byte {
+	t.Helper()
+	profile, err := os.MkdirTemp(dir, "profile-")
+	if err != nil {
+		t.Fatal(err)
+	}
+	ctx, cancel := context.WithTimeout(context.Background(), browserTimeout)
+	defer cancel()
+	base := []string{"--headless", "--no-sandbox", "--disable-gpu", "--no-first-run",
+		"--disable-background-networking", "--disable-component-update",
+		"--disable-sync", "--disable-quic", "--hide-scrollbars", "--user-data-dir=" + profile}
+	out, err := exec.CommandContext(ctx, bin, append(base, args...)...).CombinedOutput()
+	if err != nil {
+		t.Fatalf("chromium: %v\n%s", err, out)
+	}
+	return out
+}
+
+// Page sizes in PostScript points (ISO 216 A4 is 210 × 297 mm, US Letter
+// 8.5 × 11 in; 1 pt = 1/72 in).
+var paperSizes = []struct {
+	name          string
+	width, height float64
+}{
+	{"A4", 595.28, 841.89},
+	{"letter", 612, 792},
+}
+
+// mediaBoxRE reads the page boxes of the PDF that chromium writes (its
+// page objects are not compressed).
+var mediaBoxRE = regexp.MustCompile(`/MediaBox\s*\[\s*0\s+0\s+([0-9.]+)\s+([0-9.]+)\s*\]`)
+
+// maxDemoPages bounds the printed demo report: about one page of text and
+// one per chart, plus the tables. More means a chart or table spilled.
+const maxDemoPages = 14
+
+// TestBrowserPrint prints the demo report to PDF on A4 and on Letter and
+// checks the page size and a sensible page count.
+func TestBrowserPrint(t *testing.T) {
+	bin := findChromium()
+	if bin == "" {
+		t.Skip("chromium is not installed (apt-get install -y chromium; .ci/run installs it): printing not checked")
+	}
+	if testing.Short() {
+		t.Skip("printing in chromium takes tens of seconds; it runs in the full suite (go test without -short)")
+	}
+	c, r := solvedDemo(t)
+	page := render(t, c, r, HTML)
+	if !strings.Contains(page, "@page { size:auto;") {
+		t.Fatal("html has no @page rule with size:auto to set the paper in")
+	}
+	dir := t.TempDir()
+	for _, paper := range paperSizes {
+		t.Run(paper.name, func(t *testing.T) {
+			// The paper a reader's printer uses, set as a print dialog would.
+			src := filepath.Join(dir, paper.name+".html")
+			sized := strings.Replace(page, "@page { size:auto;", "@page { size:"+paper.name+";", 1)
+			if err := os.WriteFile(src, []byte(sized), 0o644); err != nil {
+				t.Fatal(err)
+			}
+			pdf := filepath.Join(dir, paper.name+".pdf")
+			chromium(t, bin, dir, "--no-pdf-header-footer", "--print-to-pdf="+pdf, "file://"+src)
+			data, err := os.ReadFile(pdf)
+			if err != nil {
+				t.Fatalf("chromium wrote no PDF: %v", err)
+			}
+			boxes := mediaBoxRE.FindAllStringSubmatch(string(data), -1)
+			if len(boxes) < 2 {
+				t.Fatalf("PDF has %d pages, want several", len(boxes))
+			}
+			if len(boxes) > maxDemoPages {
+				t.Errorf("PDF has %d pages, want at most %d", len(boxes), maxDemoPages)
+			}
+			for _, b := range boxes {
+				w, _ := strconv.ParseFloat(b[1], 64)
+				h, _ := strconv.ParseFloat(b[2], 64)
+				if math.Abs(w-paper.width) > 1 || math.Abs(h-paper.height) > 1 {
+					t.Fatalf("PDF page is %.1f × %.1f pt, want %s %.1f × %.1f", w, h, paper.name, paper.width, paper.height)
+				}
+			}
+			t.Logf("%s: %d pages", paper.name, len(boxes))
+		})
 	}
 }
 
