@@ -24,7 +24,9 @@ import (
 //     and salvage at the horizon.
 //
 // Valuing the base plan in the base case this way gives the base optimum
-// back (a test checks it), which ties these rules to the model's.
+// back (a test checks it), which ties these rules to the model's. The
+// Result has no baseline or incremental figures (its solve's "baseline"
+// already had the purchases).
 func FixedPlanEvaluator(solve SolveFunc) EvaluateFunc {
 	return func(ctx context.Context, c *plans.Case, purchases []plans.PlanRow) (*plans.Result, error) {
 		return evaluateFixed(ctx, c, purchases, solve)
@@ -149,10 +151,9 @@ func evaluateFixed(ctx context.Context, c *plans.Case, rows []plans.PlanRow, sol
 	for _, p := range ps {
 		out.TotalCapex += p.capex
 	}
-	if res.BaselineNPV != nil {
-		inc := npv - *res.BaselineNPV
-		out.IncrementalNPV = &inc
-	}
+	// The solve's baseline had the purchases as existing capacity: it is
+	// no baseline of c, so nothing incremental is reported.
+	out.BaselineNPV, out.IncrementalNPV, out.BaselineCashflow, out.Shortfall = nil, nil, nil, nil
 	out.IRR, out.PaybackYear, out.ProfitabilityIndex = nil, nil, nil
 	out.Status = plans.StatusOptimal
 	return &out, nil
