@@ -312,18 +312,25 @@ func moreOrLess(inc float64) string {
 // budgetSentence says how the plan's capex sits against the budgets.
 func budgetSentence(c *plans.Case, r *plans.Result) string {
 	capped, tight := 0, 0
+	var over []string
 	for _, cf := range r.Cashflow {
 		if cf.Budget == nil {
 			continue
 		}
 		capped++
-		if cf.Capex >= *cf.Budget-zeroMoney && cf.Capex > 0 {
+		switch {
+		case cf.Capex > *cf.Budget+zeroMoney:
+			// Never in a plan the solver accepts; said plainly if it happens.
+			over = append(over, strconv.Itoa(cf.Year))
+		case cf.Capex >= *cf.Budget-zeroMoney && cf.Capex > 0:
 			tight++
 		}
 	}
 	cur := r.Currency
 	var s string
 	switch {
+	case len(over) > 0:
+		s = ", above the yearly budget in " + joinAnd(over)
 	case capped == 0:
 		s = ", with no yearly budget cap"
 	case tight == 0:
