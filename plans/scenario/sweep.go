@@ -6,7 +6,6 @@ import (
 	"fmt"
 	"math"
 	"sort"
-	"strconv"
 	"strings"
 	"sync"
 
@@ -427,6 +426,3 @@ func FitsBudget(c *plans.Case, capexByYear []float64) bool {
 	cap := c.Budget.Cumulative
 	return !(total > cap+budgetTolerance*math.Max(cap, 1))
 }
-
-// formatValue prints a factor value the way a user typed it.
-func formatValue(v float64) string { return strconv.FormatFloat(v, 'g', -1, 64) }
