@@ -233,6 +233,9 @@ func TestSolveDemoJSON(t *testing.T) {
 // with the JSON of the same run.
 func TestSolveCSV(t *testing.T) {
 	if testing.Short() {
+		t.Skip("solves the demo; skipped in -short (which CI runs under the race detector)")
+	}
+	if testing.Short() {
 		t.Skip("solves the demo to optimality; too slow under the race detector, the full suite runs it")
 	}
 	dir := filepath.Join(t.TempDir(), "csv")
@@ -289,9 +292,6 @@ func TestSolveCSV(t *testing.T) {
 		t.Errorf("cashflow.csv pv sums to %.2f, objective %.6f", sum, *r.Objective)
 	}
 	// Without --json the same command prints the report.
-	if testing.Short() {
-		return
-	}
 	out, _, code := runSolveCapture(t, &solveOptions{useDemo: true, quiet: true})
 	if code != exitOK || !strings.HasPrefix(out, "netstage plan for ") || !strings.Contains(out, "decision support") {
 		t.Errorf("exit %d, report:\n%s", code, out)
@@ -521,6 +521,9 @@ func TestExportDemo(t *testing.T) {
 // TestSolveProgress shows progress lines on stderr (forced: the test's
 // stderr is no terminal) and keeps stdout for results only.
 func TestSolveProgress(t *testing.T) {
+	if testing.Short() {
+		t.Skip("solves the demo for seconds; skipped in -short (which CI runs under the race detector)")
+	}
 	// A short time limit keeps the test quick; progress is reported from
 	// the first incumbent or interval on, whatever the outcome.
 	out, errOut, code := runSolveCapture(t, &solveOptions{useDemo: true, json: true, forceProgress: true, timeLimit: "3s"})
