@@ -100,8 +100,14 @@ func (s *search) processNode(nd *node, warm bool) (kids []*node, ok bool) {
 		_ = s.lps.SetBasis(s.padBasis(*nd.basis))
 	}
 	first := true
+	rowsAdded := false
 	for round := 0; round < maxNodeResolves; round++ {
 		limit := s.pruneLimit()
+		if rowsAdded {
+			// As at the root: no cutoff right after rows were added (see
+			// rootCuts).
+			limit, rowsAdded = inf, false
+		}
 		r := s.lpSolve(limit, 0)
 		s.nodeLPIters += r.Iterations
 		if first && !nd.solved {
@@ -147,6 +153,7 @@ func (s *search) processNode(nd *node, warm bool) (kids []*node, ok bool) {
 		}
 		frac := s.fractional(r.X)
 		if len(frac) > 0 && s.poolToLP(r.X) {
+			rowsAdded = true
 			continue // re-solve with the violated pool cuts
 		}
 		if len(frac) == 0 {
