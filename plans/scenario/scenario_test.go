@@ -4,6 +4,7 @@ import (
 	"bytes"
 	"context"
 	"encoding/json"
+	"errors"
 	"math"
 	"strings"
 	"testing"
@@ -562,5 +563,41 @@ func TestCompareInfeasibleVariant(t *testing.T) {
 	// A lower price brings the plan within the budget: break-even exists.
 	if north.BreakEvenDiscount == nil {
 		t.Errorf("north: no break-even discount (%s)", north.BreakEvenNote)
+	}
+}
+
+// TestScenarioSolveFailure: a solve that fails in one scenario is recorded
+// as an error in that scenario and the sweep goes on; a failing base solve
+// stops the sweep (every regret needs the base plan).
+func TestScenarioSolveFailure(t *testing.T) {
+	c := testCase()
+	g, err := NewGrid([]Factor{{Name: Tariff, Values: []float64{0.5, 1, 2}}})
+	if err != nil {
+		t.Fatal(err)
+	}
+	failAt := func(m float64) SolveFunc {
+		return func(ctx context.Context, cc *plans.Case) (*plans.Result, error) {
+			if near(cc.Demands[0].Tariff[0], m*c.Demands[0].Tariff[0]) {
+				return nil, errors.New("out of memory")
+			}
+			return fakeSolve(ctx, cc)
+		}
+	}
+	out, err := Run(context.Background(), c, g, Options{Solve: failAt(2), Evaluate: fakeEvaluate})
+	if err != nil {
+		t.Fatal(err)
+	}
+	rep, err := BuildReport(out)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if got := rep.Scenarios[2]; got.Status != StatusError || got.Error != "out of memory" || got.Objective != nil {
+		t.Errorf("failed scenario: got status %s error %q", got.Status, got.Error)
+	}
+	if got := rep.Scenarios[0]; got.Status != string(plans.StatusOptimal) || got.RegretStatus != RegretOK {
+		t.Errorf("other scenario: got status %s regret %s", got.Status, got.RegretStatus)
+	}
+	if _, err := Run(context.Background(), c, g, Options{Solve: failAt(1)}); err == nil || !strings.Contains(err.Error(), "base point") {
+		t.Errorf("failing base solve: got error %v, want one naming the base point", err)
 	}
 }
