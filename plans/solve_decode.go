@@ -4,7 +4,6 @@ import (
 	"context"
 	"math"
 
-	"netstage/lp"
 	"netstage/plans/finance"
 )
 
@@ -64,7 +63,7 @@ func (m *Model) decode(ctx context.Context, res *Result, xi []float64, base *bas
 	}
 
 	res.Links = m.linkRows(x, lr.firstDual, base)
-	res.Demands = m.demandRows(ctx, served)
+	res.Demands = m.demandRows(x, served, res.Cashflow)
 	return nil
 }
 
@@ -169,15 +168,19 @@ func utilisation(load, capacity float64) float64 {
 }
 
 // demandRows reports every demand in every year. Traffic left unserved is
-// put down to capacity when even the LP relaxation of the model maximising
-// served traffic (within unit limits, slots and budgets) cannot carry it,
-// and to no profit otherwise. Where demands compete for one link the split
-// of that maximum between them is one of several; the reason is then a
-// fair indication, not a proof.
-func (m *Model) demandRows(ctx context.Context, served [][]float64) []DemandYear {
+// put down to no profit when the plan could have carried more — its two
+// sites are joined by links each of which has spare capacity under its
+// ceiling or can still take another unit in service by that year (a unit
+// limit not reached, orders that serve in time, a candidate that can be
+// built in time, and a budget with room for one more unit in some order
+// year that serves in time) — and to capacity otherwise. It is a
+// per-demand test: where demands compete for spare room, it can call
+// traffic "no profit" that could only be carried at another demand's cost.
+// Cost O(demands·T·(links + options)).
+func (m *Model) demandRows(x []float64, served [][]float64, cash []CashflowRow) []DemandYear {
 	c := m.Case
-	var maxServed [][]float64
 	var rows []DemandYear
+	var room [][]bool // room[t][l]: link l could carry more in year t
 	for k, d := range c.Demands {
 		for t := 0; t < c.Horizon; t++ {
 			r := DemandYear{
@@ -189,12 +192,12 @@ func (m *Model) demandRows(ctx context.Context, served [][]float64) []DemandYear
 			if r.Unserved <= valueTol {
 				r.Unserved = 0
 			} else {
-				if maxServed == nil {
-					maxServed = m.maxServed(ctx)
+				if room == nil {
+					room = m.linkRoom(x, cash)
 				}
-				r.Reason = ReasonNoProfit
-				if maxServed == nil || maxServed[k][t] < r.Forecast-valueTol {
-					r.Reason = ReasonCapacity
+				r.Reason = ReasonCapacity
+				if connected(c, room[t], d.A, d.B) {
+					r.Reason = ReasonNoProfit
 				}
 			}
 			rows = append(rows, r)
@@ -203,23 +206,103 @@ func (m *Model) demandRows(ctx context.Context, served [][]float64) []DemandYear
 	return rows
 }
 
-// maxServed solves the LP relaxation with the objective "carry as much
-// traffic as possible" and returns served[k][t], or nil if it fails.
-func (m *Model) maxServed(ctx context.Context) [][]float64 {
-	relax := m.LP.Clone()
-	for j := range relax.Obj {
-		relax.Obj[j] = 0
-		relax.Integer[j] = false
-	}
-	relax.Constant = 0
-	for _, cols := range m.served {
-		for _, j := range cols {
-			relax.Obj[j] = -1
+// linkRoom returns room[t][l]: whether link l could carry more traffic in
+// year t, with spare capacity under its ceiling in both directions or
+// another unit that could be in service by t (see demandRows).
+func (m *Model) linkRoom(x []float64, cash []CashflowRow) [][]bool {
+	c := m.Case
+	load := arcLoads(m, x)
+	capy := m.capacityAfter(m.purchases(x))
+	built := make([]bool, len(c.Links))
+	for _, p := range m.purchases(x) {
+		if p.item < 0 {
+			built[p.link] = true
 		}
 	}
-	r, err := lp.Solve(ctx, relax, lp.Settings{})
-	if err != nil || r.Status != lp.Optimal {
-		return nil
+	budgetRoom := func(tau int, amount float64) bool {
+		if v, ok := c.Budget.YearCap(tau); ok && cash[tau].Capex+amount > v*(1+budgetTolerance) {
+			return false
+		}
+		total := 0.0
+		for _, r := range cash {
+			total += r.Capex
+		}
+		return total+amount <= c.Budget.Cumulative*(1+budgetTolerance)
 	}
-	return m.servedValues(r.X)
+	room := make([][]bool, c.Horizon)
+	for t := range room {
+		room[t] = make([]bool, len(c.Links))
+		for l, link := range c.Links {
+			spare := link.Ceiling*capy[l][t] - math.Max(load[2*l][t], load[2*l+1][t])
+			if spare > valueTol {
+				room[t][l] = true
+			}
+		}
+		for oi := range m.options {
+			o := &m.options[oi]
+			l := o.link
+			if room[t][l] {
+				continue
+			}
+			j := o.unitsInService(t)
+			if j < 0 || x[j] > m.LP.ColUpper[j]-0.5 {
+				continue
+			}
+			if c.Links[l].Candidate != nil && !built[l] {
+				// It would need a build too; count the build's cost.
+				b := m.builds[m.buildIndex(l)]
+				if b.builtBy(t) < 0 {
+					continue
+				}
+			}
+			it := &c.Items[o.item]
+			for tau, col := range o.col {
+				if col >= 0 && o.inService[tau] <= t && budgetRoom(tau, it.Capex(tau, c.Links[l].KM)) {
+					room[t][l] = true
+					break
+				}
+			}
+		}
+	}
+	return room
+}
+
+// buildIndex returns the index into m.builds of candidate link l.
+func (m *Model) buildIndex(l int) int {
+	for i, b := range m.builds {
+		if b.link == l {
+			return i
+		}
+	}
+	return -1
+}
+
+// connected reports whether sites a and b are joined by links with room.
+func connected(c *Case, room []bool, a, b int) bool {
+	seen := make([]bool, len(c.Sites))
+	stack := []int{a}
+	seen[a] = true
+	for len(stack) > 0 {
+		v := stack[len(stack)-1]
+		stack = stack[:len(stack)-1]
+		if v == b {
+			return true
+		}
+		for l, link := range c.Links {
+			if !room[l] {
+				continue
+			}
+			w := -1
+			if link.A == v {
+				w = link.B
+			} else if link.B == v {
+				w = link.A
+			}
+			if w >= 0 && !seen[w] {
+				seen[w] = true
+				stack = append(stack, w)
+			}
+		}
+	}
+	return false
 }

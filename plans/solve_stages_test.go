@@ -110,3 +110,41 @@ func abs(v float64) float64 {
 	}
 	return v
 }
+
+// TestUnservedReasons: traffic a module could carry but that does not pay
+// is "no-profit"; the same traffic with no budget for the module, or with
+// the unit limit reached, is "capacity" (DESIGN.md §2 meanings).
+func TestUnservedReasons(t *testing.T) {
+	for _, tc := range []struct {
+		name     string
+		budget   float64
+		maxUnits int
+		forecast float64
+		want     string
+	}{
+		{"module does not pay", 1e9, 1, 20, ReasonNoProfit},
+		{"no budget for it", 0, 1, 20, ReasonCapacity},
+		{"unit limit reached", 1e9, 1, 40, ReasonCapacity},
+	} {
+		t.Run(tc.name, func(t *testing.T) {
+			c := twoSite(2, tc.forecast, 10) // a module's gain 1200 a year against 10000
+			for i := range c.Budget.Yearly {
+				c.Budget.Yearly[i] = tc.budget
+			}
+			c.testItem(testItem{id: "M", vendor: "V", gbps: fpGbps, capex: fpCapex, life: fpLife, maxUnits: tc.maxUnits})
+			if tc.forecast > 20 {
+				c.Demands[0].Tariff = []float64{1000, 1000} // pays: the one unit is bought
+			}
+			res, err := Solve(context.Background(), c, SolveOptions{})
+			if err != nil {
+				t.Fatal(err)
+			}
+			checkInvariants(t, c, res)
+			for _, d := range res.Demands {
+				if d.Unserved <= 0 || d.Reason != tc.want {
+					t.Errorf("%d: unserved %.3f for %q, want some for %q", d.Year, d.Unserved, d.Reason, tc.want)
+				}
+			}
+		})
+	}
+}
