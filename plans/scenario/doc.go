@@ -8,8 +8,10 @@
 //
 //	growth         multiplier m on each demand's growth: forecast f₁·(1+m·g)^(t−1);
 //	               for an explicit forecast list, each year-on-year change is
-//	               multiplied by m. Committed traffic keeps its share of the
-//	               forecast.
+//	               multiplied by m. Committed traffic stays as contracted
+//	               (Gbps), capped by the new forecast; in a case with no
+//	               tariffs every demand is committed, so there the whole
+//	               forecast moves.
 //	tariff         multiplier on every tariff of every year.
 //	capex          multiplier on equipment prices (module capex per unit and
 //	               per km); volume-tier thresholds on spend move with it, so

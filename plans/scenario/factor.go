@@ -178,13 +178,11 @@ func scaleGrowth(c *plans.Case, m float64) error {
 				f[i] = f[i-1] * step
 			}
 		}
+		// Contracts are stated in Gbps: committed traffic stays as
+		// contracted, capped by the scenario's forecast.
 		committed := make([]float64, len(d.Committed))
 		for i, v := range d.Committed {
-			if i < len(old) && old[i] > 0 {
-				committed[i] = math.Min(v*f[i]/old[i], f[i])
-			} else {
-				committed[i] = math.Min(v, f[i])
-			}
+			committed[i] = math.Min(v, f[i])
 		}
 		d.Forecast, d.Committed = f, committed
 		demands[k] = d

@@ -137,10 +137,23 @@ func TestApplyFactors(t *testing.T) {
 				if !near(d.Forecast[i], want) {
 					t.Errorf("%s year %d: got forecast %g, want %g", d.ID, i, d.Forecast[i], want)
 				}
-				if !near(d.Committed[i]/d.Forecast[i], o.Committed[i]/o.Forecast[i]) {
-					t.Errorf("%s year %d: committed share changed", d.ID, i)
+				// contracts stay in Gbps, capped by the new forecast
+				if want := math.Min(o.Committed[i], d.Forecast[i]); d.Committed[i] != want {
+					t.Errorf("%s year %d: got committed %g, want %g", d.ID, i, d.Committed[i], want)
 				}
 			}
+		}
+	})
+	t.Run("growth turned to decline caps contracts", func(t *testing.T) {
+		cc, err := Apply(c, []Setting{{Growth, -2}})
+		if err != nil {
+			t.Fatal(err)
+		}
+		// a-b: g = 0.2 becomes −0.4; in year 3 the forecast 40·0.6² = 14.4
+		// is below the contracted 40·1.2²/2 = 28.8 Gbps
+		d := cc.Demands[0]
+		if !near(d.Forecast[2], 14.4) || d.Committed[2] != d.Forecast[2] {
+			t.Errorf("year 3: got forecast %g committed %g, want 14.4 and 14.4", d.Forecast[2], d.Committed[2])
 		}
 	})
 	t.Run("growth of an explicit list", func(t *testing.T) {
