@@ -12,7 +12,8 @@
 //	               (Gbps), capped by the new forecast; in a case with no
 //	               tariffs every demand is committed, so there the whole
 //	               forecast moves.
-//	tariff         multiplier on every tariff of every year.
+//	tariff         multiplier on every tariff of every year (0 leaves no
+//	               tariff: the case is then planned in cost mode).
 //	capex          multiplier on equipment prices (module capex per unit and
 //	               per km); volume-tier thresholds on spend move with it, so
 //	               the multiplier is a pure price level and a plan's capex
