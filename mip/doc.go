@@ -58,7 +58,8 @@
 // bound, gap, nodes and elapsed time.
 //
 // The search is deterministic: the same model, settings and seed give the
-// same path and the same answer. A model whose LP relaxation is unbounded is
+// same path and the same answer (a time limit, by nature, may stop it at a
+// different point). A model whose LP relaxation is unbounded is
 // reported unbounded when it has a feasible point (with rational data, one
 // feasible point and an unbounded relaxation imply an unbounded MIP:
 // Meyer, Math. Programming 7, 1974), infeasible otherwise.
