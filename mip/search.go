@@ -23,13 +23,13 @@ const (
 	plungeGapFraction = 0.5 // a plunge stops when the child's bound is this far into the gap
 	maxPlungeDepth    = 1000
 	maxDiveDepth      = 200
-	diveEvery         = 200   // nodes between two dives
-	repairEvery       = 10    // nodes between two roundings repaired by LP
-	maxTreeCuts       = 20    // pool cuts that may re-enter the LP in the tree
-	diveIterFactor    = 4     // a dive's LP iteration cap, in mean iterations per node
-	maxNodeResolves   = 20    // re-solves of one node after strong branching fixes a column
-	strongShare       = 0.5   // strong-branching iterations allowed per node LP iteration …
-	strongOffset      = 20000 // … plus this many (common practice: a half, plus an offset)
+	diveEvery         = 200  // nodes between two dives
+	repairEvery       = 10   // nodes between two roundings repaired by LP
+	maxTreeCuts       = 20   // pool cuts that may re-enter the LP in the tree
+	diveIterFactor    = 4    // a dive's LP iteration cap, in mean iterations per node
+	maxNodeResolves   = 20   // re-solves of one node after strong branching fixes a column
+	strongShare       = 0.5  // strong-branching iterations allowed per node LP iteration …
+	strongOffset      = 5000 // … plus this many (common practice: a half, plus an offset)
 )
 
 // run performs the whole search and returns the result.
