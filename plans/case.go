@@ -57,10 +57,22 @@ type Case struct {
 	// cannot carry (case currency; default 0).
 	SLAPenalty float64
 
-	// PricesRollForward lets quotes that expired before FirstYear be used
-	// anyway (their prices are rolled forward; load reports a warning instead
-	// of an error).
+	// PricesRollForward lets a quote be used in every year of the horizon
+	// whatever its valid_until date: its items stay orderable in every year
+	// at their eroded prices, and load reports a warning instead of an error
+	// (quote expired before FirstYear) or instead of excluding the years
+	// after its expiry. Without it an item is orderable only in the years
+	// that start on or before its quote's last valid day (Item.Orderable).
 	PricesRollForward bool
+
+	// VendorOnly, when not "", restricts the whole network to the items of
+	// the vendor with this id ([case] vendor = "ID").
+	VendorOnly string
+	// ClassVendor restricts the links of a class to the items of one vendor
+	// ([case.class_vendor], link class → vendor id). For a class named here
+	// it wins over VendorOnly; see VendorFor. Both are applied at load time
+	// by leaving other vendors' items out of Link.Items.
+	ClassVendor map[string]string
 
 	// Budget holds the capex caps.
 	Budget Budget
@@ -181,7 +193,8 @@ type Link struct {
 	Candidate *Candidate
 
 	// Items lists the indices into Case.Items of the catalog items that fit
-	// this link (their classes include Class), in Case.Items order.
+	// this link (their classes include Class) and that the case's vendor
+	// restriction allows (Case.VendorFor(Class)), in Case.Items order.
 	Items []int
 }
 
@@ -352,9 +365,16 @@ type Item struct {
 	// fee is fixed at its order-year price, OrderOpex[i] = Opex·PriceFactor[i];
 	// a module's opex is not eroded, OrderOpex[i] = Opex.
 	OrderOpex []float64
+	// Orderable[i] reports whether the item may be ordered in year index i:
+	// true when its vendor's quote has no valid_until date, when the year
+	// starts (1 January, orders are placed at the start of the year) on or
+	// before valid_until, or when Case.PricesRollForward is set. Reports use
+	// it to say why an order year is missing.
+	Orderable []bool
 	// InService[i] is the year index in which units ordered in year index i
-	// start to serve (Case.InService with LeadMonths); ≥ Horizon means such
-	// orders are not created.
+	// start to serve (Case.InService with LeadMonths), or Horizon when
+	// Orderable[i] is false. A value ≥ Horizon (lead time too long, or not
+	// orderable) means such orders are not created.
 	InService []int
 }
 
@@ -446,6 +466,16 @@ func (c *Case) LinkIndex(id string) int {
 		}
 	}
 	return -1
+}
+
+// VendorFor returns the id of the only vendor whose items may be used on
+// links of class, or "" when any vendor may: the class's entry in
+// ClassVendor if there is one (it wins over VendorOnly), else VendorOnly.
+func (c *Case) VendorFor(class string) string {
+	if v, ok := c.ClassVendor[class]; ok {
+		return v
+	}
+	return c.VendorOnly
 }
 
 // VendorIndex returns the index of the vendor with id, or −1.

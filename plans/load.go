@@ -119,6 +119,7 @@ func Decode(file string, data []byte, read ReadFunc) (*Case, []Warning, error) {
 		c.Catalogs = append(c.Catalogs, CatalogFile{Name: path.Base(filepath.ToSlash(name)), Path: name})
 		cats = append(cats, cat)
 	}
+	d.allCatalogs = len(cats) == len(d.catalogPaths)
 	if c.horizonOK() {
 		errs = append(errs, d.resolveCatalogs(c, cats)...)
 		d.checkNetwork(c)
@@ -146,6 +147,12 @@ type decoder struct {
 	demandAt []catalog.Position
 	classAt  map[string]catalog.Position // class_ceiling keys
 	itemAt   []filePos                   // of each Case.Items entry, in its catalog
+	// vendor restriction keys ([case] vendor, [case.class_vendor])
+	vendorAt      catalog.Position
+	classVendorAt map[string]catalog.Position
+	// allCatalogs is true when every catalog the case names was read and
+	// decoded, so that an unknown vendor id is really unknown.
+	allCatalogs bool
 }
 
 // filePos is a position in a named file.
@@ -155,7 +162,8 @@ type filePos struct {
 }
 
 func (d *decoder) decodeCase(root *catalog.Table) *Case {
-	c := &Case{Ceiling: DefaultCeiling, ReadyByMonth: DefaultReadyByMonth, ExchangeRates: map[string]float64{}, ClassCeiling: map[string]float64{}}
+	c := &Case{Ceiling: DefaultCeiling, ReadyByMonth: DefaultReadyByMonth, ExchangeRates: map[string]float64{}, ClassCeiling: map[string]float64{},
+		ClassVendor: map[string]string{}}
 	ct, ok := root.Sub("case")
 	if !ok && !root.Has("case") {
 		root.Errorf("case", catalog.ErrMissing, "a case file needs a [case] table")
@@ -330,6 +338,27 @@ func (d *decoder) caseTable(c *Case, t *catalog.Table) {
 		c.SLAPenalty = v
 	}
 	c.PricesRollForward, _ = t.Bool("prices_roll_forward")
+	if v, ok := t.String("vendor"); ok {
+		if v == "" {
+			t.Errorf("vendor", catalog.ErrRange, "must not be empty (leave the key out to allow every vendor)")
+		} else {
+			c.VendorOnly = v
+			d.vendorAt = t.Pos("vendor")
+		}
+	}
+	if cv, ok := t.Sub("class_vendor"); ok {
+		d.classVendorAt = map[string]catalog.Position{}
+		for _, k := range cv.Keys() {
+			if v, ok := cv.String(k); ok {
+				if v == "" {
+					cv.Errorf(k, catalog.ErrRange, "must not be empty (leave the class out to allow every vendor)")
+					continue
+				}
+				d.classVendorAt[k] = cv.Pos(k)
+				c.ClassVendor[k] = v
+			}
+		}
+	}
 	if t.Need("catalogs") {
 		paths, ok := t.Strings("catalogs")
 		if ok && len(paths) == 0 {

@@ -63,7 +63,7 @@ tariff_erosion = 0.2
 const baseCatalog = `[[vendors]]
 id = "v"
 currency = "EUR"
-valid_until = 2030-12-31
+valid_until = 2035-12-31
 
 [[items]]
 id = "m"
@@ -311,7 +311,7 @@ func faultyInputs() []faultyInput {
 		{"no exchange rate", [2]string{}, [2]string{`currency = "EUR"`, `currency = "USD"`}, "gives no exchange rate for it", catalog.ErrCurrency, K, "currency", 0},
 		{"no possible path", [2]string{"[[demands]]", "[[sites]]\nid = \"D\"\n\n[[demands]]\nfrom = \"A\"\nto = \"D\"\ngbps = 1\n\n[[demands]]"}, [2]string{}, "between A and D, not even through candidate links", catalog.ErrNoPath, C, "[[demands]]", 0},
 		{"item fits no link", [2]string{}, [2]string{`classes = ["metro"]`, `classes = ["core"]`}, `item "m" fits no link: no link has class "core"`, catalog.ErrUnused, K, "[[items]]", 0},
-		{"quote expired", [2]string{}, [2]string{"valid_until = 2030-12-31", "valid_until = 2029-06-30"}, "expired on 2029-06-30, before the first year 2030", catalog.ErrExpired, K, "valid_until", 0},
+		{"quote expired", [2]string{}, [2]string{"valid_until = 2035-12-31", "valid_until = 2029-06-30"}, "expired on 2029-06-30, before the first year 2030", catalog.ErrExpired, K, "valid_until", 0},
 		{"unknown vendor", [2]string{}, [2]string{`vendor = "v"`, `vendor = "w"`}, `vendor "w" is not defined in this catalog`, catalog.ErrReference, K, `vendor = "w"`, 0},
 		{"unknown class in class_ceiling", [2]string{"[budget]", "[case.class_ceiling]\nmetor = 0.8\n\n[budget]"}, [2]string{}, `no link has class "metor" (did you mean "metro"?)`, catalog.ErrReference, C, "metor", 0},
 		{"ceiling above 1", [2]string{"discount_rate = 0.1", "discount_rate = 0.1\nutilisation_ceiling = 1.5"}, [2]string{}, "utilisation ceiling must be a fraction in (0, 1]", catalog.ErrRange, C, "utilisation_ceiling", 0},
@@ -473,7 +473,7 @@ func TestWarnings(t *testing.T) {
 		want     string
 	}{
 		{"growth above 100 %", [2]string{"growth = 0.1", "growth = 1.5"}, [2]string{}, "growth of 150 % a year is very high"},
-		{"quote expired, rolled forward", [2]string{"discount_rate = 0.1", "discount_rate = 0.1\nprices_roll_forward = true"}, [2]string{"valid_until = 2030-12-31", "valid_until = 2029-06-30"}, "its prices are rolled forward"},
+		{"quote expired, rolled forward", [2]string{"discount_rate = 0.1", "discount_rate = 0.1\nprices_roll_forward = true"}, [2]string{"valid_until = 2035-12-31", "valid_until = 2029-06-30"}, "its prices are rolled forward"},
 		{"some demands pay no tariff", [2]string{"tariff_erosion = 0.2\n", "tariff_erosion = 0.2\n\n[[demands]]\nfrom = \"A\"\nto = \"B\"\ngbps = 1\n"}, [2]string{}, "1 of 2 demands pay no tariff while the others do (A-B)"},
 		// 4 Gbps A→C over 10 Gbps links at ceiling 0.3: 40 % > 30 %.
 		{"above the ceiling in year 1", [2]string{"discount_rate = 0.1", "discount_rate = 0.1\nutilisation_ceiling = 0.3"}, [2]string{}, `link "AB" is already at 40 % utilisation in 2030 on shortest-path routing, above its ceiling of 30 %`},

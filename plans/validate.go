@@ -48,6 +48,16 @@ func (d *decoder) resolveCatalogs(c *Case, cats []*catalog.Catalog) ErrorList {
 			d.src.ErrorAt(d.classAt[k], "case.class_ceiling", fmt.Errorf("%w: no link has class %q%s", catalog.ErrReference, k, hint))
 		}
 	}
+	// Class vendor restrictions must name classes that links use.
+	for _, k := range sortedKeys(d.classVendorAt) {
+		if !linkClasses[k] && classesKnown {
+			hint := ""
+			if s := catalog.Suggest(k, classList); s != "" {
+				hint = fmt.Sprintf(" (did you mean %q?)", s)
+			}
+			d.src.ErrorAt(d.classVendorAt[k], "case.class_vendor", fmt.Errorf("%w: no link has class %q%s", catalog.ErrReference, k, hint))
+		}
+	}
 	for i := range c.Links {
 		l := &c.Links[i]
 		l.Ceiling = c.Ceiling
@@ -82,6 +92,17 @@ func (d *decoder) resolveCatalogs(c *Case, cats []*catalog.Catalog) ErrorList {
 				} else {
 					at(cat.File, v.ValidAt, "vendors.valid_until", fmt.Errorf("%w: %s; renew the quote or set prices_roll_forward = true in [case]", catalog.ErrExpired, msg))
 				}
+			}
+			last := start.AddDate(c.Horizon-1, 0, 0) // 1 January of the last year
+			if !v.ValidUntil.IsZero() && !v.ValidUntil.Before(start) && v.ValidUntil.Before(last) {
+				msg := fmt.Sprintf("quote %q of vendor %q is valid until %s", v.Quote, v.ID, v.ValidUntil.Format(time.DateOnly))
+				from := v.ValidUntil.Year() + 1
+				if c.PricesRollForward {
+					msg += fmt.Sprintf(": orders from %d on use its prices rolled forward (prices_roll_forward = true)", from)
+				} else {
+					msg += fmt.Sprintf(": its items cannot be ordered from %d on; renew the quote or set prices_roll_forward = true in [case]", from)
+				}
+				d.src.Warns = append(d.src.Warns, Warning{File: cat.File, Line: v.ValidAt.Line, Col: v.ValidAt.Col, Key: "vendors.valid_until", Msg: msg})
 			}
 			vendorAt[v.ID] = len(c.Vendors)
 			c.Vendors = append(c.Vendors, Vendor{ID: v.ID, Name: v.Name, Quote: v.Quote, ValidUntil: v.ValidUntil,
@@ -127,11 +148,14 @@ func (d *decoder) resolveCatalogs(c *Case, cats []*catalog.Catalog) ErrorList {
 			return tiers[a].Threshold < tiers[b].Threshold
 		})
 	}
+	d.checkVendorRestriction(c, vendorAt)
 	for li := range c.Links {
 		l := &c.Links[li]
+		only := c.VendorFor(l.Class)
 		l.Items = nil
 		for ii := range c.Items {
-			if c.Items[ii].Fits(l.Class) {
+			it := &c.Items[ii]
+			if it.Fits(l.Class) && (only == "" || c.Vendors[it.Vendor].ID == only) {
 				l.Items = append(l.Items, ii)
 			}
 		}
@@ -139,8 +163,34 @@ func (d *decoder) resolveCatalogs(c *Case, cats []*catalog.Catalog) ErrorList {
 	return errs
 }
 
+// checkVendorRestriction records an error for each vendor id in [case]
+// vendor or [case.class_vendor] that no catalog defines. It says nothing
+// when a catalog could not be read or decoded: the vendor may be in it.
+func (d *decoder) checkVendorRestriction(c *Case, vendorAt map[string]int) {
+	if !d.allCatalogs {
+		return
+	}
+	known := sortedKeys(vendorAt)
+	check := func(p catalog.Position, key, id string) {
+		if _, ok := vendorAt[id]; ok {
+			return
+		}
+		hint := ""
+		if s := catalog.Suggest(id, known); s != "" {
+			hint = fmt.Sprintf(" (did you mean %q?)", s)
+		}
+		d.src.ErrorAt(p, key, fmt.Errorf("%w: vendor %q is in no catalog of the case%s", catalog.ErrReference, id, hint))
+	}
+	if c.VendorOnly != "" {
+		check(d.vendorAt, "case.vendor", c.VendorOnly)
+	}
+	for _, k := range sortedKeys(d.classVendorAt) {
+		check(d.classVendorAt[k], "case.class_vendor", c.ClassVendor[k])
+	}
+}
+
 // item converts one catalog item into the case and derives its per-year
-// prices and in-service years.
+// prices, the years it may be ordered in and its in-service years.
 func (d *decoder) item(c *Case, ci catalog.Item, vendor int) Item {
 	rate := c.Vendors[vendor].Rate
 	it := Item{
@@ -158,6 +208,8 @@ func (d *decoder) item(c *Case, ci catalog.Item, vendor int) Item {
 	it.KMCapex = make([]float64, T)
 	it.OrderOpex = make([]float64, T)
 	it.InService = make([]int, T)
+	it.Orderable = make([]bool, T)
+	validUntil := c.Vendors[vendor].ValidUntil
 	for i := range T {
 		f := math.Pow(1-ci.Erosion, float64(i))
 		it.PriceFactor[i] = f
@@ -167,7 +219,13 @@ func (d *decoder) item(c *Case, ci catalog.Item, vendor int) Item {
 		if it.Kind == Lease {
 			it.OrderOpex[i] = it.Opex * f
 		}
+		// Orders are placed on 1 January of their year (DESIGN.md §2).
+		yearStart := time.Date(c.Year(i), time.January, 1, 0, 0, 0, 0, time.UTC)
+		it.Orderable[i] = validUntil.IsZero() || c.PricesRollForward || !validUntil.Before(yearStart)
 		it.InService[i] = c.InService(i, it.LeadMonths)
+		if !it.Orderable[i] {
+			it.InService[i] = T // the model creates no order column
+		}
 	}
 	return it
 }
@@ -221,13 +279,21 @@ func (d *decoder) checkNetwork(c *Case) {
 	}
 }
 
-// warnings records the suspicious values of a checked case: link classes
-// that no catalog item fits, a mix of paying and non-paying demands, and
+// warnings records the suspicious values of a checked case: links that no
+// allowed catalog item fits, a mix of paying and non-paying demands, and
 // links already above their utilisation ceiling in the first year.
 func (d *decoder) warnings(c *Case) {
+	onLink := make([]bool, len(c.Items)) // item allowed on at least one link
 	for i, l := range c.Links {
+		for _, ii := range l.Items {
+			onLink[ii] = true
+		}
 		if len(l.Items) == 0 {
-			d.src.WarnAt(d.linkAt[i], "links.class", fmt.Sprintf("no catalog item fits link %q (class %q): it cannot be upgraded", l.ID, l.Class))
+			msg := fmt.Sprintf("no catalog item fits link %q (class %q): it cannot be upgraded", l.ID, l.Class)
+			if only := c.VendorFor(l.Class); only != "" {
+				msg = fmt.Sprintf("no item of vendor %q fits link %q (class %q), the only vendor the case allows there: it cannot be upgraded", only, l.ID, l.Class)
+			}
+			d.src.WarnAt(d.linkAt[i], "links.class", msg)
 		}
 		if l.Candidate != nil && len(l.Items) == 0 {
 			d.src.WarnAt(d.linkAt[i], "links.candidate", fmt.Sprintf("candidate link %q could never carry traffic: no item fits it", l.ID))
@@ -245,13 +311,18 @@ func (d *decoder) warnings(c *Case) {
 		warn := func(key, msg string) {
 			d.src.Warns = append(d.src.Warns, Warning{File: at.file, Line: at.pos.Line, Col: at.pos.Col, Key: key, Msg: msg})
 		}
-		if it.InService[0] >= c.Horizon {
+		if !onLink[ii] {
+			continue // left out by the vendor restriction: nothing to say
+		}
+		if c.InService(0, it.LeadMonths) >= c.Horizon {
 			warn("items.lead_months", fmt.Sprintf("item %q of vendor %q takes %d months: even ordered in %d it would not serve within the horizon",
 				it.ID, v.ID, it.LeadMonths, c.FirstYear))
 		}
 		room := false
 		for _, l := range c.Links {
-			room = room || it.Fits(l.Class) && (l.Slots == UnlimitedSlots || l.Slots >= it.SlotsPerUnit)
+			for _, li := range l.Items {
+				room = room || li == ii && (l.Slots == UnlimitedSlots || l.Slots >= it.SlotsPerUnit)
+			}
 		}
 		if !room {
 			warn("items.slots", fmt.Sprintf("item %q of vendor %q needs %d slots per unit, more than any link it fits has free",

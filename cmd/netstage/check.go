@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"io"
 	"math"
+	"slices"
 	"sort"
 	"strings"
 	"text/tabwriter"
@@ -99,6 +100,9 @@ func writeCaseSummary(w io.Writer, c *plans.Case, demo bool) {
 	fmt.Fprintf(tw, "ceiling\t%s, capacity ready by month %d\n", ceilingText(c), c.ReadyByMonth)
 	fmt.Fprintf(tw, "finance\tsalvage %s, tax rate %.2f %%, SLA penalty %s per Gbps-month\n",
 		c.Finance.Salvage, 100*c.Finance.TaxRate, money(c.SLAPenalty))
+	if r := vendorRestrictionText(c); r != "" {
+		fmt.Fprintf(tw, "vendors\t%s\n", r)
+	}
 	fmt.Fprintf(tw, "sites\t%d\n", len(c.Sites))
 	fmt.Fprintf(tw, "links\t%d (%d candidate), %s\n", len(c.Links), candidates, classCounts(c))
 	fmt.Fprintf(tw, "demands\t%d (%d with committed traffic)", len(c.Demands), committed)
@@ -162,6 +166,13 @@ func writeCaseSummary(w io.Writer, c *plans.Case, demo bool) {
 			valid := "no expiry date"
 			if !v.ValidUntil.IsZero() {
 				valid = "valid until " + v.ValidUntil.Format("2006-01-02")
+				if y := v.ValidUntil.Year(); y >= c.FirstYear && y < last {
+					if c.PricesRollForward {
+						valid += fmt.Sprintf(" (prices rolled forward from %d)", y+1)
+					} else {
+						valid += fmt.Sprintf(" (no orders from %d)", y+1)
+					}
+				}
 			}
 			rate := ""
 			if v.Currency != c.Currency {
@@ -170,13 +181,13 @@ func writeCaseSummary(w io.Writer, c *plans.Case, demo bool) {
 			fmt.Fprintf(w, "    vendor %s (%s), quote %s, %s, %s%s, %d tier(s)\n",
 				v.ID, v.Name, v.Quote, valid, v.Currency, rate, len(v.Tiers))
 			tw = tabwriter.NewWriter(w, 0, 0, 2, ' ', 0)
-			for _, it := range c.Items {
+			for ii, it := range c.Items {
 				if it.Vendor != vi {
 					continue
 				}
-				fits := 0
+				fits := 0 // links the item fits and the vendor restriction allows
 				for _, l := range c.Links {
-					if it.Fits(l.Class) {
+					if slices.Contains(l.Items, ii) {
 						fits++
 					}
 				}
@@ -190,6 +201,24 @@ func writeCaseSummary(w io.Writer, c *plans.Case, demo bool) {
 			tw.Flush()
 		}
 	}
+}
+
+// vendorRestrictionText describes the case's vendor restriction, or "" when
+// every vendor may be used everywhere.
+func vendorRestrictionText(c *plans.Case) string {
+	var parts []string
+	if c.VendorOnly != "" {
+		parts = append(parts, "only "+c.VendorOnly)
+	}
+	classes := make([]string, 0, len(c.ClassVendor))
+	for k := range c.ClassVendor {
+		classes = append(classes, k)
+	}
+	sort.Strings(classes)
+	for _, k := range classes {
+		parts = append(parts, fmt.Sprintf("%s links only %s", k, c.ClassVendor[k]))
+	}
+	return strings.Join(parts, ", ")
 }
 
 // ceilingText describes the utilisation ceilings in percent.
