@@ -329,6 +329,10 @@ func faultyInputs() []faultyInput {
 		{"negative committed", [2]string{"committed = 1", "committed = -1"}, [2]string{}, "committed traffic must be ≥ 0 Gbps", catalog.ErrRange, C, "committed", 0},
 		{"latitude out of range", [2]string{`id = "A"`, `id = "A"` + "\nlat = 95\nlon = 10"}, [2]string{}, "latitude must be within ±90 degrees", catalog.ErrRange, C, "lat", 0},
 		{"forecast and gbps", [2]string{"growth = 0.1", "growth = 0.1\nforecast = [1, 2, 3]"}, [2]string{}, "give either gbps (with growth) or a forecast list", catalog.ErrRange, C, "forecast", 0},
+		{"unknown vendor in [case] vendor", [2]string{"discount_rate = 0.1", "discount_rate = 0.1\nvendor = \"vv\""}, [2]string{}, `vendor "vv" is in no catalog of the case (did you mean "v"?)`, catalog.ErrReference, C, `vendor = "vv"`, 0},
+		{"unknown vendor in class_vendor", [2]string{"[budget]", "[case.class_vendor]\nmetro = \"vendor-x\"\n\n[budget]"}, [2]string{}, `vendor "vendor-x" is in no catalog of the case`, catalog.ErrReference, C, "metro = ", 0},
+		{"unknown class in class_vendor", [2]string{"[budget]", "[case.class_vendor]\nmetor = \"v\"\n\n[budget]"}, [2]string{}, `no link has class "metor" (did you mean "metro"?)`, catalog.ErrReference, C, "metor", 0},
+		{"empty vendor", [2]string{"discount_rate = 0.1", "discount_rate = 0.1\nvendor = \"\""}, [2]string{}, "must not be empty (leave the key out to allow every vendor)", catalog.ErrRange, C, "vendor = ", 0},
 		{"exchange rate not positive", [2]string{"[budget]", "[case.exchange_rates]\nUSD = 0\n\n[budget]"}, [2]string{}, "an exchange rate must be > 0", catalog.ErrRange, C, "USD", 0},
 	}
 }
