@@ -172,8 +172,8 @@ const htmlSource = `<!DOCTYPE html>
 {{range .Vendors}}<tr><td>{{.Vendor}}</td><td>{{.Catalog}}</td><td>{{.Quote}}</td><td>{{.ValidUntil}}</td><td>{{.Currency}}</td><td>{{.Tiers}}</td></tr>
 {{end}}</tbody></table></div>{{end}}
 {{if .Items}}<h3>Catalog items ({{.Currency}}, first-year list prices)</h3>
-<div class="wide"><table><thead><tr><th>Item</th><th>Vendor</th><th>Kind</th><th class="num">Capacity</th><th class="num">Capex per unit</th><th class="num">Capex per km</th><th class="num">Opex per year</th><th class="num">Lead time</th><th class="num">Book life</th><th class="num">Price erosion</th></tr></thead><tbody>
-{{range .Items}}<tr><td>{{.Item}}</td><td>{{.Vendor}}</td><td>{{.Kind}}</td><td class="num">{{.Gbps}}</td><td class="num">{{.Capex}}</td><td class="num">{{.PerKM}}</td><td class="num">{{.Opex}}</td><td class="num">{{.Lead}}</td><td class="num">{{.Life}}</td><td class="num">{{.Erosion}}</td></tr>
+<div class="wide"><table><thead><tr><th>Item</th><th>Vendor</th><th>Kind</th><th class="num">Capacity</th><th class="num">Capex per unit</th><th class="num">Capex per km</th><th class="num">Opex per year</th><th class="num">Lead time</th><th class="num">Book life</th><th class="num">Price erosion</th><th>Orderable in</th></tr></thead><tbody>
+{{range .Items}}<tr><td>{{.Item}}</td><td>{{.Vendor}}</td><td>{{.Kind}}</td><td class="num">{{.Gbps}}</td><td class="num">{{.Capex}}</td><td class="num">{{.PerKM}}</td><td class="num">{{.Opex}}</td><td class="num">{{.Lead}}</td><td class="num">{{.Life}}</td><td class="num">{{.Erosion}}</td><td>{{.Orderable}}</td></tr>
 {{end}}</tbody></table></div>{{end}}
 <h3>Solver</h3>
 <table><tbody>

@@ -188,9 +188,9 @@ func writeMarkdown(w io.Writer, v *view) error {
 	}
 	if len(v.Items) > 0 {
 		m.printf("### Catalog items (%s, first-year list prices)\n\n", v.Currency)
-		m.head("Item", "Vendor", "Kind", ">Capacity", ">Capex per unit", ">Capex per km", ">Opex per year", ">Lead time", ">Book life", ">Price erosion")
+		m.head("Item", "Vendor", "Kind", ">Capacity", ">Capex per unit", ">Capex per km", ">Opex per year", ">Lead time", ">Book life", ">Price erosion", "Orderable in")
 		for _, it := range v.Items {
-			m.row(it.Item, it.Vendor, it.Kind, it.Gbps, it.Capex, it.PerKM, it.Opex, it.Lead, it.Life, it.Erosion)
+			m.row(it.Item, it.Vendor, it.Kind, it.Gbps, it.Capex, it.PerKM, it.Opex, it.Lead, it.Life, it.Erosion, it.Orderable)
 		}
 		m.printf("\n")
 	}

@@ -658,3 +658,21 @@ func TestGridLinks(t *testing.T) {
 		t.Errorf("gridLinks third link %s, want %s", got[2], want)
 	}
 }
+
+func TestOrderableYears(t *testing.T) {
+	c := &plans.Case{FirstYear: 2027, Horizon: 5}
+	for _, tt := range []struct {
+		in   []bool
+		want string
+	}{
+		{nil, "all years"},
+		{[]bool{true, true, true, true, true}, "all years"},
+		{[]bool{true, true, false, false, false}, "2027–2028"},
+		{[]bool{true, false, false, false, false}, "2027"},
+		{[]bool{false, false, false, false, false}, "none (quote expired)"},
+	} {
+		if got := orderableYears(c, &plans.Item{Orderable: tt.in}); got != tt.want {
+			t.Errorf("orderableYears(%v) = %q, want %q", tt.in, got, tt.want)
+		}
+	}
+}

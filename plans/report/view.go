@@ -90,7 +90,7 @@ type vendorRow struct {
 }
 
 type itemRow struct {
-	Item, Vendor, Kind, Gbps, Capex, PerKM, Opex, Lead, Life, Erosion string
+	Item, Vendor, Kind, Gbps, Capex, PerKM, Opex, Lead, Life, Erosion, Orderable string
 }
 
 type infeasibleRow struct{ Kind, Name, Year, Amount, Message string }
@@ -866,7 +866,62 @@ func assumptions(c *plans.Case) []pair {
 	if c.PricesRollForward {
 		p = append(p, pair{"Expired quotes", "used anyway, prices rolled forward (check with the vendors)"})
 	}
+	if v := vendorRestriction(c); v != "" {
+		p = append(p, pair{"Vendor restriction", v})
+	}
 	return p
+}
+
+// vendorRestriction describes the case's vendor restriction, or "".
+func vendorRestriction(c *plans.Case) string {
+	var parts []string
+	if c.VendorOnly != "" {
+		parts = append(parts, "only items of "+c.VendorOnly)
+	}
+	classes := make([]string, 0, len(c.ClassVendor))
+	for k := range c.ClassVendor {
+		classes = append(classes, k)
+	}
+	sort.Strings(classes)
+	for _, k := range classes {
+		parts = append(parts, "links of class "+k+": only "+c.ClassVendor[k])
+	}
+	return strings.Join(parts, "; ")
+}
+
+// orderableYears says in which years an item may be ordered (its quote's
+// validity): "all years", "2027–2029", or "none".
+func orderableYears(c *plans.Case, it *plans.Item) string {
+	if len(it.Orderable) == 0 {
+		return "all years"
+	}
+	var runs []string
+	start := -1
+	all := true
+	for i := 0; i <= len(it.Orderable); i++ {
+		ok := i < len(it.Orderable) && it.Orderable[i]
+		if !ok && i < len(it.Orderable) {
+			all = false
+		}
+		switch {
+		case ok && start < 0:
+			start = i
+		case !ok && start >= 0:
+			if start == i-1 {
+				runs = append(runs, strconv.Itoa(c.Year(start)))
+			} else {
+				runs = append(runs, fmt.Sprintf("%d–%d", c.Year(start), c.Year(i-1)))
+			}
+			start = -1
+		}
+	}
+	switch {
+	case all:
+		return "all years"
+	case len(runs) == 0:
+		return "none (quote expired)"
+	}
+	return strings.Join(runs, ", ")
 }
 
 func clampMonth(m int) int {
@@ -1002,7 +1057,8 @@ func catalogs(c *plans.Case) ([]vendorRow, []itemRow) {
 		vs = append(vs, vendorRow{Vendor: name, Catalog: cat, Quote: quote, ValidUntil: valid, Currency: curr, Tiers: tier})
 	}
 	var is []itemRow
-	for _, it := range c.Items {
+	for i := range c.Items {
+		it := &c.Items[i]
 		vendor := ""
 		if it.Vendor >= 0 && it.Vendor < len(c.Vendors) {
 			vendor = c.Vendors[it.Vendor].ID
@@ -1015,6 +1071,7 @@ func catalogs(c *plans.Case) ([]vendorRow, []itemRow) {
 			Item: it.ID, Vendor: vendor, Kind: it.Kind.String(), Gbps: gbps(it.Gbps),
 			Capex: money(it.CapexPerUnit), PerKM: money(it.CapexPerKM), Opex: money(it.Opex),
 			Lead: fmt.Sprintf("%d months", it.LeadMonths), Life: life, Erosion: percent(it.Erosion) + " a year",
+			Orderable: orderableYears(c, it),
 		})
 	}
 	return vs, is
