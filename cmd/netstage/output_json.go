@@ -60,9 +60,9 @@ const jsonAmountDecimals = gbpsDecimals
 
 // jsonOptions tune the JSON output. The zero value prints everything.
 type jsonOptions struct {
-	// hideEffort prints 0 for solver.seconds, solver.nodes and
-	// solver.iterations: golden tests compare the plan, and the effort
-	// varies with the machine and with every solver change.
+	// hideEffort prints 0 for every solver figure (model size, nodes,
+	// iterations, seconds): golden tests compare the plan, and these vary
+	// with the machine and with every change of the model or solver.
 	hideEffort bool
 }
 
@@ -81,7 +81,7 @@ func writeJSON(w io.Writer, r *plans.Result, opts jsonOptions) error {
 	tree["notice"] = decisionSupportNote
 	if opts.hideEffort {
 		if s, ok := tree["solver"].(map[string]any); ok {
-			for _, k := range []string{"seconds", "nodes", "iterations"} {
+			for _, k := range []string{"seconds", "nodes", "iterations", "rows", "columns", "integers"} {
 				s[k] = json.Number("0")
 			}
 		}

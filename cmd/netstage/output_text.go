@@ -21,9 +21,9 @@ under the operator's own policies and local rules.`
 
 // textOptions tune the terminal report. The zero value prints everything.
 type textOptions struct {
-	// hideEffort prints no solve time, nodes or iterations: golden tests
-	// compare the plan, and the effort varies with the machine and with
-	// every solver change.
+	// hideEffort leaves out the solver line (model size, nodes,
+	// iterations, time): golden tests compare the plan, and these vary
+	// with the machine and with every change of the model or solver.
 	hideEffort bool
 }
 
@@ -165,12 +165,11 @@ func writeSummary(w io.Writer, r *plans.Result, opts textOptions) {
 	if r.Gap != nil {
 		row("gap", fixed(100**r.Gap, 4)+" %")
 	}
-	st := r.Stats
-	solver := fmt.Sprintf("%d rows, %d columns (%d integer)", st.Rows, st.Columns, st.Integers)
 	if !opts.hideEffort {
-		solver += fmt.Sprintf(", %d nodes, %d simplex iterations, %s s", st.Nodes, st.Iterations, fixed(st.Seconds, 2))
+		st := r.Stats
+		row("solver", fmt.Sprintf("%d rows, %d columns (%d integer), %d nodes, %d simplex iterations, %s s",
+			st.Rows, st.Columns, st.Integers, st.Nodes, st.Iterations, fixed(st.Seconds, 2)))
 	}
-	row("solver", solver)
 	tw.Flush()
 }
 

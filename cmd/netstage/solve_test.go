@@ -477,16 +477,13 @@ func TestExportDemo(t *testing.T) {
 	if err != nil {
 		t.Fatalf("the exported file does not read back: %v", err)
 	}
-	js, err := demoJSON()
+	res, err := demoSolved()
 	if err != nil {
 		t.Fatal(err)
 	}
-	var r struct {
-		Solver struct{ Rows, Columns, Integers int } `json:"solver"`
-	}
-	json.Unmarshal(js, &r)
-	if m.NumRows() != r.Solver.Rows || m.NumCols() != r.Solver.Columns {
-		t.Errorf("exported %d rows × %d columns, solve reports %d × %d", m.NumRows(), m.NumCols(), r.Solver.Rows, r.Solver.Columns)
+	st := res.Stats
+	if m.NumRows() != st.Rows || m.NumCols() != st.Columns {
+		t.Errorf("exported %d rows × %d columns, solve reports %d × %d", m.NumRows(), m.NumCols(), st.Rows, st.Columns)
 	}
 	// Every integer column has explicit finite bounds (DESIGN.md §4).
 	ints := 0
@@ -500,8 +497,8 @@ func TestExportDemo(t *testing.T) {
 			t.Errorf("integer column %d has bounds [%v, %v]", j, lo, hi)
 		}
 	}
-	if ints != r.Solver.Integers {
-		t.Errorf("%d integer columns exported, solve reports %d", ints, r.Solver.Integers)
+	if ints != st.Integers {
+		t.Errorf("%d integer columns exported, solve reports %d", ints, st.Integers)
 	}
 	entries, _ := os.ReadDir(dir)
 	if len(entries) != 1 {
