@@ -14,7 +14,6 @@ import (
 	"strconv"
 	"strings"
 	"text/tabwriter"
-	"time"
 	"unicode/utf8"
 
 	"github.com/spf13/cobra"
@@ -72,7 +71,7 @@ usage, 3 no variant has a plan.`,
 			if err := checkGap(opts.gap); err != nil {
 				return err
 			}
-			if _, err := scenarioTimeLimit(opts.timeLimit); err != nil {
+			if _, err := parseTimeLimit(opts.timeLimit); err != nil {
 				return err
 			}
 			if opts.jobs < 0 {
@@ -101,29 +100,9 @@ func checkGap(gap float64) error {
 	return nil
 }
 
-// scenarioTimeLimit reads a Go duration ("90s", "2m") or a bare number of
-// seconds; "" means no limit (DESIGN.md §4).
-func scenarioTimeLimit(s string) (time.Duration, error) {
-	s = strings.TrimSpace(s)
-	if s == "" {
-		return 0, nil
-	}
-	if secs, err := strconv.ParseFloat(s, 64); err == nil {
-		if secs < 0 || math.IsNaN(secs) || math.IsInf(secs, 0) || secs > math.MaxInt64/float64(time.Second) {
-			return 0, withCode(exitBadInput, fmt.Errorf("--time-limit must be ≥ 0 seconds, got %s", s))
-		}
-		return time.Duration(secs * float64(time.Second)), nil
-	}
-	d, err := time.ParseDuration(s)
-	if err != nil || d < 0 {
-		return 0, withCode(exitBadInput, fmt.Errorf("--time-limit %q is not a duration like 90s or 2m, nor a number of seconds", s))
-	}
-	return d, nil
-}
-
 // solveWith returns the solve function of compare and sweep for the flags.
 func solveWith(timeLimit string, gap float64) (scenario.SolveFunc, error) {
-	limit, err := scenarioTimeLimit(timeLimit)
+	limit, err := parseTimeLimit(timeLimit)
 	if err != nil {
 		return nil, err
 	}

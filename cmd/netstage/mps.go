@@ -7,7 +7,6 @@ import (
 	"fmt"
 	"math"
 	"strconv"
-	"strings"
 	"time"
 
 	"github.com/spf13/cobra"
@@ -67,10 +66,10 @@ file or usage, 3 infeasible or unbounded.`,
 		Args: cobra.ExactArgs(1),
 		RunE: func(cmd *cobra.Command, args []string) error {
 			opts.path = args[0]
-			if opts.gap < 0 || math.IsNaN(opts.gap) {
-				return withCode(exitBadInput, fmt.Errorf("--gap must be a fraction ≥ 0 (1e-4 = 0.01 %%), got %v", opts.gap))
+			if err := checkGap(opts.gap); err != nil {
+				return err
 			}
-			if _, err := mpsTimeLimit(opts.timeLimit); err != nil {
+			if _, err := parseTimeLimit(opts.timeLimit); err != nil {
 				return err
 			}
 			return runMPS(cmd.Context(), env, opts)
@@ -84,29 +83,9 @@ file or usage, 3 infeasible or unbounded.`,
 	return cmd
 }
 
-// mpsTimeLimit reads a Go duration ("90s") or a bare number of seconds;
-// "" means no limit (DESIGN.md §4).
-func mpsTimeLimit(s string) (time.Duration, error) {
-	s = strings.TrimSpace(s)
-	if s == "" {
-		return 0, nil
-	}
-	if secs, err := strconv.ParseFloat(s, 64); err == nil {
-		if secs < 0 || math.IsNaN(secs) || math.IsInf(secs, 0) || secs > math.MaxInt64/float64(time.Second) {
-			return 0, withCode(exitBadInput, fmt.Errorf("--time-limit must be ≥ 0 seconds, got %s", s))
-		}
-		return time.Duration(secs * float64(time.Second)), nil
-	}
-	d, err := time.ParseDuration(s)
-	if err != nil || d < 0 {
-		return 0, withCode(exitBadInput, fmt.Errorf("--time-limit %q is not a duration like 90s or 2m, nor a number of seconds", s))
-	}
-	return d, nil
-}
-
 func runMPS(ctx context.Context, env *cmdEnv, opts *mpsOptions) error {
 	start := time.Now()
-	limit, err := mpsTimeLimit(opts.timeLimit)
+	limit, err := parseTimeLimit(opts.timeLimit)
 	if err != nil {
 		return err
 	}

@@ -81,7 +81,7 @@ Exit codes: 0 done (scenarios without a plan are reported, not failures),
 			if err := checkGap(opts.gap); err != nil {
 				return err
 			}
-			if _, err := scenarioTimeLimit(opts.timeLimit); err != nil {
+			if _, err := parseTimeLimit(opts.timeLimit); err != nil {
 				return err
 			}
 			if opts.jobs < 0 {
