@@ -1091,7 +1091,6 @@ func solver(r *plans.Result) []pair {
 		{"Objective (NPV of the plan)", opt(r.Objective, m)},
 		{"Bound (no plan can beat)", opt(r.Bound, m)},
 		{"Gap", opt(r.Gap, gap)},
-		{"Model size", fmt.Sprintf("%s rows, %s columns, %s integer", count(r.Stats.Rows), count(r.Stats.Columns), count(r.Stats.Integers))},
 	}
 }
 
