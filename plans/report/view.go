@@ -555,6 +555,32 @@ func orderBy(c *plans.Case, p plans.PlanRow) string {
 	return monthNames[abs%12] + " " + strconv.Itoa(abs/12)
 }
 
+// quoteExpiry warns when the quote behind purchase p runs out before the
+// order year ends (the model places orders at the start of the year, so the
+// price holds only if the order goes out before the quote's last day).
+func quoteExpiry(c *plans.Case, p plans.PlanRow) string {
+	if p.Kind == plans.KindBuild {
+		return ""
+	}
+	for _, it := range c.Items {
+		if it.ID != p.Item || it.Vendor < 0 || it.Vendor >= len(c.Vendors) {
+			continue
+		}
+		vd := c.Vendors[it.Vendor]
+		if vd.ID != p.Vendor && vd.Name != p.Vendor {
+			continue
+		}
+		if vd.ValidUntil.IsZero() || vd.ValidUntil.Year() > p.Year {
+			return ""
+		}
+		if c.PricesRollForward && vd.ValidUntil.Year() < p.Year {
+			return "the quote expired on " + vd.ValidUntil.Format("2006-01-02") + ": its prices were rolled forward, so re-quote before ordering"
+		}
+		return "the quote is valid until " + vd.ValidUntil.Format("2006-01-02") + ": order by then or re-quote"
+	}
+	return ""
+}
+
 // leadMonths finds the lead time of the purchase p in the case.
 func leadMonths(c *plans.Case, p plans.PlanRow) (int, bool) {
 	if p.Kind == plans.KindBuild {
@@ -632,6 +658,9 @@ func whys(c *plans.Case, r *plans.Result) []why {
 		}
 		if p.Opex > 0 {
 			line += fmt.Sprintf(", then %s a year from %d", moneyCur(p.Opex, r.Currency), p.InService)
+		}
+		if v := quoteExpiry(c, p); v != "" {
+			line += "; " + v
 		}
 		out[i].Purchases = append(out[i].Purchases, line)
 	}
