@@ -87,6 +87,9 @@ func TestModulePaysBackOrNot(t *testing.T) {
 					}
 				}
 			}
+			if bestYear == 0 && (res.IRR != nil || res.PaybackYear != nil || res.ProfitabilityIndex != nil) {
+				t.Errorf("a plan that buys nothing has IRR %v, payback %v, PI %v; want all null", res.IRR, res.PaybackYear, res.ProfitabilityIndex)
+			}
 			if bestYear > 0 && (len(res.Plan) != 1 || res.Plan[0].Year != c.Year(bestYear-1) || res.Plan[0].Units != 1) {
 				t.Errorf("plan %+v, want one unit in %d", res.Plan, c.Year(bestYear-1))
 			}

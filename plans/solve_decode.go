@@ -45,7 +45,9 @@ func (m *Model) decode(ctx context.Context, res *Result, xi []float64, base *bas
 		}
 		inc := npv - *res.BaselineNPV
 		res.IncrementalNPV = &inc
-		if !res.CostMode {
+		// A plan that buys nothing is the baseline: its incremental flows are
+		// rounding noise, and an IRR or payback of noise would mislead.
+		if !res.CostMode && len(res.Plan) > 0 {
 			if r, ok := finance.IRR(incr); ok {
 				res.IRR = &r
 			}
