@@ -4,7 +4,6 @@ import (
 	"bytes"
 	"context"
 	"fmt"
-	"math"
 	"path/filepath"
 	"strings"
 
@@ -50,8 +49,8 @@ written to a temporary file and renamed into place.`,
 			if len(args) == 1 {
 				opts.casePath = args[0]
 			}
-			if opts.gap < 0 || math.IsNaN(opts.gap) {
-				return withCode(exitBadInput, fmt.Errorf("--gap must be a fraction ≥ 0 (1e-4 = 0.01 %%), got %v", opts.gap))
+			if err := checkGap(opts.gap); err != nil {
+				return err
 			}
 			if _, err := reportFormat(opts); err != nil {
 				return err

@@ -64,8 +64,8 @@ limits, 2 bad input or usage, 3 infeasible or unbounded case (explained).`,
 			if len(args) == 1 {
 				opts.casePath = args[0]
 			}
-			if opts.gap < 0 || math.IsNaN(opts.gap) {
-				return withCode(exitBadInput, fmt.Errorf("--gap must be a fraction ≥ 0 (1e-4 = 0.01 %%), got %v", opts.gap))
+			if err := checkGap(opts.gap); err != nil {
+				return err
 			}
 			if _, err := parseTimeLimit(opts.timeLimit); err != nil {
 				return err
