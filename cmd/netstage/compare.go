@@ -9,7 +9,6 @@ import (
 	"errors"
 	"fmt"
 	"io"
-	"math"
 	"runtime"
 	"strconv"
 	"strings"
@@ -68,10 +67,7 @@ usage, 3 no variant has a plan.`,
 			if len(args) == 1 {
 				opts.casePath = args[0]
 			}
-			if err := checkGap(opts.gap); err != nil {
-				return err
-			}
-			if _, err := parseTimeLimit(opts.timeLimit); err != nil {
+			if err := checkSearchFlags(opts.gap, opts.timeLimit); err != nil {
 				return err
 			}
 			if opts.jobs < 0 {
@@ -90,14 +86,6 @@ usage, 3 no variant has a plan.`,
 	f.IntVar(&opts.jobs, "jobs", 1, "run this many solves at once (0: one per CPU)")
 	f.BoolVar(&opts.quiet, "quiet", false, "print nothing on stderr but errors")
 	return cmd
-}
-
-// checkGap rejects a negative or NaN --gap.
-func checkGap(gap float64) error {
-	if gap < 0 || math.IsNaN(gap) {
-		return withCode(exitBadInput, fmt.Errorf("--gap must be a fraction ≥ 0 (1e-4 = 0.01 %%), got %v", gap))
-	}
-	return nil
 }
 
 // solveWith returns the solve function of compare and sweep for the flags.

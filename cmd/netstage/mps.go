@@ -66,10 +66,7 @@ file or usage, 3 infeasible or unbounded.`,
 		Args: cobra.ExactArgs(1),
 		RunE: func(cmd *cobra.Command, args []string) error {
 			opts.path = args[0]
-			if err := checkGap(opts.gap); err != nil {
-				return err
-			}
-			if _, err := parseTimeLimit(opts.timeLimit); err != nil {
+			if err := checkSearchFlags(opts.gap, opts.timeLimit); err != nil {
 				return err
 			}
 			return runMPS(cmd.Context(), env, opts)

@@ -49,7 +49,7 @@ written to a temporary file and renamed into place.`,
 			if len(args) == 1 {
 				opts.casePath = args[0]
 			}
-			if err := checkGap(opts.gap); err != nil {
+			if err := checkSearchFlags(opts.gap, opts.timeLimit); err != nil {
 				return err
 			}
 			if _, err := reportFormat(opts); err != nil {

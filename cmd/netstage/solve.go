@@ -7,10 +7,7 @@ import (
 	"context"
 	"fmt"
 	"io"
-	"math"
 	"os"
-	"strconv"
-	"strings"
 	"sync"
 	"time"
 
@@ -64,10 +61,7 @@ limits, 2 bad input or usage, 3 infeasible or unbounded case (explained).`,
 			if len(args) == 1 {
 				opts.casePath = args[0]
 			}
-			if err := checkGap(opts.gap); err != nil {
-				return err
-			}
-			if _, err := parseTimeLimit(opts.timeLimit); err != nil {
+			if err := checkSearchFlags(opts.gap, opts.timeLimit); err != nil {
 				return err
 			}
 			return runSolve(cmd.Context(), env, opts)
@@ -81,26 +75,6 @@ limits, 2 bad input or usage, 3 infeasible or unbounded case (explained).`,
 	f.Float64Var(&opts.gap, "gap", 0, "relative gap at which a plan counts as optimal (default 1e-4)")
 	f.BoolVar(&opts.quiet, "quiet", false, "print nothing on stderr but errors (no progress, no warnings)")
 	return cmd
-}
-
-// parseTimeLimit reads a Go duration ("90s", "2m") or a bare number of
-// seconds ("90", "1.5"); "" and "0" mean no limit (DESIGN.md §4).
-func parseTimeLimit(s string) (time.Duration, error) {
-	s = strings.TrimSpace(s)
-	if s == "" {
-		return 0, nil
-	}
-	if secs, err := strconv.ParseFloat(s, 64); err == nil {
-		if secs < 0 || math.IsNaN(secs) || math.IsInf(secs, 0) || secs > math.MaxInt64/float64(time.Second) {
-			return 0, withCode(exitBadInput, fmt.Errorf("--time-limit must be ≥ 0 seconds, got %s", s))
-		}
-		return time.Duration(secs * float64(time.Second)), nil
-	}
-	d, err := time.ParseDuration(s)
-	if err != nil || d < 0 {
-		return 0, withCode(exitBadInput, fmt.Errorf("--time-limit %q is not a duration like 90s or 2m, nor a number of seconds", s))
-	}
-	return d, nil
 }
 
 func runSolve(ctx context.Context, env *cmdEnv, opts *solveOptions) error {

@@ -78,10 +78,7 @@ Exit codes: 0 done (scenarios without a plan are reported, not failures),
 			if len(args) == 1 {
 				opts.casePath = args[0]
 			}
-			if err := checkGap(opts.gap); err != nil {
-				return err
-			}
-			if _, err := parseTimeLimit(opts.timeLimit); err != nil {
+			if err := checkSearchFlags(opts.gap, opts.timeLimit); err != nil {
 				return err
 			}
 			if opts.jobs < 0 {
