@@ -103,12 +103,25 @@ func TestCandidateLinkAndLease(t *testing.T) {
 				t.Errorf("NPV %.4f, want %.4f", *res.Objective, want)
 			}
 			built, leased := false, false
+			builtFrom := 1 << 30 // calendar year the candidate serves from
 			for _, p := range res.Plan {
 				built = built || p.Kind == KindBuild
 				leased = leased || p.Kind == KindLease
+				if p.Kind == KindBuild {
+					builtFrom = min(builtFrom, p.InService)
+				}
 			}
 			if built != wantBuild || leased != wantLease {
 				t.Errorf("plan %+v: built %v leased %v, want %v %v", res.Plan, built, leased, wantBuild, wantLease)
+			}
+			// Links by year: existing links are always built; a candidate
+			// only from the in-service year of its build.
+			for _, ly := range res.Links {
+				link := c.Links[c.LinkIndex(ly.Link)]
+				want := link.Candidate == nil || ly.Year >= builtFrom
+				if ly.Candidate != (link.Candidate != nil) || ly.Built != want {
+					t.Errorf("link %s %d: candidate %v built %v, want %v %v", ly.Link, ly.Year, ly.Candidate, ly.Built, link.Candidate != nil, want)
+				}
 			}
 		})
 	}

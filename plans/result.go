@@ -153,6 +153,12 @@ type LinkYear struct {
 	UtilisationBefore float64 `json:"utilisation_before"`
 	UtilisationAfter  float64 `json:"utilisation_after"`
 	Ceiling           float64 `json:"ceiling"`
+	// Candidate marks a candidate new link; Built says whether it is in
+	// service in this year (always true for an existing link). The value
+	// of one more Gbps on an unbuilt candidate is what capacity there
+	// would be worth, not a gain available without building it.
+	Candidate bool `json:"candidate"`
+	Built     bool `json:"built"`
 	// AtCeiling flags a link whose busiest direction after the plan is at
 	// the utilisation ceiling.
 	AtCeiling bool `json:"at_ceiling"`

@@ -128,7 +128,19 @@ func (m *Model) capacityAfter(ps []purchase) [][]float64 {
 // linkRows reports every link in every year before and after the plan.
 func (m *Model) linkRows(x, dual []float64, base *baselineSolution) []LinkYear {
 	c := m.Case
-	after := m.capacityAfter(m.purchases(x))
+	ps := m.purchases(x)
+	after := m.capacityAfter(ps)
+	// builtFrom[l] is the year index from which candidate link l is in
+	// service (Horizon when the plan does not build it).
+	builtFrom := make([]int, len(c.Links))
+	for l := range builtFrom {
+		builtFrom[l] = c.Horizon
+	}
+	for _, p := range ps {
+		if p.item < 0 {
+			builtFrom[p.link] = min(builtFrom[p.link], p.inService)
+		}
+	}
 	load := arcLoads(m, x)
 	var baseLoad [][]float64
 	if base != nil {
@@ -141,6 +153,7 @@ func (m *Model) linkRows(x, dual []float64, base *baselineSolution) []LinkYear {
 			r := LinkYear{
 				Link: link.ID, Year: c.Year(t), Ceiling: link.Ceiling,
 				CapacityBefore: link.BaseCapacity[t], CapacityAfter: after[l][t],
+				Candidate: link.Candidate != nil, Built: link.Candidate == nil || t >= builtFrom[l],
 			}
 			peak := math.Max(load[2*l][t], load[2*l+1][t])
 			r.UtilisationAfter = utilisation(peak, r.CapacityAfter)

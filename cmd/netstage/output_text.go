@@ -259,7 +259,10 @@ func writeLinksTable(w io.Writer, r *plans.Result) {
 		}
 		prev = l.Link
 		flag := ""
-		if l.AtCeiling {
+		switch {
+		case l.Candidate && !l.Built:
+			flag = "not built"
+		case l.AtCeiling:
 			flag = "at ceiling"
 		}
 		shadow := ""
