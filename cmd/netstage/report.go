@@ -9,7 +9,6 @@ import (
 
 	"github.com/spf13/cobra"
 
-	"netstage/plans"
 	"netstage/plans/report"
 )
 
@@ -89,25 +88,12 @@ func runReport(ctx context.Context, env *cmdEnv, opts *reportOptions) error {
 	if err != nil {
 		return err
 	}
-	limit, err := parseTimeLimit(opts.timeLimit)
+	c, warns, res, err := loadAndSolve(ctx, env, caseSolve{
+		casePath: opts.casePath, useDemo: opts.useDemo, timeLimit: opts.timeLimit,
+		gap: opts.gap, quiet: opts.quiet,
+	})
 	if err != nil {
 		return err
-	}
-	c, warns, err := loadCase(opts.casePath, opts.useDemo)
-	if err != nil {
-		return err
-	}
-	if !opts.quiet {
-		printWarnings(env.stderr, warns)
-	}
-	so := plans.SolveOptions{TimeLimit: limit, Gap: opts.gap}
-	if !opts.quiet && isTerminal(env.stderr) {
-		progress := &progressPrinter{w: env.stderr, costMode: c.CostMode()}
-		so.Progress = progress.update
-	}
-	res, err := plans.Solve(ctx, c, so)
-	if err != nil {
-		return withCode(exitFailure, err)
 	}
 	if !opts.quiet {
 		for _, w := range res.Warnings {

@@ -77,27 +77,49 @@ limits, 2 bad input or usage, 3 infeasible or unbounded case (explained).`,
 	return cmd
 }
 
-func runSolve(ctx context.Context, env *cmdEnv, opts *solveOptions) error {
-	limit, err := parseTimeLimit(opts.timeLimit)
+// caseSolve says which case to solve and how; solve and report share it.
+type caseSolve struct {
+	casePath      string
+	useDemo       bool
+	timeLimit     string
+	gap           float64
+	quiet         bool // no warnings, no progress on stderr
+	forceProgress bool // progress even when stderr is not a terminal (tests)
+}
+
+// loadAndSolve loads the case, prints its load warnings and solves it, with
+// progress on stderr when it is a terminal. Errors carry their exit codes.
+func loadAndSolve(ctx context.Context, env *cmdEnv, cs caseSolve) (*plans.Case, []plans.Warning, *plans.Result, error) {
+	limit, err := parseTimeLimit(cs.timeLimit)
 	if err != nil {
-		return err
+		return nil, nil, nil, err
 	}
-	c, warns, err := loadCase(opts.casePath, opts.useDemo)
+	c, warns, err := loadCase(cs.casePath, cs.useDemo)
 	if err != nil {
-		return err
+		return nil, nil, nil, err
 	}
-	if !opts.quiet {
+	if !cs.quiet {
 		printWarnings(env.stderr, warns)
 	}
-	so := plans.SolveOptions{TimeLimit: limit, Gap: opts.gap}
-	var progress *progressPrinter
-	if !opts.quiet && (opts.forceProgress || isTerminal(env.stderr)) {
-		progress = &progressPrinter{w: env.stderr, costMode: c.CostMode()}
+	so := plans.SolveOptions{TimeLimit: limit, Gap: cs.gap}
+	if !cs.quiet && (cs.forceProgress || isTerminal(env.stderr)) {
+		progress := &progressPrinter{w: env.stderr, costMode: c.CostMode()}
 		so.Progress = progress.update
 	}
 	res, err := plans.Solve(ctx, c, so)
 	if err != nil {
-		return withCode(exitFailure, err)
+		return nil, nil, nil, withCode(exitFailure, err)
+	}
+	return c, warns, res, nil
+}
+
+func runSolve(ctx context.Context, env *cmdEnv, opts *solveOptions) error {
+	_, _, res, err := loadAndSolve(ctx, env, caseSolve{
+		casePath: opts.casePath, useDemo: opts.useDemo, timeLimit: opts.timeLimit,
+		gap: opts.gap, quiet: opts.quiet, forceProgress: opts.forceProgress,
+	})
+	if err != nil {
+		return err
 	}
 	// The solve's own warnings are part of the result: the report and the
 	// JSON carry them, so they are not repeated on stderr.
