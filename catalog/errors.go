@@ -43,18 +43,8 @@ type Error struct {
 // snippet on its own lines for syntax errors.
 func (e *Error) Error() string {
 	var b strings.Builder
-	b.WriteString(e.File)
-	if e.Line > 0 {
-		fmt.Fprintf(&b, ":%d", e.Line)
-		if e.Col > 0 {
-			fmt.Fprintf(&b, ":%d", e.Col)
-		}
-	}
-	b.WriteString(": ")
-	if e.Key != "" {
-		b.WriteString(e.Key)
-		b.WriteString(": ")
-	}
+	writeLocation(&b, e.File, e.Line, e.Col)
+	writeKey(&b, e.Key)
 	b.WriteString(e.Err.Error())
 	if e.Snippet != "" {
 		b.WriteString("\n")
@@ -129,19 +119,9 @@ type Warning struct {
 func (w Warning) String() string {
 	var b strings.Builder
 	if w.File != "" {
-		b.WriteString(w.File)
-		if w.Line > 0 {
-			fmt.Fprintf(&b, ":%d", w.Line)
-			if w.Col > 0 {
-				fmt.Fprintf(&b, ":%d", w.Col)
-			}
-		}
-		b.WriteString(": ")
+		writeLocation(&b, w.File, w.Line, w.Col)
 	}
-	if w.Key != "" {
-		b.WriteString(w.Key)
-		b.WriteString(": ")
-	}
+	writeKey(&b, w.Key)
 	b.WriteString(w.Msg)
 	return b.String()
 }
@@ -161,4 +141,24 @@ func SortWarnings(ws []Warning) {
 		}
 		return a.Msg < b.Msg
 	})
+}
+
+// writeLocation writes "file:line:col: ", leaving out a line or column of 0.
+func writeLocation(b *strings.Builder, file string, line, col int) {
+	b.WriteString(file)
+	if line > 0 {
+		fmt.Fprintf(b, ":%d", line)
+		if col > 0 {
+			fmt.Fprintf(b, ":%d", col)
+		}
+	}
+	b.WriteString(": ")
+}
+
+// writeKey writes "key: " when key is not empty.
+func writeKey(b *strings.Builder, key string) {
+	if key != "" {
+		b.WriteString(key)
+		b.WriteString(": ")
+	}
 }
