@@ -74,6 +74,12 @@ type Case struct {
 	// by leaving other vendors' items out of Link.Items.
 	ClassVendor map[string]string
 
+	// Tornado lists the factors of [report.tornado] (factor name → [low,
+	// high]), sorted by name: `report` solves the case with each factor at
+	// its low and at its high value, one at a time, and charts the swing of
+	// the NPV. Empty when the case asks for no tornado chart.
+	Tornado []Sensitivity
+
 	// Budget holds the capex caps.
 	Budget Budget
 	// Finance holds salvage and tax policy.

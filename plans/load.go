@@ -7,6 +7,7 @@ import (
 	"os"
 	"path"
 	"path/filepath"
+	"strings"
 
 	"netstage/catalog"
 	"netstage/plans/demo"
@@ -173,6 +174,7 @@ func (d *decoder) decodeCase(root *catalog.Table) *Case {
 	}
 	budget, _ := root.Sub("budget")
 	finance, _ := root.Sub("finance")
+	report, _ := root.Sub("report")
 	sites, _ := root.Array("sites")
 	links, _ := root.Array("links")
 	demands, _ := root.Array("demands")
@@ -188,6 +190,9 @@ func (d *decoder) decodeCase(root *catalog.Table) *Case {
 	}
 	if finance != nil {
 		d.finance(c, finance)
+	}
+	if report != nil {
+		c.Tornado = reportTable(report)
 	}
 	if len(sites) == 0 {
 		root.Errorf("sites", catalog.ErrMissing, "a case needs at least two [[sites]]")
@@ -432,6 +437,53 @@ func (d *decoder) finance(c *Case, t *catalog.Table) {
 		c.Finance.TaxRate = v
 	}
 	t.Done()
+}
+
+// reportTable reads [report]: tornado = { factor = [low, high], ... }.
+func reportTable(t *catalog.Table) []Sensitivity {
+	var out []Sensitivity
+	if tt, ok := t.Sub("tornado"); ok {
+		for _, name := range tt.Keys() {
+			if !IsFactor(name) {
+				hint := ""
+				if s := catalog.Suggest(name, factorNames); s != "" {
+					hint = fmt.Sprintf(" (did you mean %q?)", s)
+				}
+				tt.Errorf(name, catalog.ErrReference, "%q is not a factor%s; known: %s", name, hint, strings.Join(factorNames, ", "))
+				continue
+			}
+			v, ok := tt.Floats(name)
+			if !ok {
+				continue
+			}
+			if len(v) != 2 || v[0] >= v[1] {
+				tt.Errorf(name, catalog.ErrRange, "want [low, high] with low < high, got %s", formatList(v))
+				continue
+			}
+			bad := false
+			for _, x := range v {
+				if err := CheckFactorValue(name, x); err != nil {
+					tt.Errorf(name, catalog.ErrRange, "%v", err)
+					bad = true
+					break
+				}
+			}
+			if !bad {
+				out = append(out, Sensitivity{Name: name, Low: v[0], High: v[1]})
+			}
+		}
+		tt.Done()
+	}
+	t.Done()
+	return out
+}
+
+func formatList(v []float64) string {
+	parts := make([]string, len(v))
+	for i, x := range v {
+		parts[i] = fmt.Sprint(x)
+	}
+	return "[" + strings.Join(parts, ", ") + "]"
 }
 
 func (d *decoder) site(t *catalog.Table) Site {

@@ -6,6 +6,7 @@ import (
 	"io/fs"
 	"math"
 	"os"
+	"slices"
 	"strings"
 	"testing"
 
@@ -331,6 +332,12 @@ func faultyInputs() []faultyInput {
 		{"forecast and gbps", [2]string{"growth = 0.1", "growth = 0.1\nforecast = [1, 2, 3]"}, [2]string{}, "give either gbps (with growth) or a forecast list", catalog.ErrRange, C, "forecast", 0},
 		{"unknown vendor in [case] vendor", [2]string{"discount_rate = 0.1", "discount_rate = 0.1\nvendor = \"vv\""}, [2]string{}, `vendor "vv" is in no catalog of the case (did you mean "v"?)`, catalog.ErrReference, C, `vendor = "vv"`, 0},
 		{"unknown vendor in class_vendor", [2]string{"[budget]", "[case.class_vendor]\nmetro = \"vendor-x\"\n\n[budget]"}, [2]string{}, `vendor "vendor-x" is in no catalog of the case`, catalog.ErrReference, C, "metro = ", 0},
+		{"unknown tornado factor", [2]string{"[budget]", "[report.tornado]\ntarif = [0.9, 1.1]\n\n[budget]"}, [2]string{}, `"tarif" is not a factor (did you mean "tariff"?)`, catalog.ErrReference, C, "tarif = ", 0},
+		{"tornado low above high", [2]string{"[budget]", "[report.tornado]\ncapex = [1.2, 0.9]\n\n[budget]"}, [2]string{}, `want [low, high] with low < high, got [1.2, 0.9]`, catalog.ErrRange, C, "capex = [1.2", 0},
+		{"tornado three values", [2]string{"[budget]", "[report.tornado]\ngrowth = [0.8, 1, 1.2]\n\n[budget]"}, [2]string{}, `got [0.8, 1, 1.2]`, catalog.ErrRange, C, "growth = [0.8", 0},
+		{"tornado discount rate out of range", [2]string{"[budget]", "[report.tornado]\ndiscount_rate = [0.05, 1.5]\n\n[budget]"}, [2]string{}, `discount_rate 1.5: must be a fraction`, catalog.ErrRange, C, "discount_rate = [0.05", 0},
+		{"tornado negative tariff", [2]string{"[budget]", "[report.tornado]\ntariff = [-0.1, 1.1]\n\n[budget]"}, [2]string{}, `tariff multiplier -0.1: must be ≥ 0`, catalog.ErrRange, C, "tariff = [-0.1", 0},
+		{"unknown key in report", [2]string{"[budget]", "[report]\ntornadoes = 1\n\n[budget]"}, [2]string{}, `"tornadoes" (did you mean "tornado"?)`, catalog.ErrUnknownKey, C, "tornadoes", 0},
 		{"unknown class in class_vendor", [2]string{"[budget]", "[case.class_vendor]\nmetor = \"v\"\n\n[budget]"}, [2]string{}, `no link has class "metor" (did you mean "metro"?)`, catalog.ErrReference, C, "metor", 0},
 		{"empty vendor", [2]string{"discount_rate = 0.1", "discount_rate = 0.1\nvendor = \"\""}, [2]string{}, "must not be empty (leave the key out to allow every vendor)", catalog.ErrRange, C, "vendor = ", 0},
 		{"exchange rate not positive", [2]string{"[budget]", "[case.exchange_rates]\nUSD = 0\n\n[budget]"}, [2]string{}, "an exchange rate must be > 0", catalog.ErrRange, C, "USD", 0},
@@ -675,5 +682,26 @@ func TestReadmeExample(t *testing.T) {
 		if math.Abs(c.Demands[0].Forecast[i]-w) > 1e-9 {
 			t.Errorf("forecast[%d]: got %v, want %v", i, c.Demands[0].Forecast[i], w)
 		}
+	}
+}
+
+// TestTornadoKey checks that [report.tornado] is read into Case.Tornado,
+// sorted by factor name, and that a case without it asks for no chart.
+func TestTornadoKey(t *testing.T) {
+	cats := map[string]string{"cat.toml": baseCatalog}
+	c, _, err := decodeTexts(baseCase, cats)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(c.Tornado) != 0 {
+		t.Fatalf("no [report] table: Tornado = %v, want empty", c.Tornado)
+	}
+	text := strings.Replace(baseCase, "[budget]", "[report.tornado]\ntariff = [0.9, 1.1]\ngrowth = [0.5, 1.5]\n\n[budget]", 1)
+	if c, _, err = decodeTexts(text, cats); err != nil {
+		t.Fatal(err)
+	}
+	want := []Sensitivity{{FactorGrowth, 0.5, 1.5}, {FactorTariff, 0.9, 1.1}}
+	if !slices.Equal(c.Tornado, want) {
+		t.Fatalf("Tornado = %v, want %v", c.Tornado, want)
 	}
 }

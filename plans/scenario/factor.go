@@ -12,18 +12,18 @@ import (
 
 // Names of the factors a sweep can vary.
 const (
-	Growth       = "growth"
-	Tariff       = "tariff"
-	Capex        = "capex"
-	DiscountRate = "discount_rate"
-	Budget       = "budget"
+	Growth       = plans.FactorGrowth
+	Tariff       = plans.FactorTariff
+	Capex        = plans.FactorCapex
+	DiscountRate = plans.FactorDiscountRate
+	Budget       = plans.FactorBudget
 )
 
 // factorNames lists the known factors in the order help texts show them.
-var factorNames = []string{Growth, Tariff, Capex, DiscountRate, Budget}
+var factorNames = plans.FactorNames()
 
 // FactorNames returns the names Apply understands.
-func FactorNames() []string { return append([]string(nil), factorNames...) }
+func FactorNames() []string { return plans.FactorNames() }
 
 // ErrUnknownFactor is wrapped by errors about a factor name Apply does not know.
 var ErrUnknownFactor = errors.New("unknown factor")
@@ -59,28 +59,12 @@ func ParseVary(s string) (Factor, error) {
 	return f, nil
 }
 
-func knownFactor(name string) bool {
-	for _, n := range factorNames {
-		if n == name {
-			return true
-		}
-	}
-	return false
-}
+func knownFactor(name string) bool { return plans.IsFactor(name) }
 
-// checkValue rejects values that make no case: negative prices, tariffs or
-// budgets, and discount rates outside [0, 1).
+// checkValue rejects values that make no case (plans.CheckFactorValue).
 func checkValue(name string, v float64) error {
-	switch name {
-	case Tariff, Capex, Budget:
-		if v < 0 {
-			return fmt.Errorf("scenario: %s multiplier %g: must be ≥ 0", name, v)
-		}
-	case DiscountRate:
-		// the range the case file allows (plans: discount_rate)
-		if v < 0 || v >= 1 {
-			return fmt.Errorf("scenario: discount_rate %g: must be a fraction ≥ 0 and < 1 (0.08 = 8 %%)", v)
-		}
+	if err := plans.CheckFactorValue(name, v); err != nil {
+		return fmt.Errorf("scenario: %w", err)
 	}
 	return nil
 }
