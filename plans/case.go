@@ -73,6 +73,13 @@ type Case struct {
 	// it wins over VendorOnly; see VendorFor. Both are applied at load time
 	// by leaving other vendors' items out of Link.Items.
 	ClassVendor map[string]string
+	// OneVendor lets the optimiser choose the vendor ([case] one_vendor):
+	// OneVendorPerClass allows the links of each class the items of one
+	// vendor, the one that gives the best plan; OneVendorNetwork allows
+	// one vendor for the whole network. Classes named in ClassVendor keep
+	// their vendor and are left out of the choice; with VendorOnly set the
+	// choice is already made. "" leaves every allowed vendor open.
+	OneVendor string
 
 	// Tornado lists the factors of [report.tornado] (factor name → [low,
 	// high]), sorted by name: `report` solves the case with each factor at
@@ -482,6 +489,27 @@ func (c *Case) VendorFor(class string) string {
 		return v
 	}
 	return c.VendorOnly
+}
+
+// Values of Case.OneVendor.
+const (
+	OneVendorPerClass = "per_class"
+	OneVendorNetwork  = "network"
+)
+
+// VendorChoiceGroup returns the name of the group of links that must share
+// one vendor chosen by the optimiser to which links of class belong: the
+// class itself under OneVendorPerClass, "" (the whole network) under
+// OneVendorNetwork. ok is false when no choice applies to the class: no
+// OneVendor policy, or a vendor already named for it.
+func (c *Case) VendorChoiceGroup(class string) (group string, ok bool) {
+	if c.OneVendor == "" || c.VendorFor(class) != "" {
+		return "", false
+	}
+	if c.OneVendor == OneVendorPerClass {
+		return class, true
+	}
+	return "", true
 }
 
 // VendorIndex returns the index of the vendor with id, or −1.

@@ -151,6 +151,7 @@ type decoder struct {
 	// vendor restriction keys ([case] vendor, [case.class_vendor])
 	vendorAt      catalog.Position
 	classVendorAt map[string]catalog.Position
+	oneVendorAt   catalog.Position
 	// allCatalogs is true when every catalog the case names was read and
 	// decoded, so that an unknown vendor id is really unknown.
 	allCatalogs bool
@@ -349,6 +350,16 @@ func (d *decoder) caseTable(c *Case, t *catalog.Table) {
 		} else {
 			c.VendorOnly = v
 			d.vendorAt = t.Pos("vendor")
+		}
+	}
+	if v, ok := t.String("one_vendor"); ok {
+		switch v {
+		case OneVendorPerClass, OneVendorNetwork:
+			c.OneVendor = v
+			d.oneVendorAt = t.Pos("one_vendor")
+		default:
+			t.Errorf("one_vendor", catalog.ErrRange, "want %q (one vendor for each link class) or %q (one for the whole network), got %q",
+				OneVendorPerClass, OneVendorNetwork, v)
 		}
 	}
 	if cv, ok := t.Sub("class_vendor"); ok {

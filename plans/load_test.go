@@ -332,6 +332,7 @@ func faultyInputs() []faultyInput {
 		{"forecast and gbps", [2]string{"growth = 0.1", "growth = 0.1\nforecast = [1, 2, 3]"}, [2]string{}, "give either gbps (with growth) or a forecast list", catalog.ErrRange, C, "forecast", 0},
 		{"unknown vendor in [case] vendor", [2]string{"discount_rate = 0.1", "discount_rate = 0.1\nvendor = \"vv\""}, [2]string{}, `vendor "vv" is in no catalog of the case (did you mean "v"?)`, catalog.ErrReference, C, `vendor = "vv"`, 0},
 		{"unknown vendor in class_vendor", [2]string{"[budget]", "[case.class_vendor]\nmetro = \"vendor-x\"\n\n[budget]"}, [2]string{}, `vendor "vendor-x" is in no catalog of the case`, catalog.ErrReference, C, "metro = ", 0},
+		{"one vendor of unknown scope", [2]string{"discount_rate = 0.1", "discount_rate = 0.1\none_vendor = \"site\""}, [2]string{}, `want "per_class" (one vendor for each link class) or "network" (one for the whole network), got "site"`, catalog.ErrRange, C, "one_vendor", 0},
 		{"unknown tornado factor", [2]string{"[budget]", "[report.tornado]\ntarif = [0.9, 1.1]\n\n[budget]"}, [2]string{}, `"tarif" is not a factor (did you mean "tariff"?)`, catalog.ErrReference, C, "tarif = ", 0},
 		{"tornado low above high", [2]string{"[budget]", "[report.tornado]\ncapex = [1.2, 0.9]\n\n[budget]"}, [2]string{}, `want [low, high] with low < high, got [1.2, 0.9]`, catalog.ErrRange, C, "capex = [1.2", 0},
 		{"tornado three values", [2]string{"[budget]", "[report.tornado]\ngrowth = [0.8, 1, 1.2]\n\n[budget]"}, [2]string{}, `got [0.8, 1, 1.2]`, catalog.ErrRange, C, "growth = [0.8", 0},
@@ -491,6 +492,9 @@ func TestWarnings(t *testing.T) {
 		{"candidate never in service", [2]string{"km = 20\ncapacity_gbps = 10", "km = 20\ncandidate = true\nbuild_cost = 1\nbook_life = 10\nlead_months = 40"}, [2]string{}, `candidate link "BC" takes 40 months: even built in 2030 it would not serve within the horizon`},
 		{"item never in service", [2]string{}, [2]string{"lead_months = 12", "lead_months = 45"}, `cat.toml:6:1: items.lead_months: item "m" of vendor "v" takes 45 months`},
 		{"item too big for every link", [2]string{`class = "metro"`, `class = "metro"` + "\nslots = 1"}, [2]string{"max_units = 2", "max_units = 2\nslots = 2"}, `item "m" of vendor "v" needs 2 slots per unit, more than any link it fits has free`},
+		// the base catalog has one vendor only
+		{"one vendor with one vendor in the catalogs", [2]string{"discount_rate = 0.1", "discount_rate = 0.1\none_vendor = \"per_class\""}, [2]string{}, "case.one_vendor: one_vendor has no effect: no link class it applies to has items of more than one vendor"},
+		{"one vendor with a vendor named", [2]string{"discount_rate = 0.1", "discount_rate = 0.1\none_vendor = \"network\"\nvendor = \"v\""}, [2]string{}, `one_vendor has no effect: vendor = "v" already names the only vendor`},
 		{"delivery after the horizon", [2]string{"km = 10", "km = 10\non_order = [{gbps = 5, year = 2040}]"}, [2]string{}, "year 2040 is after the horizon (2030–2032); ignored"},
 	}
 	for _, tc := range tests {

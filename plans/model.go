@@ -33,6 +33,7 @@ const moneyScale = 1000
 //	tier    z[v,τ,k] ∈ {0,1}       per vendor-year: tiers+1   integer, the tier that applies
 //	spend   S[v,τ,g,k] ≥ 0         per vendor-year: G·(tiers+1) continuous, list spend in thousands
 //	count   N[v,τ,k] ≥ 0           per vendor-year: tiers+1   continuous, units (unit-based tiers only)
+//	vendor  w[g,v] ∈ {0,1}         per one-vendor group: its vendors  integer, g's chosen vendor ([case] one_vendor)
 //
 // Rows:
 //
@@ -44,6 +45,7 @@ const moneyScale = 1000
 //	tiers         Σ_k z = 1; list spend and unit count split  per vendor-year: 1 + G + 1 + 2·(tiers+1)
 //	              by tier; threshold·z_k ≤ part_k ≤ max·z_k
 //	budget        capex of year τ ≤ cap; Σ_τ capex ≤ cumulative cap  one per capped year (+1)
+//	one vendor    Σ_v w[g,v] ≤ 1; y[o,last] ≤ max·w[g,vendor(o)]     per one-vendor group: 1 + its options
 //	cut-set       MIR roundings of site and linked-pair cuts ≤ 6·(|sites| + |links|)·T
 //	              (see addCutSets)
 //
@@ -84,6 +86,8 @@ type Model struct {
 
 	// cutRows lists the cut-set rows.
 	cutRows []int
+	// vendorChoices holds the one-vendor choices ([case] one_vendor).
+	vendorChoices []vendorChoice
 }
 
 // option is one catalog item on one link: cumulative unit columns per order
@@ -497,6 +501,8 @@ func (m *Model) addPurchases() {
 			m.options = append(m.options, o)
 		}
 	}
+
+	m.addVendorChoice()
 
 	// Slots: the last cumulative count is the total bought.
 	for l := range c.Links {

@@ -78,6 +78,10 @@ type Result struct {
 	Links            []LinkYear     `json:"links"`             // sorted by link, year
 	Demands          []DemandYear   `json:"demands"`           // sorted by demand, year
 	Shortfall        []ShortfallRow `json:"baseline_shortfall"`
+	// VendorChoice lists, under [case] one_vendor, the vendor the optimiser
+	// chose for each group of links that had a choice (a class, or "" for
+	// the whole network), in group order. Empty without one_vendor.
+	VendorChoice []VendorChoice `json:"vendor_choice"`
 	// Infeasibility lists what makes the case infeasible (status
 	// infeasible only), most important first.
 	Infeasibility []InfeasibilityRow `json:"infeasibility"`
@@ -89,6 +93,17 @@ type Result struct {
 	model        *Model
 	x            []float64
 	mipObjective float64
+}
+
+// VendorChoice is the vendor a plan uses for one group of links under
+// [case] one_vendor.
+type VendorChoice struct {
+	// Class is the link class of the group; "" means the whole network
+	// (one_vendor = "network").
+	Class string `json:"class"`
+	// Vendor is the id of the vendor the plan buys from there, "" when it
+	// buys nothing there.
+	Vendor string `json:"vendor"`
 }
 
 // Kinds of PlanRow.

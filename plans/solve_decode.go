@@ -27,6 +27,7 @@ func (m *Model) decode(ctx context.Context, res *Result, xi []float64, base *bas
 	served := m.servedValues(x)
 
 	res.Plan = m.planRows(ps)
+	res.VendorChoice = m.chosenVendors(res.Plan)
 	res.Cashflow = cashflowOf(c, ps, served, nil)
 	npv := sumPV(res.Cashflow)
 	res.Objective = &npv

@@ -283,6 +283,7 @@ func (d *decoder) checkNetwork(c *Case) {
 // allowed catalog item fits, a mix of paying and non-paying demands, and
 // links already above their utilisation ceiling in the first year.
 func (d *decoder) warnings(c *Case) {
+	d.vendorChoiceWarnings(c)
 	onLink := make([]bool, len(c.Items)) // item allowed on at least one link
 	for i, l := range c.Links {
 		for _, ii := range l.Items {
@@ -468,4 +469,36 @@ func (q *siteQueue) Pop() any {
 	x := old[len(old)-1]
 	*q = old[:len(old)-1]
 	return x
+}
+
+// vendorChoiceWarnings warns when [case] one_vendor leaves nothing to
+// choose: a vendor is named for the whole network, or no group of links
+// has items of two vendors.
+func (d *decoder) vendorChoiceWarnings(c *Case) {
+	if c.OneVendor == "" {
+		return
+	}
+	if c.VendorOnly != "" {
+		d.src.WarnAt(d.oneVendorAt, "case.one_vendor", fmt.Sprintf("one_vendor has no effect: vendor = %q already names the only vendor", c.VendorOnly))
+		return
+	}
+	vendors := map[string]map[int]bool{}
+	for _, l := range c.Links {
+		g, ok := c.VendorChoiceGroup(l.Class)
+		if !ok {
+			continue
+		}
+		if vendors[g] == nil {
+			vendors[g] = map[int]bool{}
+		}
+		for _, ii := range l.Items {
+			vendors[g][c.Items[ii].Vendor] = true
+		}
+	}
+	for _, vs := range vendors {
+		if len(vs) > 1 {
+			return
+		}
+	}
+	d.src.WarnAt(d.oneVendorAt, "case.one_vendor", "one_vendor has no effect: no link class it applies to has items of more than one vendor")
 }
