@@ -41,6 +41,9 @@ type sweepOptions struct {
 	gap       float64
 	noRegret  bool
 	quiet     bool
+	// maxScenarios caps the grid's size (the whole grid, not a shard's
+	// share).
+	maxScenarios int
 }
 
 func newSweepCmd(env *cmdEnv) *cobra.Command {
@@ -60,6 +63,9 @@ optimum.
 Factors: growth (multiplier on growth rates), tariff (multiplier on
 tariffs), capex (multiplier on equipment prices), discount_rate (absolute
 values, 0.08 = 8 %), budget (multiplier on every capex cap).
+
+The grid has as many scenarios as the product of the value counts; one
+over --max-scenarios (default 10,000) is refused before any solve.
 
 --jobs N solves N scenarios at once. --shard i/n (i from 0) solves only the
 scenarios j with j mod n = i and writes them as JSON lines, for a batch engine
@@ -84,6 +90,9 @@ Exit codes: 0 done (scenarios without a plan are reported, not failures),
 			if opts.jobs < 0 {
 				return withCode(exitBadInput, fmt.Errorf("--jobs must be ≥ 1 (0: one per CPU), got %d", opts.jobs))
 			}
+			if opts.maxScenarios < 1 {
+				return withCode(exitBadInput, fmt.Errorf("--max-scenarios must be ≥ 1, got %d", opts.maxScenarios))
+			}
 			if len(opts.vary) == 0 {
 				return withCode(exitBadInput, fmt.Errorf("give at least one --vary NAME=v1,v2,... (NAME one of %s)", strings.Join(scenario.FactorNames(), ", ")))
 			}
@@ -101,6 +110,7 @@ Exit codes: 0 done (scenarios without a plan are reported, not failures),
 	f.Float64Var(&opts.gap, "gap", 0, "relative gap at which a plan counts as optimal (default 1e-4)")
 	f.BoolVar(&opts.noRegret, "no-regret", false, "skip re-evaluating the base plan in each scenario")
 	f.BoolVar(&opts.quiet, "quiet", false, "print nothing on stderr but errors")
+	f.IntVar(&opts.maxScenarios, "max-scenarios", scenario.DefaultMaxScenarios, "refuse a grid of more than `N` scenarios (the whole grid, also when sharded)")
 	cmd.AddCommand(newSweepMergeCmd(env))
 	return cmd
 }
@@ -136,6 +146,11 @@ func runSweep(ctx context.Context, env *cmdEnv, opts *sweepOptions) error {
 	if err != nil {
 		return withCode(exitBadInput, err)
 	}
+	// Before the case is even read: a grid this size is a slip until the
+	// user says otherwise.
+	if err := grid.CheckSize(opts.maxScenarios); err != nil {
+		return withCode(exitBadInput, err)
+	}
 	var shard scenario.Shard
 	if opts.shard != "" {
 		if shard, err = scenario.ParseShard(opts.shard); err != nil {
@@ -164,7 +179,7 @@ func runSweep(ctx context.Context, env *cmdEnv, opts *sweepOptions) error {
 	if err != nil {
 		return withCode(exitFailure, err)
 	}
-	ro := scenario.Options{Solve: solve, Jobs: jobs, Shard: shard, Settings: sweepSettings(opts), CaseDigest: digest}
+	ro := scenario.Options{Solve: solve, Jobs: jobs, Shard: shard, Settings: sweepSettings(opts), CaseDigest: digest, MaxScenarios: opts.maxScenarios}
 	if !opts.quiet && isTerminal(env.stderr) {
 		ro.Progress = func(done, total int) {
 			fmt.Fprintf(env.stderr, "\rsweep: %d/%d scenarios solved", done, total)
@@ -413,8 +428,15 @@ func writeTornado(w io.Writer, rep *scenario.Report) {
 	fmt.Fprintln(tw, "factor\tlow → high\tNPV at low\tNPV at high\tswing\tNPV below base < | > above base")
 	for _, b := range rep.Tornado {
 		swing := "no plan at one end"
-		if b.Swing != nil {
+		switch {
+		case b.Swing != nil:
 			swing = money(*b.Swing)
+		case b.LowNPV == nil && b.HighNPV == nil:
+			swing = fmt.Sprintf("no plan at either end (%s, %s)", b.LowStatus, b.HighStatus)
+		case b.LowNPV == nil:
+			swing = fmt.Sprintf("no plan at %s (%s)", factorText(b.Low), b.LowStatus)
+		case b.HighNPV == nil:
+			swing = fmt.Sprintf("no plan at %s (%s)", factorText(b.High), b.HighStatus)
 		}
 		fmt.Fprintf(tw, "%s\t%s → %s\t%s\t%s\t%s\t%s\n", b.Factor, factorText(b.Low), factorText(b.High),
 			optMoneyText(b.LowNPV), optMoneyText(b.HighNPV), swing, tornadoBar(b, base, scale))

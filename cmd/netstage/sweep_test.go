@@ -137,3 +137,45 @@ func TestSweepUsage(t *testing.T) {
 		}
 	}
 }
+
+// TestSweepGridCap: a grid over --max-scenarios is refused with its size
+// and how to go on, before the case is read (the case file here does not
+// exist) and so before any solve.
+func TestSweepGridCap(t *testing.T) {
+	list := func(n int) string {
+		v := make([]string, n)
+		for i := range v {
+			v[i] = fmt.Sprintf("%g", 0.5+float64(i)/float64(n))
+		}
+		return strings.Join(v, ",")
+	}
+	missing := filepath.Join(t.TempDir(), "no-such-case.toml")
+	for _, tt := range []struct {
+		args []string
+		want []string
+	}{
+		{[]string{"--vary", "growth=" + list(101), "--vary", "tariff=" + list(100)},
+			[]string{"10,100 scenarios", "growth 101 × tariff 100", "cap of 10,000", "--max-scenarios 10100", "--shard"}},
+		{[]string{"--vary", "tariff=0.9,1.1", "--vary", "capex=0.9,1.1", "--max-scenarios", "3"},
+			[]string{"4 scenarios", "cap of 3"}},
+		{[]string{"--vary", "tariff=0.9,1.1", "--max-scenarios", "0"}, []string{"--max-scenarios must be ≥ 1"}},
+	} {
+		code, _, errOut := runCLI(append([]string{"sweep", missing}, tt.args...)...)
+		if code != exitBadInput {
+			t.Errorf("%v: exit %d, want %d", tt.want[0], code, exitBadInput)
+		}
+		for _, w := range tt.want {
+			if !strings.Contains(errOut, w) {
+				t.Errorf("stderr %q lacks %q", errOut, w)
+			}
+		}
+		if strings.Contains(errOut, "no-such-case") {
+			t.Errorf("stderr %q: the case was read before the grid was checked", errOut)
+		}
+	}
+	// Under the cap the sweep goes on (and fails only on the missing file).
+	code, _, errOut := runCLI("sweep", missing, "--vary", "tariff=0.9,1.1", "--max-scenarios", "2")
+	if code != exitBadInput || !strings.Contains(errOut, "no-such-case") {
+		t.Errorf("grid at the cap: exit %d, stderr %q; want the missing case file reported", code, errOut)
+	}
+}

@@ -1,6 +1,7 @@
 // Package scenario runs a planning case under changed assumptions: the
 // vendor comparison of `netstage compare` (one solve per catalog alone and one
-// with every catalog) and the scenario grid of `netstage sweep`.
+// with every catalog), the scenario grid of `netstage sweep`, and the
+// one-factor-at-a-time tornado of `netstage report`.
 //
 // # Factors
 //
@@ -39,6 +40,18 @@
 // checks that the shards belong to one sweep and cover it exactly once, and
 // the merged report is identical to the one an unsharded run builds, because
 // both are built from the same records and JSON keeps every float64 exactly.
+//
+// A grid larger than DefaultMaxScenarios points (10,000) is refused before
+// any solve unless the caller raises the cap (Grid.CheckSize): the size is
+// the product of the value counts and grows fast.
+//
+// # Tornado
+//
+// Tornado is the one-factor-at-a-time run behind a report's tornado chart
+// ([report.tornado]): the case as it is, then for each factor the case with
+// that factor alone at its low and at its high value (Apply with one
+// setting), the other assumptions at the case's own values: 1 + 2k solves
+// for k factors, not a grid. Its bars are the sweep's TornadoBar.
 //
 // # Regret
 //

@@ -3,6 +3,7 @@ package scenario
 import (
 	"bytes"
 	"encoding/json"
+	"errors"
 	"fmt"
 	"strconv"
 	"strings"
@@ -122,6 +123,58 @@ func NewGrid(factors []Factor) (Grid, error) {
 		}
 	}
 	return Grid{Factors: factors}, nil
+}
+
+// DefaultMaxScenarios is the largest grid a sweep solves unless told
+// otherwise (Options.MaxScenarios, `sweep --max-scenarios`): ten thousand
+// solves of even a small case take hours, and a grid grows as the product
+// of its value lists, so a larger one is far more often a slip than a plan.
+const DefaultMaxScenarios = 10000
+
+// ErrGridTooLarge is wrapped by CheckSize's error.
+var ErrGridTooLarge = errors.New("scenario: the grid is too large")
+
+// CheckSize returns an error wrapping ErrGridTooLarge when the grid has more
+// than limit points, saying how large it is and how that size comes about.
+// limit ≤ 0 means DefaultMaxScenarios. The cap counts the whole grid, not a
+// shard's share: every shard must agree on the grid, and merging the shares
+// builds the whole grid's report. Cost O(len(Factors)).
+func (g Grid) CheckSize(limit int) error {
+	if limit <= 0 {
+		limit = DefaultMaxScenarios
+	}
+	// The product in floating point: exact far beyond any cap, and it
+	// cannot overflow as an int product of long value lists could.
+	size := 1.0
+	parts := make([]string, len(g.Factors))
+	for k, f := range g.Factors {
+		size *= float64(len(f.Values))
+		parts[k] = fmt.Sprintf("%s %d", f.Name, len(f.Values))
+	}
+	if size <= float64(limit) {
+		return nil
+	}
+	return fmt.Errorf("%w: %s scenarios (the product of the value counts: %s), over the cap of %s: "+
+		"give fewer values, or raise the cap with --max-scenarios %s; the cap counts the whole grid, "+
+		"also when --shard spreads it over machines", ErrGridTooLarge,
+		countText(size), strings.Join(parts, " × "), countText(float64(limit)), strconv.FormatFloat(size, 'f', 0, 64))
+}
+
+// countText formats a count with thousands separators (1e18 and more in
+// scientific notation).
+func countText(v float64) string {
+	if v >= 1e18 {
+		return strconv.FormatFloat(v, 'g', 3, 64)
+	}
+	s := strconv.FormatInt(int64(v), 10)
+	var b strings.Builder
+	for i, r := range s {
+		if i > 0 && (len(s)-i)%3 == 0 {
+			b.WriteByte(',')
+		}
+		b.WriteRune(r)
+	}
+	return b.String()
 }
 
 // Size returns the number of grid points (1 for a grid with no factor).

@@ -41,6 +41,34 @@ type TornadoBar struct {
 	// Swing is |HighNPV − LowNPV|; nil when an end has no plan (such bars
 	// sort first: losing the plan is the largest swing).
 	Swing *float64 `json:"swing"`
+	// LowStatus and HighStatus are the statuses of the two ends' solves
+	// (a plans.Status, or StatusError): why an end has no NPV.
+	LowStatus  string `json:"low_status"`
+	HighStatus string `json:"high_status"`
+}
+
+// newTornadoBar is the bar of factor name from the records of its low end,
+// its high end and the base.
+func newTornadoBar(name string, lo, hi float64, rl, rh, base *Record) TornadoBar {
+	bar := TornadoBar{Factor: name, Low: lo, High: hi, LowNPV: rl.Objective, HighNPV: rh.Objective, BaseNPV: base.Objective,
+		LowStatus: rl.Status, HighStatus: rh.Status}
+	if rl.Objective != nil && rh.Objective != nil {
+		s := math.Abs(*rh.Objective - *rl.Objective)
+		bar.Swing = &s
+	}
+	return bar
+}
+
+// sortTornado puts the widest swing first, bars with an end without a plan
+// before all others; ties keep their order.
+func sortTornado(bars []TornadoBar) {
+	sort.SliceStable(bars, func(a, b int) bool {
+		sa, sb := bars[a].Swing, bars[b].Swing
+		if sa == nil || sb == nil {
+			return sa == nil && sb != nil
+		}
+		return *sa > *sb
+	})
 }
 
 // FrontierPoint is the sweep's base point with the budget at one multiplier.
@@ -107,20 +135,9 @@ func BuildReport(out *Output) (*Report, error) {
 		if rl == nil || rh == nil {
 			return nil, fmt.Errorf("scenario: tornado point of %s is missing", f.Name)
 		}
-		bar := TornadoBar{Factor: f.Name, Low: lo, High: hi, LowNPV: rl.Objective, HighNPV: rh.Objective, BaseNPV: base.Objective}
-		if rl.Objective != nil && rh.Objective != nil {
-			s := math.Abs(*rh.Objective - *rl.Objective)
-			bar.Swing = &s
-		}
-		rep.Tornado = append(rep.Tornado, bar)
+		rep.Tornado = append(rep.Tornado, newTornadoBar(f.Name, lo, hi, rl, rh, base))
 	}
-	sort.SliceStable(rep.Tornado, func(a, b int) bool {
-		sa, sb := rep.Tornado[a].Swing, rep.Tornado[b].Swing
-		if sa == nil || sb == nil {
-			return sa == nil && sb != nil
-		}
-		return *sa > *sb
-	})
+	sortTornado(rep.Tornado)
 	for k, f := range h.Vary {
 		if f.Name != Budget {
 			continue

@@ -191,6 +191,9 @@ type Options struct {
 	Shard Shard
 	// Settings and CaseDigest are copied into the Header.
 	Settings, CaseDigest string
+	// MaxScenarios caps the grid's size (0: DefaultMaxScenarios); Run
+	// refuses a larger grid before any solve (Grid.CheckSize).
+	MaxScenarios int
 	// Progress, when set, is called after each scenario with the number
 	// done and the number this run solves (from several goroutines, one
 	// call at a time).
@@ -208,6 +211,9 @@ type Output struct {
 func Run(ctx context.Context, c *plans.Case, grid Grid, opts Options) (*Output, error) {
 	if opts.Solve == nil {
 		panic("scenario: Run without a solve function")
+	}
+	if err := grid.CheckSize(opts.MaxScenarios); err != nil {
+		return nil, err
 	}
 	baseValues := make([]float64, len(grid.Factors))
 	for k, f := range grid.Factors {
