@@ -105,3 +105,32 @@ func (m *Model) chosenVendors(plan []PlanRow) []VendorChoice {
 	}
 	return out
 }
+
+// setVendorChoice sets the vendor-choice binaries of x to the vendors the
+// unit columns of x buy from, for a heuristic point whose units are
+// integral. It returns false when some group buys from two vendors (the
+// point cannot satisfy the one-vendor rows).
+func (m *Model) setVendorChoice(x []float64) bool {
+	c := m.Case
+	for _, vc := range m.vendorChoices {
+		chosen := -1
+		for _, o := range m.options {
+			g, ok := c.VendorChoiceGroup(c.Links[o.link].Class)
+			if !ok || g != vc.name || x[o.col[o.lastOrder]] < 0.5 {
+				continue
+			}
+			v := c.Items[o.item].Vendor
+			if chosen >= 0 && chosen != v {
+				return false
+			}
+			chosen = v
+		}
+		for i, j := range vc.col {
+			x[j] = 0
+			if vc.vendors[i] == chosen {
+				x[j] = 1
+			}
+		}
+	}
+	return true
+}

@@ -195,3 +195,34 @@ func checkOneVendor(t *testing.T, res *Result, group func(class string) string) 
 		}
 	}
 }
+
+// TestSetVendorChoice: the heuristic's repair sets the binaries of a point
+// buying from one vendor per group, and refuses a point buying from two.
+func TestSetVendorChoice(t *testing.T) {
+	c := loadSyntheticWith(t, 5, 4, 4, `one_vendor = "network"`)
+	m, err := BuildModel(c, BuildOptions{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(m.vendorChoices) != 1 || len(m.vendorChoices[0].vendors) < 2 {
+		t.Fatalf("test input: want one network group with two vendors or more, got %+v", m.vendorChoices)
+	}
+	byVendor := map[int]int{} // vendor → an option of it
+	for oi, o := range m.options {
+		byVendor[c.Items[o.item].Vendor] = oi
+	}
+	vc := m.vendorChoices[0]
+	one, other := byVendor[vc.vendors[0]], byVendor[vc.vendors[1]]
+	x := make([]float64, m.LP.NumCols())
+	x[m.options[one].col[m.options[one].lastOrder]] = 1
+	if !m.setVendorChoice(x) {
+		t.Fatal("one vendor refused")
+	}
+	if x[vc.col[0]] != 1 || x[vc.col[1]] != 0 {
+		t.Errorf("binaries %v %v, want 1 0", x[vc.col[0]], x[vc.col[1]])
+	}
+	x[m.options[other].col[m.options[other].lastOrder]] = 1
+	if m.setVendorChoice(x) {
+		t.Error("two vendors in one group accepted")
+	}
+}

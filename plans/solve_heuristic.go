@@ -21,7 +21,9 @@ var roundingThresholds = []float64{0, 0.5, 0.8}
 // sliver of a large module up costs more than the traffic it carries earns
 // — builds the candidate links those units need, repairs slots and budgets
 // by rounding down where the LP was fractional, and sets the tier columns
-// to the tier the purchases reach. Flows and served traffic are left as in
+// to the tier the purchases reach and the vendor-choice columns to the
+// vendor bought from (dropping a candidate that buys from two vendors
+// where [case] one_vendor allows one). Flows and served traffic are left as in
 // the LP: mip re-optimises the continuous columns (and drops a candidate
 // that cannot carry the committed traffic).
 //
@@ -49,6 +51,9 @@ func (m *Model) roundUpHeuristic(xlp []float64) [][]float64 {
 			return
 		}
 		m.setTiers(x)
+		if !m.setVendorChoice(x) {
+			return // buys from two vendors where [case] one_vendor allows one
+		}
 		out = append(out, x)
 	}
 	for _, theta := range roundingThresholds {
