@@ -55,7 +55,13 @@ type factor struct {
 	etaIdx   []int
 	etaVal   []float64
 
-	work []float64
+	work []float64 // zero between solves
+
+	// For the hyper-sparse solves (factor_sparse.go): the elimination step
+	// of each row and position, and shared scratch.
+	stepOfRow, stepOfCol []int
+	gL, gU, gUt, gLt     stepGraph
+	sc                   *sparseScratch
 }
 
 // numUpdates returns the number of eta updates since factorisation.
@@ -407,12 +413,12 @@ func (f *factor) transpose() {
 			next[i]++
 		}
 	}
+	f.initSparse()
 }
 
 // ftran solves B·x = b in place: on entry b is indexed by rows, on return
-// by basis positions. Cost O(nonzeros of L, U and the eta file).
+// by basis positions. Cost O(m + nonzeros of L, U and the eta file).
 func (f *factor) ftran(b []float64) {
-	out := f.work
 	for k, r := range f.pivRow {
 		br := b[r]
 		if br == 0 {
@@ -422,6 +428,13 @@ func (f *factor) ftran(b []float64) {
 			b[f.lidx[p]] -= f.lval[p] * br
 		}
 	}
+	f.ftranU(b)
+}
+
+// ftranU is ftran after its L pass: the U pass and the eta file. It leaves
+// f.work zero.
+func (f *factor) ftranU(b []float64) {
+	out := f.work
 	for k := f.m - 1; k >= 0; k-- {
 		v := b[f.pivRow[k]]
 		if v == 0 {
@@ -444,10 +457,12 @@ func (f *factor) ftran(b []float64) {
 		out[p] = xp
 	}
 	copy(b, out)
+	clear(out)
 }
 
 // btran solves yᵀ·B = dᵀ in place: on entry d is indexed by basis
-// positions, on return by rows. Cost O(nonzeros of L, U and the eta file).
+// positions, on return by rows. Cost O(m + nonzeros of L, U and the eta
+// file).
 func (f *factor) btran(d []float64) {
 	for e := len(f.etaPos) - 1; e >= 0; e-- {
 		p := f.etaPos[e]
@@ -457,6 +472,11 @@ func (f *factor) btran(d []float64) {
 		}
 		d[p] = v / f.etaPiv[e]
 	}
+	f.btranFromU(d)
+}
+
+// btranFromU is btran after the eta file: the Uᵀ and Lᵀ passes.
+func (f *factor) btranFromU(d []float64) {
 	w := f.work
 	for k, c := range f.pivCol {
 		wr := d[c] / f.diag[k]
@@ -468,6 +488,13 @@ func (f *factor) btran(d []float64) {
 			d[f.uidx[p]] -= wr * f.uval[p]
 		}
 	}
+	f.btranFromL(d)
+}
+
+// btranFromL is btran after the Uᵀ pass (its result in f.work): the Lᵀ
+// pass, then the result moves to d. It leaves f.work zero.
+func (f *factor) btranFromL(d []float64) {
+	w := f.work
 	for k := f.m - 1; k >= 0; k-- {
 		r := f.pivRow[k]
 		v := w[r]
@@ -479,6 +506,25 @@ func (f *factor) btran(d []float64) {
 		}
 	}
 	copy(d, w)
+	clear(w)
+}
+
+// updateSparse is update for an alpha whose nonzeros are among the
+// sorted positions nz (nil: anywhere). Cost O(len(nz)).
+func (f *factor) updateSparse(p int, alpha []float64, nz []int) {
+	if nz == nil {
+		f.update(p, alpha)
+		return
+	}
+	f.etaPos = append(f.etaPos, p)
+	f.etaPiv = append(f.etaPiv, alpha[p])
+	for _, i := range nz {
+		if v := alpha[i]; i != p && v != 0 {
+			f.etaIdx = append(f.etaIdx, i)
+			f.etaVal = append(f.etaVal, v)
+		}
+	}
+	f.etaStart = append(f.etaStart, len(f.etaIdx))
 }
 
 // update records that the column at position p was replaced by a column

@@ -3,7 +3,9 @@ package lp
 import (
 	"context"
 	"math"
+	"math/bits"
 	"math/rand"
+	"slices"
 	"time"
 )
 
@@ -156,8 +158,9 @@ func (s *Solver) pivotRow(rho []float64, row []float64) {
 // pivotRowSparse fills s.alphaRow with the pivot row ρᵀ[A | −I] over all
 // variables and lists in s.rowNZ the variables whose entry may be nonzero,
 // touching only the rows where ρ is nonzero and their entries. Entries
-// outside the list are zero.
-func (s *Solver) pivotRowSparse(rho []float64) {
+// outside the list are zero. rhoNZ lists the rows where ρ may be nonzero
+// (nil: anywhere).
+func (s *Solver) pivotRowSparse(rho []float64, rhoNZ []int) {
 	row, mark := s.alphaRow, s.rowMark
 	if s.rowDirty {
 		for v := range row {
@@ -173,10 +176,7 @@ func (s *Solver) pivotRowSparse(rho []float64) {
 	}
 	nz := s.rowNZ[:0]
 	n := s.n
-	for i, r := range rho {
-		if r == 0 {
-			continue
-		}
+	add := func(i int, r float64) {
 		v := n + i
 		row[v] = -r
 		mark[v] = true
@@ -188,6 +188,19 @@ func (s *Solver) pivotRowSparse(rho []float64) {
 				nz = append(nz, j)
 			}
 			row[j] += r * s.csr.Value[p]
+		}
+	}
+	if rhoNZ != nil {
+		for _, i := range rhoNZ {
+			if r := rho[i]; r != 0 {
+				add(i, r)
+			}
+		}
+	} else {
+		for i, r := range rho {
+			if r != 0 {
+				add(i, r)
+			}
 		}
 	}
 	s.rowNZ = nz
@@ -736,8 +749,9 @@ func (s *Solver) dualSimplex(lim *limits, useCutoff bool) Status {
 			rho[i] = 0
 		}
 		rho[r] = 1
-		s.fac.btran(rho)
-		s.pivotRowSparse(rho)
+		s.unitNZ[0] = r
+		rhoNZ := s.keepNZ(&s.rhoNZ, s.fac.btranSparse(rho, s.unitNZ[:]))
+		s.pivotRowSparse(rho, rhoNZ)
 		// Bound-flipping ratio test with Harris tolerances.
 		usedTol := pivotTol
 		q, flips, st := s.dualRatioTest(sgn, math.Abs(delta), row, usedTol)
@@ -767,7 +781,7 @@ func (s *Solver) dualSimplex(lim *limits, useCutoff bool) Status {
 		for k, i := range idx {
 			alpha[i] = val[k]
 		}
-		s.fac.ftran(alpha)
+		alphaNZ := s.keepNZ(&s.alphaNZ, s.fac.ftranSparse(alpha, idx))
 		arq := alpha[r]
 		if math.Abs(arq-row[q]) > pivotMismatchTol*(1+math.Abs(arq)) && s.fac.numUpdates() > 0 {
 			if !s.refactor() {
@@ -808,26 +822,49 @@ func (s *Solver) dualSimplex(lim *limits, useCutoff bool) Status {
 		// Primal step.
 		dq := delta / arq
 		if dq != 0 {
-			for p, v := range s.head {
-				s.x[v] -= dq * alpha[p]
+			if alphaNZ != nil {
+				for _, p := range alphaNZ {
+					s.x[s.head[p]] -= dq * alpha[p]
+				}
+			} else {
+				for p, v := range s.head {
+					s.x[v] -= dq * alpha[p]
+				}
 			}
 		}
 		s.x[q] += dq
 		s.x[leave] = target
 		// Dual steepest-edge weights: w_p = ‖e_pᵀB⁻¹‖².
 		wr := 0.0
-		for _, v := range rho {
-			wr += v * v
+		if rhoNZ != nil {
+			clear(tau)
+			for _, i := range rhoNZ {
+				wr += rho[i] * rho[i]
+				tau[i] = rho[i]
+			}
+		} else {
+			for _, v := range rho {
+				wr += v * v
+			}
+			copy(tau, rho)
 		}
-		copy(tau, rho)
-		s.fac.ftran(tau)
-		for p := range s.dse {
+		s.fac.ftranSparse(tau, rhoNZ)
+		updateDSE := func(p int) {
 			if p == r || alpha[p] == 0 {
-				continue
+				return
 			}
 			ratio := alpha[p] / arq
 			w := s.dse[p] + ratio*(ratio*wr-2*tau[p])
 			s.dse[p] = math.Max(w, 1e-4)
+		}
+		if alphaNZ != nil {
+			for _, p := range alphaNZ {
+				updateDSE(p)
+			}
+		} else {
+			for p := range s.dse {
+				updateDSE(p)
+			}
 		}
 		s.dse[r] = math.Max(wr/(arq*arq), 1e-4)
 		// Basis change.
@@ -841,9 +878,40 @@ func (s *Solver) dualSimplex(lim *limits, useCutoff bool) Status {
 		default:
 			s.stat[leave] = AtUpper
 		}
-		s.fac.update(r, alpha)
+		s.fac.updateSparse(r, alpha, alphaNZ)
 		s.iterations++
 	}
+}
+
+// keepNZ copies a nonzero list returned by a sparse solve (valid only
+// until the next solve) into *dst, sorted ascending, so that loops over it
+// visit entries in the order a dense scan would. nil stays nil.
+func (s *Solver) keepNZ(dst *[]int, nz []int) []int {
+	if nz == nil {
+		return nil
+	}
+	out := (*dst)[:0]
+	if n := len(nz); n*bits.Len(uint(n)) <= s.m/4 {
+		out = append(out, nz...)
+		slices.Sort(out)
+	} else {
+		// Long list: mark and scan instead of sorting.
+		if len(s.nzMark) < s.m {
+			s.nzMark = make([]bool, s.m)
+		}
+		mark := s.nzMark[:s.m]
+		for _, i := range nz {
+			mark[i] = true
+		}
+		for i, in := range mark {
+			if in {
+				out = append(out, i)
+				mark[i] = false
+			}
+		}
+	}
+	*dst = out
+	return out
 }
 
 // ratioCandidate is a nonbasic variable whose reduced cost reaches zero
@@ -1090,7 +1158,7 @@ func (s *Solver) primalSimplex(lim *limits) Status {
 		}
 		rho[r] = 1
 		s.fac.btran(rho)
-		s.pivotRowSparse(rho)
+		s.pivotRowSparse(rho, nil)
 		if math.Abs(arq-row[q]) > pivotMismatchTol*(1+math.Abs(arq)) && s.fac.numUpdates() > 0 {
 			if !s.refactor() {
 				return NumericalTrouble

@@ -74,6 +74,9 @@ type Solver struct {
 	rho, alphaRow, alphaCol, tau []float64
 	devex                        []float64 // primal pricing weights
 	rowNZ                        []int     // variables with a nonzero in alphaRow
+	rhoNZ, alphaNZ               []int     // rows of rho, positions of alphaCol that may be nonzero (sorted)
+	unitNZ                       [1]int
+	nzMark                       []bool // scratch of keepNZ, all false between calls
 	rowMark                      []bool
 	rowDirty                     bool // alphaRow must be cleared in full
 	cands                        []ratioCandidate
