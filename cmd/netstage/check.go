@@ -110,6 +110,9 @@ func writeCaseSummary(w io.Writer, c *plans.Case, demo bool) {
 		fmt.Fprint(tw, ", no tariffs: cost mode (present cost is minimised)")
 	}
 	fmt.Fprintln(tw)
+	if len(c.Tornado) > 0 {
+		fmt.Fprintf(tw, "report	%s\n", tornadoText(c.Tornado))
+	}
 	tw.Flush()
 
 	// Per-year table.
@@ -255,4 +258,14 @@ func classCounts(c *plans.Case) string {
 		parts[i] = fmt.Sprintf("%d %s", n[k], k)
 	}
 	return strings.Join(parts, ", ")
+}
+
+// tornadoText says what the report's tornado chart will vary: "tornado
+// chart over growth 0.8–1.2, tariff 0.9–1.1 (4 more solves)".
+func tornadoText(fs []plans.Sensitivity) string {
+	parts := make([]string, len(fs))
+	for i, f := range fs {
+		parts[i] = fmt.Sprintf("%s %s–%s", f.Name, factorText(f.Low), factorText(f.High))
+	}
+	return fmt.Sprintf("tornado chart over %s (%d more solves)", strings.Join(parts, ", "), 2*len(fs))
 }

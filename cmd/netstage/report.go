@@ -3,13 +3,17 @@ package main
 import (
 	"bytes"
 	"context"
+	"errors"
 	"fmt"
 	"path/filepath"
+	"runtime"
 	"strings"
 
 	"github.com/spf13/cobra"
 
+	"netstage/plans"
 	"netstage/plans/report"
+	"netstage/plans/scenario"
 )
 
 func init() { registerCommand(newReportCmd) }
@@ -23,6 +27,7 @@ type reportOptions struct {
 	timeLimit string // Go duration or bare seconds; "" no limit
 	gap       float64
 	quiet     bool
+	jobs      int // tornado solves at once (0: one per CPU)
 }
 
 func newReportCmd(env *cmdEnv) *cobra.Command {
@@ -39,7 +44,13 @@ each upgrade, the assumptions and the solver's status.
 HTML (the default) is one self-contained file with inline CSS and SVG: it
 opens offline and prints on A4 and Letter. Markdown (--format md) suits
 wikis and email. Without --out the report goes to stdout; with --out it is
-written to a temporary file and renamed into place.`,
+written to a temporary file and renamed into place.
+
+When the case has a [report.tornado] table (factor = [low, high]), the
+report also solves the case with each of those factors alone at its low and
+its high value, the others at the case's values (two more solves per factor,
+each with the same --gap and --time-limit; --jobs N runs N at once), and
+charts how far the NPV moves.`,
 		Example: `  netstage report --demo --out demo-report.html
   netstage report case.toml --format md > plan.md
   netstage report case.toml --out plan.html --time-limit 2m`,
@@ -54,6 +65,9 @@ written to a temporary file and renamed into place.`,
 			if _, err := reportFormat(opts); err != nil {
 				return err
 			}
+			if opts.jobs < 0 {
+				return withCode(exitBadInput, fmt.Errorf("--jobs must be ≥ 1 (0: one per CPU), got %d", opts.jobs))
+			}
 			return runReport(cmd.Context(), env, opts)
 		},
 	}
@@ -64,6 +78,7 @@ written to a temporary file and renamed into place.`,
 	f.StringVar(&opts.timeLimit, "time-limit", "", "stop the search after this `duration` (90s, 2m; a bare number is seconds) and report the best plan")
 	f.Float64Var(&opts.gap, "gap", 0, "relative gap at which a plan counts as optimal (default 1e-4)")
 	f.BoolVarP(&opts.quiet, "quiet", "q", false, "print no warnings or progress on stderr")
+	f.IntVar(&opts.jobs, "jobs", 1, "solve this many tornado cases at once (0: one per CPU)")
 	return cmd
 }
 
@@ -100,13 +115,18 @@ func runReport(ctx context.Context, env *cmdEnv, opts *reportOptions) error {
 			fmt.Fprintln(env.stderr, "warning:", w)
 		}
 	}
+	ro := report.Options{}
+	for _, w := range warns {
+		ro.InputWarnings = append(ro.InputWarnings, fmt.Sprint(w))
+	}
+	if len(c.Tornado) > 0 {
+		if ro.Tornado, err = reportTornado(ctx, env, opts, c, res); err != nil {
+			return err
+		}
+	}
 	// A case without a plan still gets its report: it explains why.
 	var buf bytes.Buffer
-	var inputWarnings []string
-	for _, w := range warns {
-		inputWarnings = append(inputWarnings, fmt.Sprint(w))
-	}
-	if err := report.WriteWith(&buf, c, res, format, report.Options{InputWarnings: inputWarnings}); err != nil {
+	if err := report.WriteWith(&buf, c, res, format, ro); err != nil {
 		return withCode(exitFailure, err)
 	}
 	if opts.out == "" {
@@ -117,4 +137,47 @@ func runReport(ctx context.Context, env *cmdEnv, opts *reportOptions) error {
 		return withCode(exitFailure, err)
 	}
 	return solveExit(env.stderr, res, "")
+}
+
+// reportTornado runs the one-factor-at-a-time solves of [report.tornado]
+// around the solved case res, with progress lines on stderr unless --quiet.
+// A case without a plan gets no tornado (there is no base NPV to move).
+func reportTornado(ctx context.Context, env *cmdEnv, opts *reportOptions, c *plans.Case, res *plans.Result) ([]scenario.TornadoBar, error) {
+	names := make([]string, len(c.Tornado))
+	for i, f := range c.Tornado {
+		names[i] = f.Name
+	}
+	if res.Objective == nil {
+		if !opts.quiet {
+			fmt.Fprintf(env.stderr, "tornado: skipped (%s): the case has no plan to compare with\n", strings.Join(names, ", "))
+		}
+		return nil, nil
+	}
+	solve, err := solveWith(opts.timeLimit, opts.gap)
+	if err != nil {
+		return nil, err
+	}
+	jobs := opts.jobs
+	if jobs == 0 {
+		jobs = runtime.NumCPU()
+	}
+	to := scenario.TornadoOptions{Solve: solve, Base: res, Jobs: jobs}
+	if !opts.quiet {
+		fmt.Fprintf(env.stderr, "tornado: %d solves, each of %s alone at its low and high value\n", 2*len(c.Tornado), strings.Join(names, ", "))
+		to.Progress = func(s scenario.Setting, r *scenario.Record, done, total int) {
+			outcome := r.Status
+			if r.Objective != nil {
+				outcome = "NPV " + money(*r.Objective)
+			}
+			fmt.Fprintf(env.stderr, "tornado: %d/%d %s=%s: %s\n", done, total, s.Name, factorText(s.Value), outcome)
+		}
+	}
+	bars, _, err := scenario.Tornado(ctx, c, c.Tornado, to)
+	if err != nil {
+		if errors.Is(err, scenario.ErrBadScenario) {
+			return nil, withCode(exitBadInput, err)
+		}
+		return nil, withCode(exitFailure, err)
+	}
+	return bars, nil
 }

@@ -206,3 +206,69 @@ func TestReportBadFormat(t *testing.T) {
 		t.Errorf("report --format pdf: stderr %q does not say what is allowed", errOut.String())
 	}
 }
+
+// tornadoCaseDir writes a small synthetic case (5 sites, 3 years) with a
+// [report.tornado] table and returns its case file.
+func tornadoCaseDir(t *testing.T) string {
+	t.Helper()
+	dir := filepath.Join(t.TempDir(), "case")
+	if code, _, errOut := runCLI("demo", "--sites", "5", "--years", "3", "--seed", "11", dir); code != exitOK {
+		t.Fatalf("demo --sites: exit %d: %s", code, errOut)
+	}
+	path := filepath.Join(dir, "case.toml")
+	data, err := os.ReadFile(path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	data = append(data, "\n[report.tornado]\ntariff = [0.8, 1.2]\ncapex = [0.5, 1.5]\n"...)
+	if err := os.WriteFile(path, data, 0o644); err != nil {
+		t.Fatal(err)
+	}
+	return path
+}
+
+// TestReportTornado: with [report.tornado] the report solves each factor's
+// two ends (progress on stderr, one line per solve; none with --quiet) and
+// prints the section; check names the factors. The ends' NPVs are those of
+// `solve --json` on the case with the factor applied, which plans/scenario
+// and plans/report test; here the wiring is checked: the tariff's high end
+// is worth at least its low end (more tariff can only help, see
+// TestTornadoRealSolve in plans/scenario).
+func TestReportTornado(t *testing.T) {
+	path := tornadoCaseDir(t)
+	code, out, errOut := runCLI("report", path, "--format", "md", "--gap", "1e-9", "--jobs", "2")
+	if code != exitOK {
+		t.Fatalf("report: exit %d: %s", code, errOut)
+	}
+	if n := strings.Count(errOut, "\ntornado: "); n < 4 {
+		t.Errorf("stderr has %d tornado progress lines, want the header and 4 solves:\n%s", n, errOut)
+	}
+	head, rows := markdownTable(t, out, "## Sensitivity: one assumption at a time")
+	if len(rows) != 2 {
+		t.Fatalf("tornado table has %d rows, want 2 (capex, tariff)", len(rows))
+	}
+	for _, row := range rows {
+		if row[0] != "Tariffs" {
+			continue
+		}
+		lo := reportNumber(t, row[column(t, head, "NPV at low")])
+		hi := reportNumber(t, row[column(t, head, "NPV at high")])
+		if hi < lo {
+			t.Errorf("tariff: NPV %v at ×1.2 below %v at ×0.8", hi, lo)
+		}
+	}
+	_, _, errOut = runCLI("report", path, "--format", "md", "--quiet")
+	if strings.Contains(errOut, "tornado") {
+		t.Errorf("--quiet: stderr %q has tornado progress", errOut)
+	}
+	code, out, errOut = runCLI("check", path)
+	if code != exitOK {
+		t.Fatalf("check: exit %d: %s", code, errOut)
+	}
+	if want := "tornado chart over capex 0.5–1.5, tariff 0.8–1.2 (4 more solves)"; !strings.Contains(out, "\nreport ") || !strings.Contains(out, want) {
+		t.Errorf("check output lacks %q:\n%s", want, out)
+	}
+	if code, _, errOut := runCLI("report", path, "--jobs", "-1"); code != exitBadInput || !strings.Contains(errOut, "--jobs") {
+		t.Errorf("--jobs -1: exit %d, stderr %q", code, errOut)
+	}
+}

@@ -3,6 +3,7 @@ package report
 import (
 	"context"
 	"image"
+	"image/color"
 	"image/png"
 	"math"
 	"os"
@@ -56,13 +57,44 @@ func TestBrowserRender(t *testing.T) {
 		t.Errorf("html has %d <svg> charts, want at least 4", n)
 	}
 
+	img := screenshot(t, bin, page, 3000)
+	// The charts must have drawn colour: the utilisation ramp's darkest
+	// blue or the ceiling orange must appear somewhere.
+	if !hasColour(img) {
+		t.Error("screenshot has no chart colours: the SVG charts did not render")
+	}
+
+	// A report with a tornado (a small synthetic case, whose page is
+	// shorter than the window): not blank, and both ends' bars painted.
+	c, r, bars := solvedTornado(t)
+	page = renderWith(t, c, r, HTML, Options{Tornado: bars})
+	img = screenshot(t, bin, page, 6000)
+	for _, end := range []struct {
+		name string
+		c    color.RGBA
+	}{{"low", tornadoLowColor}, {"high", tornadoHighColor}} {
+		// A bar half-row is at least 15 × 5 px at this width, even the
+		// shortest (the hairline of an end that does not move is not
+		// counted; this case moves every factor).
+		if n := countColour(img, end.c); n < 75*len(bars)/2 {
+			t.Errorf("screenshot has %d pixels of the tornado's %s-end colour, want at least %d: the tornado chart did not render", n, end.name, 75*len(bars)/2)
+		} else {
+			t.Logf("tornado %s-end bars: %d pixels", end.name, n)
+		}
+	}
+}
+
+// screenshot renders page in headless chromium in a window 1100 px wide
+// and height px tall, checks that it is not blank and returns the image.
+func screenshot(t *testing.T, bin, page string, height int) image.Image {
+	t.Helper()
 	dir := t.TempDir()
 	htmlPath := filepath.Join(dir, "report.html")
 	if err := os.WriteFile(htmlPath, []byte(page), 0o644); err != nil {
 		t.Fatal(err)
 	}
 	shot := filepath.Join(dir, "report.png")
-	out := chromium(t, bin, dir, "--window-size=1100,3000", "--screenshot="+shot, "file://"+htmlPath)
+	out := chromium(t, bin, dir, "--window-size=1100,"+strconv.Itoa(height), "--screenshot="+shot, "file://"+htmlPath)
 	f, err := os.Open(shot)
 	if err != nil {
 		t.Fatalf("chromium wrote no screenshot: %v\n%s", err, out)
@@ -80,11 +112,31 @@ func TestBrowserRender(t *testing.T) {
 	if ink < minInkShare {
 		t.Errorf("only %.3f of the screenshot is not white, want at least %.2f", ink, minInkShare)
 	}
-	// The charts must have drawn colour: the utilisation ramp's darkest
-	// blue or the ceiling orange must appear somewhere.
-	if !hasColour(img) {
-		t.Error("screenshot has no chart colours: the SVG charts did not render")
+	return img
+}
+
+// colourTolerance is how far (per 8-bit channel) a rendered pixel may be
+// from the colour it was drawn in: browsers paint sRGB SVG fills exactly,
+// give or take rounding.
+const colourTolerance = 3
+
+// countColour counts the pixels within colourTolerance of c.
+func countColour(img image.Image, c color.RGBA) int {
+	b := img.Bounds()
+	n := 0
+	near := func(a uint32, b uint8) bool {
+		d := int(a>>8) - int(b)
+		return d >= -colourTolerance && d <= colourTolerance
 	}
+	for y := b.Min.Y; y < b.Max.Y; y++ {
+		for x := b.Min.X; x < b.Max.X; x++ {
+			r, g, bl, _ := img.At(x, y).RGBA()
+			if near(r, c.R) && near(g, c.G) && near(bl, c.B) {
+				n++
+			}
+		}
+	}
+	return n
 }
 
 // chromium runs headless chromium with a fresh profile under dir and

@@ -153,7 +153,22 @@ const htmlSource = `<!DOCTYPE html>
 {{else}}<p>The plan buys nothing, so there is nothing to justify.</p>
 {{end}}<p class="note">The solved plan does not list which demands use which link; the report names the demands whose shortest route (by km) runs over the link, which is where traffic goes when capacity allows.</p>
 </section>
-{{end}}
+{{with .Tornado}}
+<section id="tornado">
+<h2>Sensitivity: one assumption at a time</h2>
+<p>{{.Intro}}</p>
+{{with .Chart}}<figure id="{{.ID}}">
+<h3>{{.Title}}</h3>
+{{svg .SVG}}
+<figcaption>{{.Caption}}</figcaption>
+</figure>
+{{end}}<div class="wide"><table>
+<thead><tr><th>Assumption</th><th class="num">Low value</th><th class="num">NPV at low</th><th class="num">High value</th><th class="num">NPV at high</th><th class="num">Swing</th></tr></thead>
+<tbody>
+{{range .Rows}}<tr><td>{{.Factor}}</td><td class="num">{{.Low}}</td><td class="num">{{.LowNPV}}</td><td class="num">{{.High}}</td><td class="num">{{.HighNPV}}</td><td class="num">{{.Swing}}</td></tr>
+{{end}}</tbody></table></div>
+</section>
+{{end}}{{end}}
 <section id="assumptions">
 <h2>Assumptions</h2>
 <table><tbody>

@@ -8,6 +8,7 @@ import (
 	"strings"
 
 	"netstage/plans"
+	"netstage/plans/scenario"
 )
 
 // Format is an output format of the report.
@@ -48,6 +49,10 @@ type Options struct {
 	// InputWarnings are the warnings of loading the case (legal but
 	// suspicious inputs); the report lists them with the solver's warnings.
 	InputWarnings []string
+	// Tornado holds the bars of a one-factor-at-a-time run
+	// (scenario.Tornado), widest swing first; the report charts them in a
+	// section of their own when the result has a plan. Nil: no section.
+	Tornado []scenario.TornadoBar
 }
 
 // Write renders the report of the solved plan r for the case c in format f.
@@ -63,12 +68,23 @@ func WriteWith(w io.Writer, c *plans.Case, r *plans.Result, f Format, opts Optio
 		return err
 	}
 	v.Warnings = append(append([]string(nil), opts.InputWarnings...), v.Warnings...)
+	if v.HasPlan {
+		v.Tornado = buildTornado(opts.Tornado, v.Currency)
+	}
 	bw := bufio.NewWriter(w)
 	switch f {
 	case HTML:
 		if v.HasPlan {
 			if err := addCharts(v, c, r); err != nil {
 				return err
+			}
+			if v.Tornado != nil {
+				ch, err := tornadoChart(opts.Tornado, v.Currency)
+				if err != nil {
+					return err
+				}
+				ch = namedForScreenReaders(ch)
+				v.Tornado.Chart = &ch
 			}
 		}
 		err = writeHTML(bw, v)
@@ -108,11 +124,15 @@ func addCharts(v *view, c *plans.Case, r *plans.Result) error {
 		}
 		v.Charts = append(v.Charts, ch)
 	}
-	// Name each chart for screen readers.
 	for i := range v.Charts {
-		ch := &v.Charts[i]
-		ch.SVG = strings.Replace(ch.SVG, `<svg class="chart" role="img"`,
-			`<svg class="chart" role="img" aria-label="`+html.EscapeString(ch.Title)+`"`, 1)
+		v.Charts[i] = namedForScreenReaders(v.Charts[i])
 	}
 	return nil
+}
+
+// namedForScreenReaders gives the chart's SVG its title as an ARIA label.
+func namedForScreenReaders(ch chart) chart {
+	ch.SVG = strings.Replace(ch.SVG, `<svg class="chart" role="img"`,
+		`<svg class="chart" role="img" aria-label="`+html.EscapeString(ch.Title)+`"`, 1)
+	return ch
 }

@@ -43,6 +43,7 @@ type view struct {
 	CashTotal     cashRow
 	HasPenalty    bool
 	Why           []why
+	Tornado       *tornadoView // nil: the case asks for no tornado
 	Assumptions   []pair
 	Budgets       []budgetRow
 	Demands       []demandRow
