@@ -54,6 +54,7 @@ func checkInvariants(t *testing.T, c *Case, res *Result) {
 			}
 		}
 	}
+	checkRoutes(t, c, res)
 	// Arc loads within ceiling × capacity after the plan.
 	load := arcLoads(m, x)
 	for _, r := range res.Links {
@@ -145,4 +146,56 @@ func deref(p *float64) any {
 		return nil
 	}
 	return *p
+}
+
+// checkRoutes checks Result.Routes against the case alone: each route is a
+// walk over the case's links from its demand's From to its To; a demand's
+// routes in a year add up to what it served; and the routes over a link in
+// one direction fit within ceiling × the capacity after the plan.
+func checkRoutes(t *testing.T, c *Case, res *Result) {
+	t.Helper()
+	type dirYear struct {
+		link, dir, year int
+	}
+	served := map[[2]any]float64{}
+	used := map[dirYear]float64{}
+	for _, r := range res.Routes {
+		at := c.SiteIndex(r.From)
+		for _, id := range r.Links {
+			l := c.LinkIndex(id)
+			if l < 0 {
+				t.Fatalf("route %+v: unknown link %s", r, id)
+			}
+			switch at {
+			case c.Links[l].A:
+				used[dirYear{l, 0, r.Year}] += r.Gbps
+				at = c.Links[l].B
+			case c.Links[l].B:
+				used[dirYear{l, 1, r.Year}] += r.Gbps
+				at = c.Links[l].A
+			default:
+				t.Fatalf("route %+v: link %s does not start where the route is", r, id)
+			}
+		}
+		if at != c.SiteIndex(r.To) {
+			t.Errorf("route %+v ends at %s", r, c.Sites[at].ID)
+		}
+		if r.Gbps <= 0 {
+			t.Errorf("route %+v carries nothing", r)
+		}
+		served[[2]any{r.Demand, r.Year}] += r.Gbps
+	}
+	for _, d := range res.Demands {
+		if got := served[[2]any{d.Demand, d.Year}]; math.Abs(got-d.Served) > invariantTol*math.Max(1, d.Served) {
+			t.Errorf("demand %s in %d: routes carry %g Gbps, served %g", d.Demand, d.Year, got, d.Served)
+		}
+	}
+	for _, r := range res.Links {
+		l := c.LinkIndex(r.Link)
+		for dir := 0; dir < 2; dir++ {
+			if g := used[dirYear{l, dir, r.Year}]; g > c.Links[l].Ceiling*r.CapacityAfter+invariantTol {
+				t.Errorf("link %s in %d: routes put %g Gbps on it, above %g × %g", r.Link, r.Year, g, c.Links[l].Ceiling, r.CapacityAfter)
+			}
+		}
+	}
 }

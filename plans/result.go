@@ -78,6 +78,10 @@ type Result struct {
 	Links            []LinkYear     `json:"links"`             // sorted by link, year
 	Demands          []DemandYear   `json:"demands"`           // sorted by demand, year
 	Shortfall        []ShortfallRow `json:"baseline_shortfall"`
+	// Routes splits each demand's served traffic into the paths it takes,
+	// per year, in its direction From → To (sorted by demand, year, widest
+	// first).
+	Routes []Route `json:"routes"`
 	// VendorChoice lists, under [case] one_vendor, the vendor the optimiser
 	// chose for each group of links that had a choice (a class, or "" for
 	// the whole network), in group order. Empty without one_vendor.

@@ -28,6 +28,7 @@ func (m *Model) decode(ctx context.Context, res *Result, xi []float64, base *bas
 
 	res.Plan = m.planRows(ps)
 	res.VendorChoice = m.chosenVendors(res.Plan)
+	res.Routes = m.routes(x)
 	res.Cashflow = cashflowOf(c, ps, served, nil)
 	npv := sumPV(res.Cashflow)
 	res.Objective = &npv

@@ -1,7 +1,7 @@
 package main
 
-// The --csv DIR output of solve: plan.csv, cashflow.csv, links.csv and
-// demands.csv, one header row each, numbers in the fixed formats of
+// The --csv DIR output of solve: plan.csv, cashflow.csv, links.csv,
+// demands.csv and routes.csv, one header row each, numbers in the fixed formats of
 // output_format.go. Each file is written to a temporary name in DIR and
 // renamed into place, so a reader never sees a half-written file.
 
@@ -12,6 +12,7 @@ import (
 	"os"
 	"path/filepath"
 	"strconv"
+	"strings"
 
 	"netstage/plans"
 )
@@ -55,11 +56,17 @@ func csvFiles(r *plans.Result) []csvFile {
 		demands = append(demands, []string{d.Demand, d.From, d.To, i(d.Year), g(d.Forecast), g(d.Served),
 			g(d.Committed), m(d.Revenue), g(d.Unserved), d.Reason})
 	}
+	// One row per path; links separated by spaces (ids hold no spaces).
+	routes := [][]string{{"demand", "from", "to", "year", "gbps", "links"}}
+	for _, rt := range r.Routes {
+		routes = append(routes, []string{rt.Demand, rt.From, rt.To, i(rt.Year), g(rt.Gbps), strings.Join(rt.Links, " ")})
+	}
 	return []csvFile{
 		{"plan.csv", plan},
 		{"cashflow.csv", cash},
 		{"links.csv", links},
 		{"demands.csv", demands},
+		{"routes.csv", routes},
 	}
 }
 

@@ -50,6 +50,10 @@ func handResult() *plans.Result {
 			{Demand: "A-B", From: "A", To: "B", Year: 2027, Forecast: 210, Served: 200, Committed: 50, Revenue: 500000, Unserved: 10, Reason: plans.ReasonCapacity},
 			{Demand: "A-B", From: "A", To: "B", Year: 2028, Forecast: 60, Served: 60, Committed: 50, Revenue: 500000},
 		},
+		Routes: []plans.Route{
+			{Demand: "A-B", From: "A", To: "B", Year: 2027, Links: []string{"L1"}, Gbps: 150},
+			{Demand: "A-B", From: "A", To: "B", Year: 2027, Links: []string{"AB", "BC"}, Gbps: 50},
+		},
 		Shortfall: []plans.ShortfallRow{
 			{Demand: "A-B", From: "A", To: "B", Year: 2027, Committed: 50, Carried: 40, Shortfall: 10, Penalty: 1200, RevenueAtRisk: 6000},
 		},
@@ -260,7 +264,7 @@ func TestWriteCSVDir(t *testing.T) {
 	for _, e := range entries {
 		names = append(names, e.Name())
 	}
-	if got, want := strings.Join(names, " "), "cashflow.csv demands.csv links.csv plan.csv"; got != want {
+	if got, want := strings.Join(names, " "), "cashflow.csv demands.csv links.csv plan.csv routes.csv"; got != want {
 		t.Errorf("files = %s, want %s (no temporary files left)", got, want)
 	}
 	tests := []struct {
@@ -273,6 +277,7 @@ func TestWriteCSVDir(t *testing.T) {
 		{"cashflow.csv", 4, "year,revenue,opex,capex,depreciation,tax,penalty,salvage,net,discount_factor,pv,cumulative_pv,budget,budget_used,incremental", [3]string{"3", "budget", ""}},
 		{"links.csv", 3, "link,year,capacity_before,utilisation_before,capacity_after,utilisation_after,ceiling,at_ceiling,shadow_value", [3]string{"1", "shadow_value", "812.50"}},
 		{"demands.csv", 3, "demand,from,to,year,forecast,served,committed,revenue,unserved,reason", [3]string{"1", "reason", "capacity"}},
+		{"routes.csv", 3, "demand,from,to,year,gbps,links", [3]string{"2", "links", "AB BC"}},
 	}
 	for _, tc := range tests {
 		t.Run(tc.file, func(t *testing.T) {

@@ -136,14 +136,15 @@ func TestSolveDemoGolden(t *testing.T) {
 
 // demoResult is the part of the JSON the tests read.
 type demoResult struct {
-	Status         string   `json:"status"`
-	Objective      *float64 `json:"objective"`
-	Bound          *float64 `json:"bound"`
-	Gap            *float64 `json:"gap"`
-	BaselineNPV    *float64 `json:"baseline_npv"`
-	IncrementalNPV *float64 `json:"incremental_npv"`
-	MPSObjective   *float64 `json:"mps_objective"`
-	TotalCapex     float64  `json:"total_capex"`
+	Status         string     `json:"status"`
+	Objective      *float64   `json:"objective"`
+	Bound          *float64   `json:"bound"`
+	Gap            *float64   `json:"gap"`
+	BaselineNPV    *float64   `json:"baseline_npv"`
+	IncrementalNPV *float64   `json:"incremental_npv"`
+	MPSObjective   *float64   `json:"mps_objective"`
+	TotalCapex     float64    `json:"total_capex"`
+	Routes         []struct{} `json:"routes"`
 	Plan           []struct {
 		Year      int     `json:"year"`
 		InService int     `json:"in_service"`
@@ -261,6 +262,7 @@ func TestSolveCSV(t *testing.T) {
 		{"cashflow.csv", len(r.Cashflow) + 1},
 		{"links.csv", -1},
 		{"demands.csv", -1},
+		{"routes.csv", len(r.Routes) + 1},
 	}
 	for _, tc := range tests {
 		rows := readCSV(t, filepath.Join(dir, tc.file))
