@@ -120,7 +120,19 @@ func runReport(ctx context.Context, env *cmdEnv, opts *reportOptions) error {
 		ro.InputWarnings = append(ro.InputWarnings, fmt.Sprint(w))
 	}
 	if len(c.Tornado) > 0 {
-		if ro.Tornado, err = reportTornado(ctx, env, opts, c, res); err != nil {
+		bars, err := reportTornado(ctx, env, opts, c, res)
+		switch {
+		case err == nil:
+			ro.Tornado = bars
+		case ctx.Err() != nil:
+			// Stopped (Ctrl-C): the plan is still reported, as after a
+			// stopped main solve, and the report says what it lacks.
+			note := "the tornado chart of [report.tornado] is missing: its solves were stopped before they finished"
+			if !opts.quiet {
+				fmt.Fprintln(env.stderr, "warning:", note)
+			}
+			ro.InputWarnings = append(ro.InputWarnings, note)
+		default:
 			return err
 		}
 	}

@@ -2,6 +2,7 @@ package main
 
 import (
 	"bytes"
+	"context"
 	"encoding/json"
 	"math"
 	"os"
@@ -9,6 +10,8 @@ import (
 	"strconv"
 	"strings"
 	"testing"
+
+	"netstage/plans"
 )
 
 // reportNumber reads a number as the report prints it: thousands
@@ -270,5 +273,34 @@ func TestReportTornado(t *testing.T) {
 	}
 	if code, _, errOut := runCLI("report", path, "--jobs", "-1"); code != exitBadInput || !strings.Contains(errOut, "--jobs") {
 		t.Errorf("--jobs -1: exit %d, stderr %q", code, errOut)
+	}
+}
+
+// TestReportTornadoStopped: Ctrl-C during the tornado's solves still
+// writes the report of the plan, without the chart, saying so.
+func TestReportTornadoStopped(t *testing.T) {
+	path := tornadoCaseDir(t)
+	ctx, cancel := context.WithCancel(context.Background())
+	defer cancel()
+	saved := scenarioSolve
+	scenarioSolve = func(ctx context.Context, c *plans.Case, o plans.SolveOptions) (*plans.Result, error) {
+		cancel() // as if Ctrl-C came during the first tornado solve
+		return saved(ctx, c, o)
+	}
+	t.Cleanup(func() { scenarioSolve = saved })
+	var out, errb bytes.Buffer
+	err := runReport(ctx, &cmdEnv{stdout: &out, stderr: &errb}, &reportOptions{casePath: path, format: "md", jobs: 1})
+	if err != nil {
+		t.Fatalf("runReport: %v\n%s", err, errb.String())
+	}
+	md := out.String()
+	if strings.Contains(md, "## Sensitivity") {
+		t.Error("a stopped tornado is in the report")
+	}
+	if !strings.Contains(md, "## Staged plan") || !strings.Contains(md, "tornado chart of [report.tornado] is missing") {
+		t.Error("the report lacks the plan or the note that the tornado is missing")
+	}
+	if !strings.Contains(errb.String(), "warning: the tornado chart") {
+		t.Errorf("stderr %q does not warn", errb.String())
 	}
 }
