@@ -5,8 +5,10 @@ import "time"
 // SolveOptions tune Solve. The zero value of every field means its default
 // or "no limit".
 type SolveOptions struct {
-	// TimeLimit bounds the branch-and-bound (0: no limit). When it is hit,
-	// Solve returns the best plan found with status feasible and its gap.
+	// TimeLimit bounds the whole solve, approximately (0: no limit): the
+	// baseline LP, the search and the LPs that decode the plan (see Solve).
+	// When it is hit, Solve returns the best plan found with status
+	// feasible and its gap.
 	TimeLimit time.Duration
 	// Gap is the relative gap at which a plan counts as optimal
 	// (0: the default 1e-4; checks against other solvers use 1e-9).
