@@ -695,6 +695,18 @@ func (s *Solver) dualSimplex(lim *limits, useCutoff bool) Status {
 	ptol, dtol := s.primalTol(), s.dualTol()
 	rho, row, alpha, tau := s.rho, s.alphaRow, s.alphaCol, s.tau
 	cutoff := s.cutoffScaled()
+	cutoffAt := cutoff + dtol*(1+math.Abs(cutoff))
+	// The objective is kept up to date through the iterations (exactly
+	// recomputed whenever values are), and recomputed exactly before it is
+	// compared with the cutoff within objSlack.
+	objSlack := cutoffObjectiveSlack * (1 + math.Abs(cutoff))
+	obj := 0.0
+	// pinf[p] is the primal infeasibility of the variable basic at p (0
+	// within tolerance), kept up to date where values change; dirty asks
+	// for all of it (and obj) to be recomputed.
+	s.pinf = resize(s.pinf, s.m)
+	pinf := s.pinf
+	dirty := true
 	degenerate := 0
 	for {
 		if degenerate > stallIterations && !s.perturbed && !s.set.NoPerturbation {
@@ -714,20 +726,29 @@ func (s *Solver) dualSimplex(lim *limits, useCutoff bool) Status {
 				return NumericalTrouble
 			}
 			s.flipToDualFeasible(dtol)
+			dirty = true
 		}
-		if useCutoff && s.objectiveWork() > cutoff+dtol*(1+math.Abs(cutoff)) {
-			return ObjectiveCutoff
+		if dirty {
+			for p := range pinf {
+				s.setInfeasibility(p, ptol)
+			}
+			if useCutoff {
+				obj = s.objectiveWork()
+			}
+			dirty = false
+		}
+		if useCutoff && obj > cutoffAt-objSlack {
+			// The running objective is near the cutoff: decide on the
+			// exact one.
+			obj = s.objectiveWork()
+			if obj > cutoffAt {
+				return ObjectiveCutoff
+			}
 		}
 		// Choose the leaving row: largest infeasibility²/weight.
 		r, best := -1, 0.0
-		for p, v := range s.head {
-			xv := s.x[v]
-			var inf float64
-			if xv < s.lo[v]-ptol {
-				inf = s.lo[v] - xv
-			} else if xv > s.up[v]+ptol {
-				inf = xv - s.up[v]
-			} else {
+		for p, inf := range pinf {
+			if inf == 0 {
 				continue
 			}
 			if score := inf * inf / s.dse[p]; score > best {
@@ -788,6 +809,7 @@ func (s *Solver) dualSimplex(lim *limits, useCutoff bool) Status {
 				return NumericalTrouble
 			}
 			s.flipToDualFeasible(dtol)
+			dirty = true
 			continue
 		}
 		if math.Abs(arq) < usedTol {
@@ -795,6 +817,7 @@ func (s *Solver) dualSimplex(lim *limits, useCutoff bool) Status {
 				if !s.refactor() {
 					return NumericalTrouble
 				}
+				dirty = true
 				continue
 			}
 			return NumericalTrouble
@@ -802,6 +825,7 @@ func (s *Solver) dualSimplex(lim *limits, useCutoff bool) Status {
 		if len(flips) > 0 {
 			s.applyFlips(flips)
 			delta = s.x[leave] - target
+			dirty = true
 		}
 		// Dual step.
 		thetaD := s.d[q] / row[q]
@@ -821,17 +845,30 @@ func (s *Solver) dualSimplex(lim *limits, useCutoff bool) Status {
 		s.d[leave] = -thetaD
 		// Primal step.
 		dq := delta / arq
+		xLeave := s.x[leave]
+		dObj := 0.0
 		if dq != 0 {
 			if alphaNZ != nil {
 				for _, p := range alphaNZ {
-					s.x[s.head[p]] -= dq * alpha[p]
+					v := s.head[p]
+					step := dq * alpha[p]
+					s.x[v] -= step
+					dObj -= s.work[v] * step
+					s.setInfeasibility(p, ptol)
 				}
 			} else {
 				for p, v := range s.head {
-					s.x[v] -= dq * alpha[p]
+					step := dq * alpha[p]
+					s.x[v] -= step
+					dObj -= s.work[v] * step
 				}
+				dirty = true
 			}
 		}
+		// The loop moved leave by −dq·alpha[r]; it ends at target instead.
+		dObj += s.work[leave]*(target-xLeave) - s.work[leave]*(-dq*arq)
+		dObj += s.work[q] * dq
+		obj += dObj
 		s.x[q] += dq
 		s.x[leave] = target
 		// Dual steepest-edge weights: w_p = ‖e_pᵀB⁻¹‖².
@@ -879,7 +916,29 @@ func (s *Solver) dualSimplex(lim *limits, useCutoff bool) Status {
 			s.stat[leave] = AtUpper
 		}
 		s.fac.updateSparse(r, alpha, alphaNZ)
+		s.setInfeasibility(r, ptol)
 		s.iterations++
+	}
+}
+
+// cutoffObjectiveSlack: the dual simplex's running objective is checked
+// against the exact one when it comes within this much (relative to the
+// cutoff) of the cutoff; its rounding drift between two exact
+// recomputations is far smaller.
+const cutoffObjectiveSlack = 1e-7
+
+// setInfeasibility records in s.pinf[p] the primal infeasibility of the
+// variable basic at position p, or 0 when it is within tol of its bounds.
+func (s *Solver) setInfeasibility(p int, tol float64) {
+	v := s.head[p]
+	xv := s.x[v]
+	switch {
+	case xv < s.lo[v]-tol:
+		s.pinf[p] = s.lo[v] - xv
+	case xv > s.up[v]+tol:
+		s.pinf[p] = xv - s.up[v]
+	default:
+		s.pinf[p] = 0
 	}
 }
 

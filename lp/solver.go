@@ -76,7 +76,8 @@ type Solver struct {
 	rowNZ                        []int     // variables with a nonzero in alphaRow
 	rhoNZ, alphaNZ               []int     // rows of rho, positions of alphaCol that may be nonzero (sorted)
 	unitNZ                       [1]int
-	nzMark                       []bool // scratch of keepNZ, all false between calls
+	nzMark                       []bool    // scratch of keepNZ, all false between calls
+	pinf                         []float64 // primal infeasibility per basis position (dual simplex)
 	rowMark                      []bool
 	rowDirty                     bool // alphaRow must be cleared in full
 	cands                        []ratioCandidate
