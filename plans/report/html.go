@@ -163,9 +163,9 @@ const htmlSource = `<!DOCTYPE html>
 <figcaption>{{.Caption}}</figcaption>
 </figure>
 {{end}}<div class="wide"><table>
-<thead><tr><th>Assumption</th><th class="num">Low value</th><th class="num">NPV at low</th><th class="num">High value</th><th class="num">NPV at high</th><th class="num">Swing</th></tr></thead>
+<thead><tr><th>Assumption</th><th class="num">Case value</th><th class="num">Low value</th><th class="num">NPV at low</th><th class="num">High value</th><th class="num">NPV at high</th><th class="num">Swing</th></tr></thead>
 <tbody>
-{{range .Rows}}<tr><td>{{.Factor}}</td><td class="num">{{.Low}}</td><td class="num">{{.LowNPV}}</td><td class="num">{{.High}}</td><td class="num">{{.HighNPV}}</td><td class="num">{{.Swing}}</td></tr>
+{{range .Rows}}<tr><td>{{.Factor}}</td><td class="num">{{.Case}}</td><td class="num">{{.Low}}</td><td class="num">{{.LowNPV}}</td><td class="num">{{.High}}</td><td class="num">{{.HighNPV}}</td><td class="num">{{.Swing}}</td></tr>
 {{end}}</tbody></table></div>
 </section>
 {{end}}{{end}}

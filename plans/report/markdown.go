@@ -156,9 +156,9 @@ func writeMarkdown(w io.Writer, v *view) error {
 		m.printf("The solved plan does not list which demands use which link; the report names the demands whose shortest route (by km) runs over the link, which is where traffic goes when capacity allows.\n\n")
 		if tv := v.Tornado; tv != nil {
 			m.printf("## Sensitivity: one assumption at a time\n\n%s The HTML report draws these figures as a tornado chart.\n\n", tv.Intro)
-			m.head("Assumption", ">Low value", ">NPV at low", ">High value", ">NPV at high", ">Swing")
+			m.head("Assumption", ">Case value", ">Low value", ">NPV at low", ">High value", ">NPV at high", ">Swing")
 			for _, r := range tv.Rows {
-				m.row(r.Factor, r.Low, r.LowNPV, r.High, r.HighNPV, r.Swing)
+				m.row(r.Factor, r.Case, r.Low, r.LowNPV, r.High, r.HighNPV, r.Swing)
 			}
 			m.printf("\n")
 		}

@@ -69,7 +69,7 @@ func WriteWith(w io.Writer, c *plans.Case, r *plans.Result, f Format, opts Optio
 	}
 	v.Warnings = append(append([]string(nil), opts.InputWarnings...), v.Warnings...)
 	if v.HasPlan {
-		v.Tornado = buildTornado(opts.Tornado, v.Currency)
+		v.Tornado = buildTornado(c, opts.Tornado, v.Currency, v.CostMode)
 	}
 	bw := bufio.NewWriter(w)
 	switch f {

@@ -38,6 +38,7 @@ type tornadoView struct {
 // tornadoRow is one factor of the table, formatted.
 type tornadoRow struct {
 	Factor        string
+	Case          string // the case's own value (×1 for a multiplier)
 	Low, LowNPV   string
 	High, HighNPV string
 	Swing         string
@@ -99,7 +100,7 @@ func endNPV(npv *float64, status, currency string) string {
 
 // buildTornado formats the bars of a one-factor-at-a-time run. Bars come
 // widest swing first, as scenario.Tornado returns them.
-func buildTornado(bars []scenario.TornadoBar, currency string) *tornadoView {
+func buildTornado(c *plans.Case, bars []scenario.TornadoBar, currency string, costMode bool) *tornadoView {
 	if len(bars) == 0 {
 		return nil
 	}
@@ -112,9 +113,12 @@ func buildTornado(bars []scenario.TornadoBar, currency string) *tornadoView {
 		"every other assumption at the case's values. At each end the case is solved again, so each figure is the best plan " +
 		"for that assumption, not the plan above re-priced. The line is the base NPV (" + base + "); " +
 		"the factors are sorted by how far they move it, the widest on top."
+	if costMode {
+		tv.Intro += " No demand pays a tariff, so each NPV is minus the network's present cost."
+	}
 	for _, b := range bars {
 		row := tornadoRow{
-			Factor: factorLabel(b.Factor),
+			Factor: factorLabel(b.Factor), Case: factorValue(b.Factor, scenario.BaseValue(c, b.Factor)),
 			Low:    factorValue(b.Factor, b.Low), LowNPV: endNPV(b.LowNPV, b.LowStatus, currency),
 			High: factorValue(b.Factor, b.High), HighNPV: endNPV(b.HighNPV, b.HighStatus, currency),
 		}

@@ -131,6 +131,9 @@ func TestTornadoSection(t *testing.T) {
 			if row[0] != factorLabel(b.Factor) {
 				t.Errorf("%s row %d: factor %q, want %q (widest swing first)", name, i, row[0], factorLabel(b.Factor))
 			}
+			if want := factorValue(b.Factor, scenario.BaseValue(c, b.Factor)); row[tb.col("Case value")] != want {
+				t.Errorf("%s %s: case value %q, want %q", name, b.Factor, row[tb.col("Case value")], want)
+			}
 			checkClose(t, name+" "+b.Factor+" NPV at low", num(t, row[tb.col("NPV at low")]), *b.LowNPV, moneyTol)
 			checkClose(t, name+" "+b.Factor+" NPV at high", num(t, row[tb.col("NPV at high")]), *b.HighNPV, moneyTol)
 			checkClose(t, name+" "+b.Factor+" swing", num(t, row[tb.col("Swing")]), *b.Swing, moneyTol)
