@@ -119,7 +119,7 @@ func buildTornado(c *plans.Case, bars []scenario.TornadoBar, currency string, co
 	for _, b := range bars {
 		row := tornadoRow{
 			Factor: factorLabel(b.Factor), Case: factorValue(b.Factor, scenario.BaseValue(c, b.Factor)),
-			Low:    factorValue(b.Factor, b.Low), LowNPV: endNPV(b.LowNPV, b.LowStatus, currency),
+			Low: factorValue(b.Factor, b.Low), LowNPV: endNPV(b.LowNPV, b.LowStatus, currency),
 			High: factorValue(b.Factor, b.High), HighNPV: endNPV(b.HighNPV, b.HighStatus, currency),
 		}
 		switch {
