@@ -107,12 +107,12 @@ func buildTornado(c *plans.Case, bars []scenario.TornadoBar, currency string, co
 	tv := &tornadoView{}
 	base := "the plan above"
 	if b := bars[0].BaseNPV; b != nil {
-		base = "the plan above, " + moneyCur(*b, currency)
+		base += ", NPV " + moneyCur(*b, currency)
 	}
 	tv.Intro = "How far the NPV moves when one assumption at a time is set to a low and to a high value, " +
 		"every other assumption at the case's values. At each end the case is solved again, so each figure is the best plan " +
-		"for that assumption, not the plan above re-priced. The line is the base NPV (" + base + "); " +
-		"the factors are sorted by how far they move it, the widest on top."
+		"for that assumption, not the plan above re-priced. The base is " + base + "; " +
+		"the factors are sorted by how far they move it, the widest first."
 	if costMode {
 		tv.Intro += " No demand pays a tariff, so each NPV is minus the network's present cost."
 	}
@@ -122,11 +122,9 @@ func buildTornado(c *plans.Case, bars []scenario.TornadoBar, currency string, co
 			Low: factorValue(b.Factor, b.Low), LowNPV: endNPV(b.LowNPV, b.LowStatus, currency),
 			High: factorValue(b.Factor, b.High), HighNPV: endNPV(b.HighNPV, b.HighStatus, currency),
 		}
-		switch {
-		case b.Swing != nil:
+		row.Swing = "no plan at one end"
+		if b.Swing != nil {
 			row.Swing = moneyCur(*b.Swing, currency)
-		default:
-			row.Swing = "no plan at one end"
 		}
 		tv.Rows = append(tv.Rows, row)
 	}
