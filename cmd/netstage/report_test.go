@@ -264,6 +264,19 @@ func TestReportTornado(t *testing.T) {
 	if strings.Contains(errOut, "tornado") {
 		t.Errorf("--quiet: stderr %q has tornado progress", errOut)
 	}
+	// The same case without the table: no section, no tornado solves.
+	data, err := os.ReadFile(path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	plain := filepath.Join(filepath.Dir(path), "plain.toml")
+	if err := os.WriteFile(plain, data[:bytes.Index(data, []byte("\n[report.tornado]"))], 0o644); err != nil {
+		t.Fatal(err)
+	}
+	code, out, errOut = runCLI("report", plain, "--out", filepath.Join(t.TempDir(), "plain.html"))
+	if code != exitOK || strings.Contains(errOut, "tornado") {
+		t.Errorf("report without [report.tornado]: exit %d, stderr %q", code, errOut)
+	}
 	code, out, errOut = runCLI("check", path)
 	if code != exitOK {
 		t.Fatalf("check: exit %d: %s", code, errOut)
