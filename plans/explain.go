@@ -7,6 +7,7 @@ import (
 	"time"
 
 	"netstage/mip"
+	"netstage/plans/numfmt"
 )
 
 // explainInfeasible solves elastic versions of c's model and lists every
@@ -46,7 +47,7 @@ func explainInfeasible(ctx context.Context, c *Case, limit time.Duration) ([]Inf
 		if x[s.col] <= valueTol {
 			continue
 		}
-		r := InfeasibilityRow{Kind: s.kind, Name: s.name, Amount: v}
+		r := InfeasibilityRow{Kind: s.kind, Name: s.name, Amount: v, Unit: UnitGbps}
 		if s.year >= 0 {
 			r.Year = c.Year(s.year)
 		}
@@ -56,15 +57,17 @@ func explainInfeasible(ctx context.Context, c *Case, limit time.Duration) ([]Inf
 		switch s.kind {
 		case InfeasibleDemand:
 			short[s.year] = true
-			r.Message = fmt.Sprintf("committed demand %s cannot be carried in %d: %.6g Gbps short", s.name, r.Year, v)
+			r.Message = fmt.Sprintf("committed demand %s cannot be carried in %d: %s Gbps short", s.name, r.Year, numfmt.Grouped(v, 1, "-"))
 		case InfeasibleBudget:
+			r.Unit = c.Currency
 			if s.name == "cumulative" {
-				r.Message = fmt.Sprintf("the cumulative capex budget would have to grow by %.0f %s", v, c.Currency)
+				r.Message = fmt.Sprintf("the cumulative capex budget would have to grow by %s %s", c.Currency, numfmt.Money(v))
 			} else {
-				r.Message = fmt.Sprintf("the %s capex budget would have to grow by %.0f %s", s.name, v, c.Currency)
+				r.Message = fmt.Sprintf("the %s capex budget would have to grow by %s %s", s.name, c.Currency, numfmt.Money(v))
 			}
 		case InfeasibleLink:
-			r.Message = fmt.Sprintf("link %s would need %.6g more slots", s.name, v)
+			r.Unit = UnitSlots
+			r.Message = fmt.Sprintf("link %s would need %s more slots", s.name, numfmt.Grouped(v, 0, "-"))
 		}
 		rows = append(rows, r)
 	}
@@ -107,8 +110,8 @@ const explainMoneyTol = 1
 // capacity (Gbps per direction) in a year.
 func InfeasibleLinkRow(link string, year int, capacity, ceiling float64) InfeasibilityRow {
 	return InfeasibilityRow{
-		Kind: InfeasibleLink, Name: link, Year: year, Amount: capacity,
-		Message: fmt.Sprintf("link %s is full in %d at its largest possible capacity, %.6g Gbps at a %.0f %% ceiling (unit limits, slots or lead times)", link, year, capacity, 100*ceiling),
+		Kind: InfeasibleLink, Name: link, Year: year, Amount: capacity, Unit: UnitGbpsMax,
+		Message: fmt.Sprintf("link %s is full in %d at its largest possible capacity, %s Gbps at a %.0f %% ceiling (unit limits, slots or lead times)", link, year, numfmt.Grouped(capacity, 1, "-"), 100*ceiling),
 	}
 }
 

@@ -519,7 +519,9 @@ func (m *Model) addPurchases() {
 				cols, vals = append(cols, o.col[o.lastOrder]), append(vals, float64(it.SlotsPerUnit))
 			}
 		}
-		if len(cols) > 1 { // a single item is already capped by its bound
+		// A single item is already capped by its bound, except in the
+		// elastic model, whose bounds ignore slots so that they can give.
+		if len(cols) > 1 || (m.opts.elastic && len(cols) == 1) {
 			m.LP.AddRow(fmt.Sprintf("slots_%s", link.ID), -lp.Inf, float64(link.Slots), cols, vals)
 		}
 	}

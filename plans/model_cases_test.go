@@ -175,15 +175,36 @@ func TestInfeasibleExplained(t *testing.T) {
 		}
 		var demand, link bool
 		for _, r := range res.Infeasibility {
-			if r.Kind == InfeasibleDemand && r.Name == "A-B" && near(r.Amount, 10, 1e-6) {
+			if r.Kind == InfeasibleDemand && r.Name == "A-B" && near(r.Amount, 10, 1e-6) && r.Unit == UnitGbps {
 				demand = true
 			}
-			if r.Kind == InfeasibleLink && r.Name == "L" && near(r.Amount, 20, 1e-9) {
+			if r.Kind == InfeasibleLink && r.Name == "L" && near(r.Amount, 20, 1e-9) && r.Unit == UnitGbpsMax {
 				link = true
 			}
 		}
 		if !demand || !link {
 			t.Errorf("infeasibility %+v: want demand A-B short 10 Gbps and link L full at 20 Gbps", res.Infeasibility)
+		}
+	})
+	t.Run("slots", func(t *testing.T) {
+		// Two 10 Gbps modules needed (10 installed, 30 committed), each
+		// taking 2 slots of a link with 3: one slot short, for no year.
+		c := newCase(2, fpRate, "A", "B")
+		l := c.testLink("L", "A", "B", 100, 10, 1)
+		l.Slots = 3
+		c.testDemand("A", "B", 30, 30, 50)
+		c.testVendor("V")
+		c.testItem(testItem{id: "M", vendor: "V", gbps: fpGbps, capex: fpCapex, life: fpLife, maxUnits: 2, slotsPerUnit: 2})
+		res, err := Solve(context.Background(), c, SolveOptions{})
+		if err != nil {
+			t.Fatal(err)
+		}
+		if res.Status != StatusInfeasible || len(res.Infeasibility) != 1 {
+			t.Fatalf("status %s, %+v: want infeasible with one cause", res.Status, res.Infeasibility)
+		}
+		r := res.Infeasibility[0]
+		if r.Kind != InfeasibleLink || r.Name != "L" || r.Year != 0 || !near(r.Amount, 1, 1e-6) || r.Unit != UnitSlots {
+			t.Errorf("cause %+v, want link L one slot short", r)
 		}
 	})
 	t.Run("budget", func(t *testing.T) {
@@ -201,7 +222,8 @@ func TestInfeasibleExplained(t *testing.T) {
 			t.Fatalf("status %s, %+v: want infeasible with one cause", res.Status, res.Infeasibility)
 		}
 		r := res.Infeasibility[0]
-		if r.Kind != InfeasibleBudget || r.Year != 2030 || !near(r.Amount, 4000, 1e-6) || !strings.Contains(r.Message, "2030") {
+		if r.Kind != InfeasibleBudget || r.Year != 2030 || !near(r.Amount, 4000, 1e-6) || r.Unit != "EUR" ||
+			!strings.Contains(r.Message, "2030") || !strings.Contains(r.Message, "EUR 4,000") {
 			t.Errorf("cause %+v, want the 2030 budget short by 4000", r)
 		}
 	})

@@ -235,12 +235,26 @@ const (
 // Amount is by how much the named limit would have to give (Gbps for a
 // demand or link, case currency for a budget).
 type InfeasibilityRow struct {
-	Kind    string  `json:"kind"` // InfeasibleDemand, InfeasibleLink or InfeasibleBudget
-	Name    string  `json:"name"` // demand or link id; "cumulative" for the cumulative budget
-	Year    int     `json:"year"`
+	Kind string `json:"kind"` // InfeasibleDemand, InfeasibleLink or InfeasibleBudget
+	Name string `json:"name"` // demand or link id; "cumulative" for the cumulative budget
+	// Year is the calendar year the limit binds in; 0 for a limit that is
+	// not for one year (slots, the cumulative budget).
+	Year int `json:"year"`
+	// Amount is how far the limit falls short, in Unit: Gbps of committed
+	// demand not carried (UnitGbps), money the budget lacks (the case
+	// currency), slots a link lacks (UnitSlots); for a link full at its
+	// largest possible capacity, that capacity (UnitGbpsMax).
 	Amount  float64 `json:"amount"`
+	Unit    string  `json:"unit"`
 	Message string  `json:"message"`
 }
+
+// Units of InfeasibilityRow.Amount besides a currency code.
+const (
+	UnitGbps    = "Gbps"     // Gbps short
+	UnitSlots   = "slots"    // slots short
+	UnitGbpsMax = "Gbps max" // the largest possible capacity of a full link
+)
 
 // SolverStats describes the solve.
 type SolverStats struct {

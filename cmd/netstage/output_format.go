@@ -9,6 +9,8 @@ import (
 	"math"
 	"strconv"
 	"strings"
+
+	"netstage/plans/numfmt"
 )
 
 // Decimals of each kind of number in JSON and CSV.
@@ -36,25 +38,9 @@ func gapText(v float64) string {
 }
 
 // money formats a currency amount for the terminal: whole units with
-// thousands separators ("-1,234,567").
+// thousands separators ("-1,234,567"), halves rounded away from zero.
 func money(v float64) string {
-	r := math.Round(v)
-	if r == 0 {
-		return "0"
-	}
-	neg := r < 0
-	digits := strconv.FormatFloat(math.Abs(r), 'f', 0, 64)
-	var b strings.Builder
-	if neg {
-		b.WriteByte('-')
-	}
-	for i, d := range digits {
-		if i > 0 && (len(digits)-i)%3 == 0 {
-			b.WriteByte(',')
-		}
-		b.WriteRune(d)
-	}
-	return b.String()
+	return numfmt.Money(math.Round(v))
 }
 
 // percent formats a fraction as a percentage with one decimal ("13.1 %").

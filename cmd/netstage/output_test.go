@@ -139,15 +139,18 @@ func TestWriteTextSectionsInOrder(t *testing.T) {
 func TestWriteTextInfeasible(t *testing.T) {
 	r := &plans.Result{Case: "x", Currency: "USD", Status: plans.StatusInfeasible,
 		Infeasibility: []plans.InfeasibilityRow{
-			{Kind: plans.InfeasibleBudget, Name: "yearly", Year: 2027, Amount: 25000, Message: "the 2027 budget is 25,000 short"},
-			{Kind: plans.InfeasibleDemand, Name: "A-B", Year: 2028, Amount: 3.5, Message: "committed A-B cannot be carried"},
+			{Kind: plans.InfeasibleBudget, Name: "yearly", Year: 2027, Amount: 25000, Unit: "USD", Message: "the 2027 budget is 25,000 short"},
+			{Kind: plans.InfeasibleDemand, Name: "A-B", Year: 2028, Amount: 3.5, Unit: plans.UnitGbps, Message: "committed A-B cannot be carried"},
+			{Kind: plans.InfeasibleLink, Name: "L", Amount: 2, Unit: plans.UnitSlots, Message: "link L would need 2 more slots"},
+			{Kind: plans.InfeasibleLink, Name: "M", Year: 2028, Amount: 400, Unit: plans.UnitGbpsMax, Message: "link M is full"},
 		}}
 	var buf bytes.Buffer
 	if err := writeText(&buf, r, textOptions{}); err != nil {
 		t.Fatal(err)
 	}
 	out := buf.String()
-	for _, want := range []string{"infeasible", "Why no plan exists", "25,000", "3.5 Gbps", "committed A-B"} {
+	for _, want := range []string{"infeasible", "Why no plan exists", "USD 25,000 short", "3.5 Gbps short", "committed A-B",
+		"all years  2 slots short", "400.0 Gbps at most"} {
 		if !strings.Contains(out, want) {
 			t.Errorf("report lacks %q:\n%s", want, out)
 		}

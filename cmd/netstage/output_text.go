@@ -7,6 +7,7 @@ import (
 	"bytes"
 	"fmt"
 	"io"
+	"strconv"
 	"strings"
 	"text/tabwriter"
 
@@ -183,13 +184,24 @@ func writeInfeasibility(w io.Writer, r *plans.Result) {
 		return
 	}
 	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', 0)
-	fmt.Fprintln(tw, "  what\tname\tyear\tshort by\texplanation")
+	fmt.Fprintln(tw, "  what\tname\tyear\tamount\texplanation")
 	for _, x := range r.Infeasibility {
-		amount := gbpsText(x.Amount) + " Gbps"
-		if x.Kind == plans.InfeasibleBudget {
-			amount = money(x.Amount)
+		var amount string
+		switch x.Unit {
+		case plans.UnitGbps:
+			amount = gbpsText(x.Amount) + " Gbps short"
+		case plans.UnitSlots:
+			amount = money(x.Amount) + " slots short"
+		case plans.UnitGbpsMax:
+			amount = gbpsText(x.Amount) + " Gbps at most"
+		default: // a currency
+			amount = x.Unit + " " + money(x.Amount) + " short"
 		}
-		fmt.Fprintf(tw, "  %s\t%s\t%d\t%s\t%s\n", x.Kind, x.Name, x.Year, amount, x.Message)
+		year := "all years"
+		if x.Year != 0 {
+			year = strconv.Itoa(x.Year)
+		}
+		fmt.Fprintf(tw, "  %s\t%s\t%s\t%s\t%s\n", x.Kind, x.Name, year, amount, x.Message)
 	}
 	tw.Flush()
 }
