@@ -27,6 +27,10 @@ func init() { registerCommand(newCompareCmd) }
 // tests can put a stand-in with a closed form behind the output formats).
 var scenarioSolve = plans.Solve
 
+// scenarioEvaluate values the base plan in each scenario of a sweep (its
+// regret); tests with the stand-in solve put a matching stand-in here.
+var scenarioEvaluate scenario.EvaluateFunc = plans.Evaluate
+
 // compareOptions are the compare command's flags and argument.
 type compareOptions struct {
 	casePath    string

@@ -96,9 +96,13 @@ func fakeRevenueOnly(c *plans.Case) *plans.Result {
 // withFakeSolve puts fakeScenarioSolve behind compare and sweep for one test.
 func withFakeSolve(t *testing.T) {
 	t.Helper()
-	saved := scenarioSolve
+	saved, savedEval := scenarioSolve, scenarioEvaluate
 	scenarioSolve = fakeScenarioSolve
-	t.Cleanup(func() { scenarioSolve = saved })
+	// The regret of the stand-in's plans, valued by the same closed form.
+	scenarioEvaluate = scenario.FixedPlanEvaluator(func(ctx context.Context, c *plans.Case) (*plans.Result, error) {
+		return fakeScenarioSolve(ctx, c, plans.SolveOptions{})
+	})
+	t.Cleanup(func() { scenarioSolve, scenarioEvaluate = saved, savedEval })
 }
 
 // TestCompareDemoGolden is a regression guard on the compare outputs of the

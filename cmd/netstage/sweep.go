@@ -189,7 +189,7 @@ func runSweep(ctx context.Context, env *cmdEnv, opts *sweepOptions) error {
 		}
 	}
 	if !opts.noRegret {
-		ro.Evaluate = scenario.FixedPlanEvaluator(solve)
+		ro.Evaluate = scenarioEvaluate
 	}
 	out, err := scenario.Run(ctx, c, grid, ro)
 	if err != nil {

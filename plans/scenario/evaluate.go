@@ -27,6 +27,12 @@ import (
 // back (a test checks it), which ties these rules to the model's. The
 // Result has no baseline or incremental figures (its solve's "baseline"
 // already had the purchases).
+//
+// The sweep command values plans with plans.Evaluate, which reuses the
+// model and its pricing code. This evaluator keeps its own rules on
+// purpose: it is the independent check of plans.Evaluate (a test requires
+// both to agree in every scenario), and it works with any SolveFunc,
+// such as the closed-form stand-ins of the command's golden tests.
 func FixedPlanEvaluator(solve SolveFunc) EvaluateFunc {
 	return func(ctx context.Context, c *plans.Case, purchases []plans.PlanRow) (*plans.Result, error) {
 		return evaluateFixed(ctx, c, purchases, solve)
