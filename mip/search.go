@@ -108,6 +108,15 @@ func (s *search) run(starts [][]float64) Result {
 		}
 		s.rootBound = p.roundBound(r.Objective)
 		s.curBound = s.rootBound
+		if s.nCuts > 0 {
+			// The cuts moved the LP point towards the integer hull: round
+			// it again (on large models the tree may not reach the next
+			// heuristic call before the time limit).
+			if !s.set.NoHeuristics {
+				s.simpleRounding(r.X, true)
+			}
+			s.callHeuristic(r.X)
+		}
 	}
 	s.rootObj = r.Objective
 	s.rootRedCst = append([]float64(nil), r.ReducedCost...)

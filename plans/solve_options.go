@@ -10,6 +10,9 @@ type SolveOptions struct {
 	// When it is hit, Solve returns the best plan found with status
 	// feasible and its gap.
 	TimeLimit time.Duration
+	// NodeLimit stops the search after this many nodes (0: no limit), for
+	// benchmarks that compare work rather than time.
+	NodeLimit int
 	// Gap is the relative gap at which a plan counts as optimal
 	// (0: the default 1e-4; checks against other solvers use 1e-9).
 	Gap float64
