@@ -151,7 +151,7 @@ const htmlSource = `<!DOCTYPE html>
 {{range .Text}}<p>{{.}}</p>{{end}}
 </div>
 {{else}}<p>The plan buys nothing, so there is nothing to justify.</p>
-{{end}}<p class="note">The solved plan does not list which demands use which link; the report names the demands whose shortest route (by km) runs over the link, which is where traffic goes when capacity allows.</p>
+{{end}}<p class="note">The demands named are those the solved plan routes over the link (of the routings with the plan's NPV, the one with the fewest Gbps·km), in the direction from the demand's first site to its second.</p>
 </section>
 {{with .Tornado}}
 <section id="tornado">

@@ -153,7 +153,7 @@ func writeMarkdown(w io.Writer, v *view) error {
 			}
 			m.printf("\n%s\n\n", strings.Join(w.Text, " "))
 		}
-		m.printf("The solved plan does not list which demands use which link; the report names the demands whose shortest route (by km) runs over the link, which is where traffic goes when capacity allows.\n\n")
+		m.printf("The demands named are those the solved plan routes over the link (of the routings with the plan's NPV, the one with the fewest Gbps·km), in the direction from the demand's first site to its second.\n\n")
 		if tv := v.Tornado; tv != nil {
 			m.printf("## Sensitivity: one assumption at a time\n\n%s The HTML report draws these figures as a tornado chart.\n\n", tv.Intro)
 			m.head("Assumption", ">Case value", ">Low value", ">NPV at low", ">High value", ">NPV at high", ">Swing")

@@ -3,6 +3,7 @@ package report
 import (
 	"fmt"
 	"math"
+	"slices"
 	"sort"
 	"strconv"
 	"strings"
@@ -665,16 +666,15 @@ func whys(c *plans.Case, r *plans.Result) []why {
 		}
 		out[i].Purchases = append(out[i].Purchases, line)
 	}
-	routes := shortestRoutes(c, r)
 	for i := range out {
 		w := &out[i]
-		w.Text = linkReasons(c, r, w.Link, routes)
+		w.Text = linkReasons(c, r, w.Link)
 	}
 	return out
 }
 
 // linkReasons gives the facts behind the upgrades of one link.
-func linkReasons(c *plans.Case, r *plans.Result, link string, routes map[string][]string) []string {
+func linkReasons(c *plans.Case, r *plans.Result, link string) []string {
 	cur := r.Currency
 	var text []string
 	var ceilingYear int
@@ -716,9 +716,27 @@ func linkReasons(c *plans.Case, r *plans.Result, link string, routes map[string]
 	} else {
 		text = append(text, "After the plan one more Gbps on this link adds no NPV: its capacity no longer limits the plan.")
 	}
-	carried := routes[link]
-	if len(carried) > 0 {
-		text = append(text, "Demands whose shortest route uses this link: "+strings.Join(carried, ", ")+".")
+	// The demands the plan's routing sends over the link in its busiest
+	// year after the upgrade (the last year when it never gets busy).
+	year := peakYear
+	if year == 0 {
+		year = c.FirstYear + c.Horizon - 1
+	}
+	var parts []string
+	for _, dl := range routedOver(r, link, year) {
+		parts = append(parts, dl.Demand+" "+gbps(dl.Gbps))
+	}
+	if len(parts) > 0 {
+		text = append(text, fmt.Sprintf("In %d the plan routes over this link: %s.", year, strings.Join(parts, ", ")))
+	}
+	// The demands it carries in any year from the upgrade on.
+	var carried []string
+	for y := max(inService, c.FirstYear); y < c.FirstYear+c.Horizon; y++ {
+		for _, dl := range routedOver(r, link, y) {
+			if !slices.Contains(carried, dl.Demand) {
+				carried = append(carried, dl.Demand)
+			}
+		}
 	}
 	// At risk without the plan: baseline shortfall of those demands.
 	on := map[string]bool{}
@@ -753,77 +771,39 @@ func linkReasons(c *plans.Case, r *plans.Result, link string, routes map[string]
 	return text
 }
 
-// shortestRoutes maps each link to the demands whose shortest route (by
-// km, over links with capacity after the plan in the last year) uses it.
-// The Result does not carry per-link flows, so the report names the
-// demands on the shortest route, which is where the solver's tie-break
-// (fewest Gbps·km) sends traffic when capacity allows.
-func shortestRoutes(c *plans.Case, r *plans.Result) map[string][]string {
-	n := len(c.Sites)
-	up := map[string]bool{}
-	lastYear := c.FirstYear + c.Horizon - 1
-	for _, ly := range r.Links {
-		if ly.Year == lastYear && ly.CapacityAfter > 0 {
-			up[ly.Link] = true
-		}
-	}
-	type edge struct {
-		to   int
-		km   float64
-		link string
-	}
-	adj := make([][]edge, n)
-	for _, l := range c.Links {
-		if !up[l.ID] || l.A < 0 || l.B < 0 || l.A >= n || l.B >= n {
+// routedOver returns the demands the solved routing sends over link in
+// year (Result.Routes: each demand's traffic from its From to its To site),
+// with their Gbps, widest first.
+func routedOver(r *plans.Result, link string, year int) []demandLoad {
+	load := map[string]float64{}
+	for _, rt := range r.Routes {
+		if rt.Year != year {
 			continue
 		}
-		km := l.KM
-		if km <= 0 {
-			km = 1
-		}
-		adj[l.A] = append(adj[l.A], edge{l.B, km, l.ID})
-		adj[l.B] = append(adj[l.B], edge{l.A, km, l.ID})
-	}
-	out := map[string][]string{}
-	for _, d := range c.Demands {
-		// Dijkstra on a small graph: O(n²) is fine for planning cases.
-		dist := make([]float64, n)
-		via := make([]int, n)
-		prevLink := make([]string, n)
-		done := make([]bool, n)
-		for i := range dist {
-			dist[i] = math.Inf(1)
-			via[i] = -1
-		}
-		dist[d.A] = 0
-		for {
-			u := -1
-			for i := 0; i < n; i++ {
-				if !done[i] && !math.IsInf(dist[i], 1) && (u < 0 || dist[i] < dist[u]) {
-					u = i
-				}
-			}
-			if u < 0 || u == d.B {
+		for _, l := range rt.Links {
+			if l == link {
+				load[rt.Demand] += rt.Gbps
 				break
 			}
-			done[u] = true
-			for _, e := range adj[u] {
-				if nd := dist[u] + e.km; nd < dist[e.to]-1e-9 {
-					dist[e.to], via[e.to], prevLink[e.to] = nd, u, e.link
-				}
-			}
-		}
-		if math.IsInf(dist[d.B], 1) {
-			continue
-		}
-		for v := d.B; v != d.A; v = via[v] {
-			out[prevLink[v]] = append(out[prevLink[v]], d.ID)
 		}
 	}
-	for k := range out {
-		sort.Strings(out[k])
+	out := make([]demandLoad, 0, len(load))
+	for d, g := range load {
+		out = append(out, demandLoad{Demand: d, Gbps: g})
 	}
+	sort.Slice(out, func(a, b int) bool {
+		if out[a].Gbps != out[b].Gbps {
+			return out[a].Gbps > out[b].Gbps
+		}
+		return out[a].Demand < out[b].Demand
+	})
 	return out
+}
+
+// demandLoad is a demand's traffic over one link in one year.
+type demandLoad struct {
+	Demand string
+	Gbps   float64
 }
 
 // utilGrid is the Markdown form of the utilisation chart: "before → after".
