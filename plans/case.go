@@ -2,6 +2,8 @@ package plans
 
 import (
 	"math"
+	"sort"
+	"strings"
 	"time"
 )
 
@@ -510,6 +512,37 @@ func (c *Case) VendorChoiceGroup(class string) (group string, ok bool) {
 		return class, true
 	}
 	return "", true
+}
+
+// VendorPolicy describes the case's vendor restrictions in words ("" when
+// every vendor may be used everywhere): "metro links only polaris; one
+// vendor per link class for the others, chosen by netstage".
+func (c *Case) VendorPolicy() string {
+	var parts []string
+	if c.VendorOnly != "" {
+		parts = append(parts, "only "+c.VendorOnly)
+	}
+	classes := make([]string, 0, len(c.ClassVendor))
+	for k := range c.ClassVendor {
+		classes = append(classes, k)
+	}
+	sort.Strings(classes)
+	for _, k := range classes {
+		parts = append(parts, k+" links only "+c.ClassVendor[k])
+	}
+	if c.OneVendor != "" && c.VendorOnly == "" {
+		others := ""
+		if len(classes) > 0 {
+			others = " for the other classes"
+		}
+		switch c.OneVendor {
+		case OneVendorPerClass:
+			parts = append(parts, "one vendor per link class"+others+", chosen by netstage")
+		case OneVendorNetwork:
+			parts = append(parts, "one vendor"+others+", chosen by netstage")
+		}
+	}
+	return strings.Join(parts, "; ")
 }
 
 // VendorIndex returns the index of the vendor with id, or −1.

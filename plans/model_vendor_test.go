@@ -226,3 +226,32 @@ func TestSetVendorChoice(t *testing.T) {
 		t.Error("two vendors in one group accepted")
 	}
 }
+
+func TestVendorPolicyText(t *testing.T) {
+	tests := []struct {
+		name string
+		c    Case
+		want string
+	}{
+		{"none", Case{}, ""},
+		{"named", Case{VendorOnly: "v"}, "only v"},
+		{"classes", Case{ClassVendor: map[string]string{"metro": "a", "core": "b"}}, "core links only b; metro links only a"},
+		{"per class", Case{OneVendor: OneVendorPerClass}, "one vendor per link class, chosen by netstage"},
+		{"network with a class named", Case{OneVendor: OneVendorNetwork, ClassVendor: map[string]string{"metro": "a"}},
+			"metro links only a; one vendor for the other classes, chosen by netstage"},
+		{"named wins", Case{OneVendor: OneVendorNetwork, VendorOnly: "v"}, "only v"},
+	}
+	for _, tc := range tests {
+		if got := tc.c.VendorPolicy(); got != tc.want {
+			t.Errorf("%s: %q, want %q", tc.name, got, tc.want)
+		}
+	}
+	r := &Result{VendorChoice: []VendorChoice{{"core", "b"}, {"metro", ""}}}
+	if got, want := r.VendorChoiceText(), "core: b; metro: none bought (one vendor per link class)"; got != want {
+		t.Errorf("VendorChoiceText %q, want %q", got, want)
+	}
+	r = &Result{VendorChoice: []VendorChoice{{"", "a"}}}
+	if got, want := r.VendorChoiceText(), "a (one vendor for the whole network)"; got != want {
+		t.Errorf("VendorChoiceText %q, want %q", got, want)
+	}
+}

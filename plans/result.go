@@ -1,5 +1,7 @@
 package plans
 
+import "strings"
+
 // This file holds the types of a solved plan. The solve and export commands
 // print them as terminal tables, JSON and CSV; the JSON tags are the stable
 // schema of DESIGN.md §4.
@@ -264,4 +266,31 @@ type SolverStats struct {
 	Nodes      int     `json:"nodes"`
 	Iterations int     `json:"iterations"`
 	Seconds    float64 `json:"seconds"`
+}
+
+// VendorChoiceText says which vendor the optimiser chose for each group of
+// links under [case] one_vendor ("" without one): "brightwave (one vendor
+// for the whole network)" or "core: brightwave; metro: none bought (one
+// vendor per link class)".
+func (r *Result) VendorChoiceText() string {
+	if len(r.VendorChoice) == 0 {
+		return ""
+	}
+	parts := make([]string, len(r.VendorChoice))
+	for i, ch := range r.VendorChoice {
+		v := ch.Vendor
+		if v == "" {
+			v = "none bought"
+		}
+		if ch.Class == "" {
+			parts[i] = v + " (one vendor for the whole network)"
+		} else {
+			parts[i] = ch.Class + ": " + v
+		}
+	}
+	s := strings.Join(parts, "; ")
+	if len(r.VendorChoice) > 1 || r.VendorChoice[0].Class != "" {
+		s += " (one vendor per link class)"
+	}
+	return s
 }

@@ -100,7 +100,7 @@ func writeCaseSummary(w io.Writer, c *plans.Case, demo bool) {
 	fmt.Fprintf(tw, "ceiling\t%s, capacity ready by month %d\n", ceilingText(c), c.ReadyByMonth)
 	fmt.Fprintf(tw, "finance\tsalvage %s, tax rate %.2f %%, SLA penalty %s per Gbps-month\n",
 		c.Finance.Salvage, 100*c.Finance.TaxRate, money(c.SLAPenalty))
-	if r := vendorRestrictionText(c); r != "" {
+	if r := c.VendorPolicy(); r != "" {
 		fmt.Fprintf(tw, "vendors\t%s\n", r)
 	}
 	fmt.Fprintf(tw, "sites\t%d\n", len(c.Sites))
@@ -204,24 +204,6 @@ func writeCaseSummary(w io.Writer, c *plans.Case, demo bool) {
 			tw.Flush()
 		}
 	}
-}
-
-// vendorRestrictionText describes the case's vendor restriction, or "" when
-// every vendor may be used everywhere.
-func vendorRestrictionText(c *plans.Case) string {
-	var parts []string
-	if c.VendorOnly != "" {
-		parts = append(parts, "only "+c.VendorOnly)
-	}
-	classes := make([]string, 0, len(c.ClassVendor))
-	for k := range c.ClassVendor {
-		classes = append(classes, k)
-	}
-	sort.Strings(classes)
-	for _, k := range classes {
-		parts = append(parts, fmt.Sprintf("%s links only %s", k, c.ClassVendor[k]))
-	}
-	return strings.Join(parts, ", ")
 }
 
 // ceilingText describes the utilisation ceilings in percent.

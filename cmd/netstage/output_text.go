@@ -156,7 +156,7 @@ func writeSummary(w io.Writer, r *plans.Result, opts textOptions) {
 	row("profitability index", pi)
 	row("total capex", money(r.TotalCapex))
 	if len(r.VendorChoice) > 0 {
-		row("vendor chosen", vendorChoiceText(r.VendorChoice))
+		row("vendor chosen", r.VendorChoiceText())
 	}
 	if r.Bound != nil {
 		bound := *r.Bound
@@ -337,27 +337,4 @@ func writeShortfallTable(w io.Writer, r *plans.Result) {
 			money(s.Penalty), money(s.RevenueAtRisk))
 	}
 	tw.Flush()
-}
-
-// vendorChoiceText says which vendor the optimiser chose for each group of
-// links under [case] one_vendor: "brightwave (whole network)" or
-// "core: brightwave; metro: none bought".
-func vendorChoiceText(choices []plans.VendorChoice) string {
-	parts := make([]string, len(choices))
-	for i, ch := range choices {
-		v := ch.Vendor
-		if v == "" {
-			v = "none bought"
-		}
-		if ch.Class == "" {
-			parts[i] = v + " (one vendor for the whole network)"
-		} else {
-			parts[i] = ch.Class + ": " + v
-		}
-	}
-	s := strings.Join(parts, "; ")
-	if len(choices) > 1 || choices[0].Class != "" {
-		s += " (one vendor per link class)"
-	}
-	return s
 }

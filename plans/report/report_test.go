@@ -682,3 +682,22 @@ func TestOrderableYears(t *testing.T) {
 		}
 	}
 }
+
+// TestVendorPolicyShown: a case where netstage picks the vendor says so
+// among the assumptions, with the vendor the plan chose.
+func TestVendorPolicyShown(t *testing.T) {
+	c, r := solvedDemo(t)
+	cc := *c
+	cc.OneVendor = plans.OneVendorPerClass
+	rr := *r
+	rr.VendorChoice = []plans.VendorChoice{{Class: "core", Vendor: "brightwave"}, {Class: "metro", Vendor: ""}}
+	md := render(t, &cc, &rr, Markdown)
+	for _, want := range []string{"one vendor per link class, chosen by netstage", "core: brightwave; metro: none bought"} {
+		if !strings.Contains(md, want) {
+			t.Errorf("assumptions lack %q", want)
+		}
+	}
+	if strings.Contains(render(t, c, r, Markdown), "Vendor chosen") {
+		t.Error("a case without one_vendor reports a vendor chosen")
+	}
+}

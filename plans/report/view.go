@@ -137,6 +137,9 @@ func buildView(c *plans.Case, r *plans.Result) (*view, error) {
 	v.Why = whys(c, r)
 	v.UtilYears, v.UtilRows = utilGrid(c, r)
 	v.Assumptions = assumptions(c)
+	if t := r.VendorChoiceText(); t != "" {
+		v.Assumptions = append(v.Assumptions, pair{"Vendor chosen", t})
+	}
 	v.Budgets = budgets(c, r)
 	v.Demands = demands(c)
 	v.Vendors, v.Items = catalogs(c)
@@ -876,27 +879,10 @@ func assumptions(c *plans.Case) []pair {
 	if c.PricesRollForward {
 		p = append(p, pair{"Expired quotes", "used anyway, prices rolled forward (check with the vendors)"})
 	}
-	if v := vendorRestriction(c); v != "" {
+	if v := c.VendorPolicy(); v != "" {
 		p = append(p, pair{"Vendor restriction", v})
 	}
 	return p
-}
-
-// vendorRestriction describes the case's vendor restriction, or "".
-func vendorRestriction(c *plans.Case) string {
-	var parts []string
-	if c.VendorOnly != "" {
-		parts = append(parts, "only items of "+c.VendorOnly)
-	}
-	classes := make([]string, 0, len(c.ClassVendor))
-	for k := range c.ClassVendor {
-		classes = append(classes, k)
-	}
-	sort.Strings(classes)
-	for _, k := range classes {
-		parts = append(parts, "links of class "+k+": only "+c.ClassVendor[k])
-	}
-	return strings.Join(parts, "; ")
 }
 
 // orderableYears says in which years an item may be ordered (its quote's
