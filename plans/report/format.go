@@ -4,6 +4,8 @@ import (
 	"math"
 	"strconv"
 	"strings"
+
+	"netstage/plans/numfmt"
 )
 
 // minus is the sign printed before negative numbers: U+2212 reads better
@@ -14,50 +16,10 @@ const minus = "\u2212"
 // currency unit: the tables round to whole units, and "−0" reads badly).
 const zeroMoney = 0.5
 
-// groupThousands inserts commas every three digits of an unsigned string
-// of digits.
-func groupThousands(digits string) string {
-	n := len(digits)
-	if n <= 3 {
-		return digits
-	}
-	var b strings.Builder
-	head := n % 3
-	if head > 0 {
-		b.WriteString(digits[:head])
-	}
-	for i := head; i < n; i += 3 {
-		if b.Len() > 0 {
-			b.WriteByte(',')
-		}
-		b.WriteString(digits[i : i+3])
-	}
-	return b.String()
-}
-
 // formatFixed formats v with decimals digits after the point, thousands
-// separators and the minus sign; a value that rounds to zero prints without
-// a sign.
+// separators and the minus sign (plans/numfmt).
 func formatFixed(v float64, decimals int) string {
-	if math.IsNaN(v) {
-		return "n/a"
-	}
-	if math.IsInf(v, 0) {
-		if v > 0 {
-			return "unlimited"
-		}
-		return minus + "unlimited"
-	}
-	s := strconv.FormatFloat(math.Abs(v), 'f', decimals, 64)
-	intPart, frac, _ := strings.Cut(s, ".")
-	out := groupThousands(intPart)
-	if decimals > 0 {
-		out += "." + frac
-	}
-	if v < 0 && strings.Trim(s, "0.") != "" {
-		out = minus + out
-	}
-	return out
+	return numfmt.Grouped(v, decimals, minus)
 }
 
 // money formats an amount in whole currency units with thousands
