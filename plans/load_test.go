@@ -687,6 +687,28 @@ func TestReadmeExample(t *testing.T) {
 			t.Errorf("forecast[%d]: got %v, want %v", i, c.Demands[0].Forecast[i], w)
 		}
 	}
+	if len(c.Tornado) != 2 {
+		t.Errorf("tornado factors %v, want the README's two", c.Tornado)
+	}
+	// The file is the README's first TOML block (after its own two-line
+	// header), so that the two cannot drift apart.
+	readme, err := os.ReadFile("../README.md")
+	if err != nil {
+		t.Fatal(err)
+	}
+	_, block, ok := strings.Cut(string(readme), "```toml\n")
+	block, _, ok2 := strings.Cut(block, "```")
+	if !ok || !ok2 {
+		t.Fatal("README has no TOML block")
+	}
+	file, err := os.ReadFile("../testdata/example/case.toml")
+	if err != nil {
+		t.Fatal(err)
+	}
+	lines := strings.SplitN(string(file), "\n", 3)
+	if len(lines) < 3 || lines[2] != block {
+		t.Error("testdata/example/case.toml (after its two header lines) differs from the README's first TOML block: change both together")
+	}
 }
 
 // TestTornadoKey checks that [report.tornado] is read into Case.Tornado,
