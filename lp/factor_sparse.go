@@ -34,6 +34,35 @@ type sparseScratch struct {
 	stack []int
 	out   []int
 	start []int
+	// Running shares of recent attempts whose reach overflowed, for the
+	// ftran U pass and the btran Lᵀ pass; above overflowSkip the sparse
+	// attempt is skipped (except every retryEvery-th call, to notice when
+	// the vectors become sparse again).
+	overU, overLt float64
+	callsU        int
+	callsLt       int
+}
+
+const (
+	overflowDecay = 0.05
+	overflowSkip  = 0.5
+	retryEvery    = 16
+)
+
+// tryStage reports whether a stage with running overflow share *over and
+// call counter *calls should attempt its sparse pass.
+func tryStage(over *float64, calls *int) bool {
+	*calls++
+	return *over <= overflowSkip || *calls%retryEvery == 0
+}
+
+// noteStage records whether an attempted sparse pass overflowed.
+func noteStage(over *float64, overflowed bool) {
+	v := 0.0
+	if overflowed {
+		v = 1
+	}
+	*over += overflowDecay * (v - *over)
 }
 
 // nextGen starts a new marking round.
@@ -169,8 +198,14 @@ func (f *factor) ftranSparse(b []float64, nz []int) []int {
 	}
 	// U pass, backwards: step k reaches the earlier steps whose rows
 	// have an entry in its column.
+	if !tryStage(&sc.overU, &sc.callsU) {
+		f.ftranU(b)
+		return nil
+	}
 	start = append(start[:0], sc.steps...)
-	if !f.reach(start, limit, &f.gU) {
+	ok := f.reach(start, limit, &f.gU)
+	noteStage(&sc.overU, !ok)
+	if !ok {
 		f.ftranU(b)
 		return nil
 	}
@@ -274,8 +309,14 @@ func (f *factor) btranSparse(d []float64, nz []int) []int {
 	}
 	// Lᵀ pass, backwards: row pivRow[k] reaches the earlier steps whose
 	// multipliers touch it.
+	if !tryStage(&sc.overLt, &sc.callsLt) {
+		f.btranFromL(d)
+		return nil
+	}
 	start = append(start[:0], sc.steps...)
-	if !f.reach(start, limit, &f.gLt) {
+	ok := f.reach(start, limit, &f.gLt)
+	noteStage(&sc.overLt, !ok)
+	if !ok {
 		f.btranFromL(d)
 		return nil
 	}
