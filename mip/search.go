@@ -76,6 +76,7 @@ func (s *search) run(starts [][]float64) Result {
 
 	// Root LP.
 	r := s.lpSolve(inf, 0)
+	s.lpSolved = r.Status == lp.Optimal
 	s.nodes = 1
 	switch r.Status {
 	case lp.Optimal:
@@ -373,6 +374,13 @@ func (s *search) complete(y []float64) ([]float64, bool) {
 			return nil, false
 		}
 		s.completion = c
+		if s.lps != nil && s.lps.NumRows() == p.work.NumRows() && s.lpSolved {
+			// Start from the relaxation's last basis (no cuts in it yet, so
+			// it fits): fixing the integer columns keeps it dual feasible,
+			// and the dual simplex repairs the rounding in a few pivots
+			// where the slack basis would solve the whole LP again.
+			_ = c.SetBasis(s.lps.Basis())
+		}
 	}
 	for j := 0; j < p.n; j++ {
 		if p.isInt[j] {

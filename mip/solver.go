@@ -132,6 +132,7 @@ type search struct {
 	nodeIters    float64 // running mean of LP iterations per node
 
 	completion *lp.Solver // LP over the continuous columns, for candidate completion
+	lpSolved   bool       // the root LP was solved to optimality (its basis is worth reusing)
 }
 
 func newSearch(ctx context.Context, m *lp.Model, set Settings) *search {
