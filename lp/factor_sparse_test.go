@@ -58,7 +58,7 @@ func TestSparseSolvesMatchDense(t *testing.T) {
 	}
 	sparseF, sparseB := 0, 0
 	for trial := 0; trial < trials; trial++ {
-		m := 400 + rng.Intn(800)
+		m := hyperMinRows + rng.Intn(2000)
 		// Odd trials are denser: their reach overflows and the sparse
 		// solves fall back to the dense ones half-way.
 		share := 0.8
