@@ -11,8 +11,13 @@ const heuristicIntTol = 1e-6
 // roundingThresholds are the fractional parts from which the heuristic
 // rounds a unit count up (0: always, as the capacity the LP routed needs;
 // larger: round slivers down and let the LP serve less uncommitted
-// traffic). Each gives one candidate.
-var roundingThresholds = []float64{0, 0.5, 0.8}
+// traffic). Each gives one candidate. A finer grid than {0, 0.5, 0.8}
+// costs little now that a candidate's completion LP starts from the
+// relaxation's basis, and on the synthetic L case, whose search reaches
+// few nodes, it raised the incumbent after the root from 7983998 to
+// 8091325 (on M the 60 s result moved by −0.08 %, within the run-to-run
+// spread of its search path).
+var roundingThresholds = []float64{0, 0.2, 0.35, 0.5, 0.65, 0.8, 0.9}
 
 // roundUpHeuristic is the primal heuristic handed to mip: from a node's LP
 // point it rounds every link's cumulative module counts to whole units —
