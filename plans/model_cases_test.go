@@ -195,14 +195,7 @@ func TestInfeasibleExplained(t *testing.T) {
 		c.testDemand("A", "B", 30, 30, 50)
 		c.testVendor("V")
 		c.testItem(testItem{id: "M", vendor: "V", gbps: fpGbps, capex: fpCapex, life: fpLife, maxUnits: 2, slotsPerUnit: 2})
-		res, err := Solve(context.Background(), c, SolveOptions{})
-		if err != nil {
-			t.Fatal(err)
-		}
-		if res.Status != StatusInfeasible || len(res.Infeasibility) != 1 {
-			t.Fatalf("status %s, %+v: want infeasible with one cause", res.Status, res.Infeasibility)
-		}
-		r := res.Infeasibility[0]
+		r := onlyCause(t, c)
 		if r.Kind != InfeasibleLink || r.Name != "L" || r.Year != 0 || !near(r.Amount, 1, 1e-6) || r.Unit != UnitSlots {
 			t.Errorf("cause %+v, want link L one slot short", r)
 		}
@@ -214,17 +207,24 @@ func TestInfeasibleExplained(t *testing.T) {
 		c.testVendor("V")
 		c.testItem(testItem{id: "M", vendor: "V", gbps: fpGbps, capex: fpCapex, life: fpLife, maxUnits: 1})
 		c.Budget.Yearly = []float64{6000, 6000}
-		res, err := Solve(context.Background(), c, SolveOptions{})
-		if err != nil {
-			t.Fatal(err)
-		}
-		if res.Status != StatusInfeasible || len(res.Infeasibility) != 1 {
-			t.Fatalf("status %s, %+v: want infeasible with one cause", res.Status, res.Infeasibility)
-		}
-		r := res.Infeasibility[0]
+		r := onlyCause(t, c)
 		if r.Kind != InfeasibleBudget || r.Year != 2030 || !near(r.Amount, 4000, 1e-6) || r.Unit != "EUR" ||
 			!strings.Contains(r.Message, "2030") || !strings.Contains(r.Message, "EUR 4,000") {
 			t.Errorf("cause %+v, want the 2030 budget short by 4000", r)
 		}
 	})
+}
+
+// onlyCause solves c, which must be infeasible for exactly one reason, and
+// returns that reason.
+func onlyCause(t *testing.T, c *Case) InfeasibilityRow {
+	t.Helper()
+	res, err := Solve(context.Background(), c, SolveOptions{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if res.Status != StatusInfeasible || len(res.Infeasibility) != 1 {
+		t.Fatalf("status %s, %+v: want infeasible with one cause", res.Status, res.Infeasibility)
+	}
+	return res.Infeasibility[0]
 }
