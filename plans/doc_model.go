@@ -27,6 +27,10 @@
 //     (convex-hull) form, so discounted capex, depreciation and salvage
 //     stay exact;
 //   - one budget row per capped year, one for the cumulative cap;
+//   - with [case] one_vendor, per group of links that must share a vendor
+//     (a class, or the network) and having items of several vendors: one
+//     binary per vendor, at most one of them on, and one row per unit
+//     column capping its units by its vendor's binary;
 //   - cut-set rows: for every site and every pair of linked sites and
 //     year, up to three MIR roundings (one per module size) of "the
 //     crossing demands' traffic fits in the crossing links", with and
