@@ -30,6 +30,9 @@ const (
 	maxNodeResolves   = 20   // re-solves of one node after strong branching fixes a column
 	strongShare       = 0.5  // strong-branching iterations allowed per node LP iteration …
 	strongOffset      = 5000 // … plus this many (common practice: a half, plus an offset)
+	// the caller's heuristic also runs at each of the first nodes: a large
+	// model may not reach node HeuristicFreq before its time limit
+	earlyHeuristicNodes = 5
 )
 
 // run performs the whole search and returns the result.

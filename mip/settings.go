@@ -131,8 +131,9 @@ type Settings struct {
 	ProgressInterval time.Duration
 
 	// Heuristic, when set, lets the caller propose solutions. It is called at
-	// the root and every HeuristicFreq nodes with the node's LP solution (one
-	// value per column, in the model's own columns) and returns candidate
+	// the root (before and after the root cuts), at each of the first 5 nodes
+	// and every HeuristicFreq nodes with the node's LP solution (one value
+	// per column, in the model's own columns) and returns candidate
 	// points, or nil. Each candidate is checked like Start: a candidate that
 	// violates rows or bounds has its integer values fixed and its continuous
 	// columns re-optimised by LP.
