@@ -331,6 +331,13 @@ func (m *Model) fixIntegers(x []float64) *lp.Model {
 			fixed.Integer[j] = false
 		}
 	}
+	// With the units fixed the cut-set rows are redundant (valid for every
+	// integer point, so for this one), but a redundant row that happens to
+	// be tight takes a share of the duals: freeing them keeps the value of
+	// one more Gbps on the capacity rows, where the plan reads it.
+	for _, r := range m.cutRows {
+		fixed.RowLower[r], fixed.RowUpper[r] = -lp.Inf, lp.Inf
+	}
 	return fixed
 }
 
