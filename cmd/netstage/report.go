@@ -75,7 +75,7 @@ charts how far the NPV moves.`,
 	f.BoolVar(&opts.useDemo, "demo", false, "report on the embedded demo case")
 	f.StringVarP(&opts.out, "out", "o", "", "write the report to this `file` (default: stdout)")
 	f.StringVar(&opts.format, "format", "", "report `format`: html or md (default: from the --out extension, else html)")
-	f.StringVar(&opts.timeLimit, "time-limit", "", "stop the search after this `duration` (90s, 2m; a bare number is seconds) and report the best plan")
+	f.StringVar(&opts.timeLimit, "time-limit", "", "limit the whole solve to about this `duration` (90s, 2m; a bare number is seconds) and report the best plan found")
 	f.Float64Var(&opts.gap, "gap", 0, "relative gap at which a plan counts as optimal (default 1e-4)")
 	f.BoolVarP(&opts.quiet, "quiet", "q", false, "print no warnings or progress on stderr")
 	f.IntVar(&opts.jobs, "jobs", 1, "solve this many tornado cases at once (0: one per CPU)")

@@ -71,7 +71,7 @@ limits, 2 bad input or usage, 3 infeasible or unbounded case (explained).`,
 	f.BoolVar(&opts.useDemo, "demo", false, "use the embedded demo case")
 	f.BoolVar(&opts.json, "json", false, "print one JSON object instead of the report")
 	f.StringVar(&opts.csvDir, "csv", "", "also write plan.csv, cashflow.csv, links.csv and demands.csv into `DIR`")
-	f.StringVar(&opts.timeLimit, "time-limit", "", "stop the search after this `duration` (90s, 2m; a bare number is seconds) and report the best plan")
+	f.StringVar(&opts.timeLimit, "time-limit", "", "limit the whole solve to about this `duration` (90s, 2m; a bare number is seconds) and report the best plan found")
 	f.Float64Var(&opts.gap, "gap", 0, "relative gap at which a plan counts as optimal (default 1e-4)")
 	f.BoolVar(&opts.quiet, "quiet", false, "print nothing on stderr but errors (no progress, no warnings)")
 	return cmd
