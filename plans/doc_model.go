@@ -31,11 +31,11 @@
 //     (a class, or the network) and having items of several vendors: one
 //     binary per vendor, at most one of them on, and one row per unit
 //     column capping its units by its vendor's binary;
-//   - cut-set rows: for every site, every pair of linked sites and every
-//     site with its neighbours, and every year, up to three MIR roundings
-//     (one per module size) of "the crossing demands' traffic fits in the
-//     crossing links", with and without the served traffic — at most
-//     6·(2n + m)·T rows.
+//   - cut-set rows: for every site, every pair of linked sites, every site
+//     with the sites within one and within two links of it, and every
+//     year, up to three MIR roundings (one per module size) of "the
+//     crossing demands' traffic fits in the crossing links", with and
+//     without the served traffic — at most 6·(3n + m)·T rows.
 //
 // The objective coefficient of a unit of capex ordered in year τ and in
 // service from year s with book life L is −DF_τ + τ_tax·Σ DF_t/L over its

@@ -46,7 +46,7 @@ const moneyScale = 1000
 //	              by tier; threshold·z_k ≤ part_k ≤ max·z_k
 //	budget        capex of year τ ≤ cap; Σ_τ capex ≤ cumulative cap  one per capped year (+1)
 //	one vendor    Σ_v w[g,v] ≤ 1; y[o,last] ≤ max·w[g,vendor(o)]     per one-vendor group: 1 + its options
-//	cut-set       MIR roundings of site, linked-pair and star cuts ≤ 6·(2·|sites| + |links|)·T
+//	cut-set       MIR roundings of site, linked-pair and ball cuts ≤ 6·(3·|sites| + |links|)·T
 //	              (see addCutSets)
 //
 // So a case with n sites, m links, K demands and T years has about

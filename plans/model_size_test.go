@@ -56,7 +56,7 @@ func TestModelSize(t *testing.T) {
 		{"conservation rows", count(m.LP.RowName, "c_"), len(src) * (len(c.Sites) - 1) * T, false},
 		{"capacity rows", count(m.LP.RowName, "cap_"), A * T, false},
 		{"unit columns", count(m.LP.ColName, "y_"), units, true},
-		{"cut-set rows", count(m.LP.RowName, "cut_"), 6 * (2*len(c.Sites) + len(c.Links)) * T, true},
+		{"cut-set rows", count(m.LP.RowName, "cut_"), 6 * (3*len(c.Sites) + len(c.Links)) * T, true},
 	} {
 		if tc.atMost && tc.got > tc.want || !tc.atMost && tc.got != tc.want {
 			t.Errorf("%s: %d, want %s%d", tc.what, tc.got, map[bool]string{true: "at most ", false: ""}[tc.atMost], tc.want)
