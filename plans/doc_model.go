@@ -44,7 +44,8 @@
 // Solve then fixes the integer decisions and solves two LPs: the NPV again
 // (its capacity-row duals give the value of one more Gbps per link and
 // year) and, holding that NPV, the fewest Gbps·km, so the routing reported
-// is unique. The cash flow is recomputed from the purchases and the served
+// sends no traffic the long way round (routings of equal Gbps·km remain
+// ties, broken by the LP's pivots). The cash flow is recomputed from the purchases and the served
 // traffic alone and equals the MIP objective (checked in the tests).
 // The do-nothing baseline is an LP without purchases whose committed
 // traffic may fall short at the SLA penalty; an infeasible case is

@@ -59,8 +59,8 @@ func Export(c *Case, opts BuildOptions) (*lp.Model, error) {
 //
 // Pipeline: MIP (with the rounding heuristic and cut-sets unless turned
 // off) → LP with the integer decisions fixed (capacity duals give the value
-// of one more Gbps) → LP holding that NPV and minimising Gbps·km (a unique
-// routing) → cash flows recomputed from the decisions alone. An infeasible
+// of one more Gbps) → LP holding that NPV and minimising Gbps·km (no
+// detours; equal-length routings stay ties) → cash flows recomputed from the decisions alone. An infeasible
 // case is explained by an elastic model (explain.go).
 //
 // SolveOptions.TimeLimit bounds the whole solve, approximately: the
@@ -351,7 +351,8 @@ type baselineSolution struct {
 
 // solveBaseline solves the do-nothing LP in three stages: best NPV (revenue
 // less SLA penalty), then the least committed shortfall at that NPV, then
-// the fewest Gbps·km, so that what is reported is unique.
+// the fewest Gbps·km, so that what is reported does not depend on where
+// the first LP happened to stop (up to ties of equal Gbps·km).
 func solveBaseline(ctx context.Context, c *Case) (*baselineSolution, error) {
 	m, err := BuildModel(c, BuildOptions{baseline: true})
 	if err != nil {
