@@ -15,10 +15,31 @@ const benchGap = 1e-4
 
 // BenchmarkSolve solves the synthetic cases S (10 sites, 5 years), M (25,
 // 7) and L (50, 10) of seed 1 to gap 1e-4 or 60 s. Besides time and
-// allocations it reports the gap reached, the nodes searched and the model
-// size. Run: go test -run '^$' -bench Solve -benchtime 1x ./plans
+// allocations it reports the gap reached, the nodes and iterations searched
+// and the model size. Run: go test -run '^$' -bench Solve -benchtime 1x ./plans
 func BenchmarkSolve(b *testing.B) {
-	for _, sz := range SyntheticSizes {
+	benchSolve(b, SyntheticSizes, SolveOptions{Gap: benchGap, TimeLimit: benchTimeLimit})
+}
+
+// BenchmarkSolveNodes solves the synthetic cases S and M of seed 1 with no
+// time limit and a limit of benchNodes nodes (S usually proves optimality
+// before). The search is deterministic, so two builds that take the same
+// path do the same work, and their times compare fairly even on a shared
+// machine whose load changes the 60 s results of BenchmarkSolve (compare
+// the iterations reported: equal iterations mean the same path). Run:
+// go test -run '^$' -bench SolveNodes -benchtime 1x ./plans
+func BenchmarkSolveNodes(b *testing.B) {
+	benchSolve(b, SyntheticSizes[:2], SolveOptions{Gap: benchGap, NodeLimit: benchNodes})
+}
+
+// benchNodes is the node limit of BenchmarkSolveNodes.
+const benchNodes = 300
+
+// benchSolve solves the synthetic case of each size (seed 1) with opts and
+// reports the gap, nodes, iterations and model size beside time and
+// allocations.
+func benchSolve(b *testing.B, sizes []SyntheticSize, opts SolveOptions) {
+	for _, sz := range sizes {
 		b.Run(sz.Name, func(b *testing.B) {
 			c, _, err := Load(writeSynthetic(b, sz.Sites, sz.Years, 1))
 			if err != nil {
@@ -28,7 +49,7 @@ func BenchmarkSolve(b *testing.B) {
 			b.ResetTimer()
 			var res *Result
 			for i := 0; i < b.N; i++ {
-				res, err = Solve(context.Background(), c, SolveOptions{Gap: benchGap, TimeLimit: benchTimeLimit})
+				res, err = Solve(context.Background(), c, opts)
 				if err != nil {
 					b.Fatal(err)
 				}
@@ -41,6 +62,7 @@ func BenchmarkSolve(b *testing.B) {
 				b.ReportMetric(*res.Gap, "gap")
 			}
 			b.ReportMetric(float64(res.Stats.Nodes), "nodes")
+			b.ReportMetric(float64(res.Stats.Iterations), "iters")
 			b.ReportMetric(float64(res.Stats.Rows), "rows")
 			b.ReportMetric(float64(res.Stats.Columns), "cols")
 			b.ReportMetric(float64(res.Stats.Integers), "ints")
