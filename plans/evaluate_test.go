@@ -15,51 +15,34 @@ func TestEvaluateOwnPlan(t *testing.T) {
 	if testing.Short() {
 		seeds = seeds[:2]
 	}
-	type namedCase struct {
-		name string
-		load func() (*Case, error)
-	}
-	var cases []namedCase
-	if !testing.Short() { // tiers, a lease, a candidate link, two currencies
-		cases = append(cases, namedCase{"demo", func() (*Case, error) { c, _, err := LoadDemo(); return c, err }})
-	}
-	for _, seed := range seeds {
-		cases = append(cases, namedCase{fmt.Sprintf("seed-%d", seed), func() (*Case, error) { return loadSynthetic(t, 5, 4, seed) }})
-	}
-	for _, nc := range cases {
-		t.Run(nc.name, func(t *testing.T) {
-			c, err := nc.load()
-			if err != nil {
-				t.Fatal(err)
+	forSyntheticAndDemo(t, 5, 4, seeds, func(t *testing.T, c *Case) {
+		res := solveExact(t, c)
+		if len(res.Plan) == 0 {
+			t.Fatal("test input: the plan buys nothing")
+		}
+		ev, err := Evaluate(context.Background(), c, res.Plan)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if ev.Status != StatusOptimal {
+			t.Fatalf("status %s", ev.Status)
+		}
+		if !near(*ev.Objective, *res.Objective, 1e-7) {
+			t.Errorf("NPV of the plan valued: %.4f, solved: %.4f", *ev.Objective, *res.Objective)
+		}
+		if !near(*ev.BaselineNPV, *res.BaselineNPV, 1e-9) {
+			t.Errorf("baseline %.4f, solve's %.4f", *ev.BaselineNPV, *res.BaselineNPV)
+		}
+		if fmt.Sprint(ev.Plan) != fmt.Sprint(res.Plan) {
+			t.Errorf("plan valued:\n%v\nplan solved:\n%v", ev.Plan, res.Plan)
+		}
+		for i := range res.Cashflow {
+			if !near(ev.Cashflow[i].Net, res.Cashflow[i].Net, 1e-7) {
+				t.Errorf("year %d: net %.4f, solve's %.4f", res.Cashflow[i].Year, ev.Cashflow[i].Net, res.Cashflow[i].Net)
 			}
-			res := solveExact(t, c)
-			if len(res.Plan) == 0 {
-				t.Fatal("test input: the plan buys nothing")
-			}
-			ev, err := Evaluate(context.Background(), c, res.Plan)
-			if err != nil {
-				t.Fatal(err)
-			}
-			if ev.Status != StatusOptimal {
-				t.Fatalf("status %s", ev.Status)
-			}
-			if !near(*ev.Objective, *res.Objective, 1e-7) {
-				t.Errorf("NPV of the plan valued: %.4f, solved: %.4f", *ev.Objective, *res.Objective)
-			}
-			if !near(*ev.BaselineNPV, *res.BaselineNPV, 1e-9) {
-				t.Errorf("baseline %.4f, solve's %.4f", *ev.BaselineNPV, *res.BaselineNPV)
-			}
-			if fmt.Sprint(ev.Plan) != fmt.Sprint(res.Plan) {
-				t.Errorf("plan valued:\n%v\nplan solved:\n%v", ev.Plan, res.Plan)
-			}
-			for i := range res.Cashflow {
-				if !near(ev.Cashflow[i].Net, res.Cashflow[i].Net, 1e-7) {
-					t.Errorf("year %d: net %.4f, solve's %.4f", res.Cashflow[i].Year, ev.Cashflow[i].Net, res.Cashflow[i].Net)
-				}
-			}
-			checkInvariants(t, c, ev)
-		})
-	}
+		}
+		checkInvariants(t, c, ev)
+	})
 }
 
 // TestEvaluateBudgetNotEnforced: a plan is valued even where it spends more

@@ -2,6 +2,7 @@ package plans
 
 import (
 	"context"
+	"fmt"
 	"math"
 	"testing"
 
@@ -171,4 +172,29 @@ func solveBoth(t *testing.T, c *Case) *Result {
 
 func near(a, b, rel float64) bool {
 	return math.Abs(a-b) <= rel*math.Max(1, math.Max(math.Abs(a), math.Abs(b)))
+}
+
+// forSyntheticAndDemo runs fn as a subtest on the synthetic case of the
+// given size for each seed and, outside -short, on the demo (tiers, a
+// lease, a candidate link, two currencies).
+func forSyntheticAndDemo(t *testing.T, sites, years int, seeds []int64, fn func(t *testing.T, c *Case)) {
+	t.Helper()
+	if !testing.Short() {
+		t.Run("demo", func(t *testing.T) {
+			c, _, err := LoadDemo()
+			if err != nil {
+				t.Fatal(err)
+			}
+			fn(t, c)
+		})
+	}
+	for _, seed := range seeds {
+		t.Run(fmt.Sprintf("synthetic-%d-%d-seed-%d", sites, years, seed), func(t *testing.T) {
+			c, err := loadSynthetic(t, sites, years, seed)
+			if err != nil {
+				t.Fatal(err)
+			}
+			fn(t, c)
+		})
+	}
 }
