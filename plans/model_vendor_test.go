@@ -3,10 +3,14 @@ package plans
 import (
 	"context"
 	"fmt"
+	"math"
 	"os"
+	"path"
 	"path/filepath"
 	"strings"
 	"testing"
+
+	"netstage/plans/demo"
 )
 
 // loadSyntheticWith loads a synthetic case with extra lines added to its
@@ -116,26 +120,38 @@ func TestOneVendorByHand(t *testing.T) {
 // optimiser pick one vendor per class (or one for the network) must give
 // exactly the best NPV over every assignment of a vendor to each class
 // (or every single vendor), each solved with [case.class_vendor] (or
-// [case] vendor), whose restricted plans are the one-vendor plans. The
-// synthetic cases have classes metro and longhaul and vendors alpha, beta
-// (modules) and gamma (metro leases only); gamma named for longhaul leaves
-// it unupgradable, which one_vendor also allows by buying nothing there.
+// [case] vendor), whose restricted plans are the one-vendor plans. On the
+// demo the free mix (brightwave and polaris) is worth more than any one
+// vendor, so the policies bind; on the synthetic cases (classes metro and
+// longhaul; alpha, beta and gamma, the last with metro leases only) the
+// best plans happen to buy from one vendor already. A vendor named for a
+// class it has no item for leaves that class unupgradable, which
+// one_vendor also allows by buying nothing there.
 func TestOneVendorIsBestNamedVendor(t *testing.T) {
-	vendors := []string{"alpha", "beta", "gamma"}
-	seeds := []int64{1, 2, 3}
-	if testing.Short() {
-		seeds = seeds[:1]
+	type namedCase struct {
+		name             string
+		load             func(caseLines string) *Case
+		classes, vendors []string
+		binds            bool // the free mix beats every one-vendor plan
 	}
-	for _, seed := range seeds {
-		t.Run(fmt.Sprintf("seed-%d", seed), func(t *testing.T) {
-			const sites, years = 4, 3
-			free := solveExact(t, loadSyntheticWith(t, sites, years, seed, ""))
+	cases := []namedCase{{"synthetic-4-3-seed-1", func(l string) *Case { return loadSyntheticWith(t, 4, 3, 1, l) },
+		[]string{"longhaul", "metro"}, []string{"alpha", "beta", "gamma"}, false}}
+	if !testing.Short() {
+		cases = append(cases,
+			namedCase{"synthetic-4-3-seed-2", func(l string) *Case { return loadSyntheticWith(t, 4, 3, 2, l) },
+				[]string{"longhaul", "metro"}, []string{"alpha", "beta", "gamma"}, false},
+			namedCase{"demo", func(l string) *Case { return loadDemoWith(t, l) },
+				[]string{"core", "metro"}, []string{"brightwave", "polaris"}, true})
+	}
+	for _, nc := range cases {
+		t.Run(nc.name, func(t *testing.T) {
+			free := solveExact(t, nc.load(""))
 
-			network := solveExact(t, loadSyntheticWith(t, sites, years, seed, `one_vendor = "network"`))
-			best, bestVendor := 0.0, ""
-			for i, v := range vendors {
-				r := solveExact(t, loadSyntheticWith(t, sites, years, seed, fmt.Sprintf("vendor = %q", v)))
-				if i == 0 || *r.Objective > best {
+			network := solveExact(t, nc.load(`one_vendor = "network"`))
+			best, bestVendor := math.Inf(-1), ""
+			for _, v := range nc.vendors {
+				r := solveExact(t, nc.load(fmt.Sprintf("vendor = %q", v)))
+				if *r.Objective > best {
 					best, bestVendor = *r.Objective, v
 				}
 			}
@@ -144,32 +160,74 @@ func TestOneVendorIsBestNamedVendor(t *testing.T) {
 			}
 			checkOneVendor(t, network, func(string) string { return "" })
 
-			perClass := solveExact(t, loadSyntheticWith(t, sites, years, seed, `one_vendor = "per_class"`))
-			best = 0
-			first := true
-			for _, metro := range vendors {
-				for _, longhaul := range vendors {
-					lines := fmt.Sprintf("[case.class_vendor]\nmetro = %q\nlonghaul = %q", metro, longhaul)
-					r := solveExact(t, loadSyntheticWith(t, sites, years, seed, lines))
-					if first || *r.Objective > best {
-						best, bestVendor, first = *r.Objective, metro+"/"+longhaul, false
-					}
+			perClass := solveExact(t, nc.load(`one_vendor = "per_class"`))
+			best, bestVendor = math.Inf(-1), ""
+			// every assignment of a vendor to each class
+			assign := make([]int, len(nc.classes))
+			for {
+				lines := "[case.class_vendor]"
+				name := ""
+				for k, cl := range nc.classes {
+					lines += fmt.Sprintf("\n%s = %q", cl, nc.vendors[assign[k]])
+					name += cl + ":" + nc.vendors[assign[k]] + " "
 				}
+				r := solveExact(t, nc.load(lines))
+				if *r.Objective > best {
+					best, bestVendor = *r.Objective, name
+				}
+				k := 0
+				for k < len(assign) && assign[k] == len(nc.vendors)-1 {
+					assign[k] = 0
+					k++
+				}
+				if k == len(assign) {
+					break
+				}
+				assign[k]++
 			}
 			if !near(*perClass.Objective, best, 1e-7) {
-				t.Errorf("one_vendor = per_class: NPV %.4f, best assignment (metro/longhaul %s) %.4f", *perClass.Objective, bestVendor, best)
+				t.Errorf("one_vendor = per_class: NPV %.4f, best assignment (%s) %.4f", *perClass.Objective, bestVendor, best)
 			}
 			checkOneVendor(t, perClass, func(class string) string { return class })
 
 			// Each restriction can only lose value against the free choice;
 			// one vendor per class allows at least what one for the network does.
-			if *network.Objective > *perClass.Objective+1e-7*max(1, abs(*perClass.Objective)) ||
-				*perClass.Objective > *free.Objective+1e-7*max(1, abs(*free.Objective)) {
+			tol := 1e-7 * max(1, abs(*free.Objective))
+			if *network.Objective > *perClass.Objective+tol || *perClass.Objective > *free.Objective+tol {
 				t.Errorf("NPV network %.4f ≤ per class %.4f ≤ free %.4f does not hold", *network.Objective, *perClass.Objective, *free.Objective)
+			}
+			if nc.binds && *perClass.Objective > *free.Objective-1 {
+				t.Errorf("test input: the free mix (%.0f) should beat one vendor per class (%.0f)", *free.Objective, *perClass.Objective)
 			}
 			t.Logf("NPV free %.0f, per class %.0f, network %.0f", *free.Objective, *perClass.Objective, *network.Objective)
 		})
 	}
+}
+
+// loadDemoWith loads the embedded demo with extra lines added to its
+// [case] table (after its catalogs line).
+func loadDemoWith(t *testing.T, caseLines string) *Case {
+	t.Helper()
+	data, err := demo.Files.ReadFile(demo.CaseFile)
+	if err != nil {
+		t.Fatal(err)
+	}
+	text := string(data)
+	i := strings.Index(text, "\ncatalogs = ")
+	if i < 0 {
+		t.Fatal("test input: no catalogs line in the demo case")
+	}
+	end := i + 1 + strings.Index(text[i+1:], "\n")
+	text = text[:end] + "\n" + caseLines + text[end:]
+	read := func(rel string) (string, []byte, error) {
+		b, err := demo.Files.ReadFile(path.Join(path.Dir(demo.CaseFile), rel))
+		return rel, b, err
+	}
+	c, _, err := Decode("case.toml", []byte(text), read)
+	if err != nil {
+		t.Fatalf("%s: %v", caseLines, err)
+	}
+	return c
 }
 
 // checkOneVendor checks that the plan buys from at most one vendor in each
