@@ -108,14 +108,7 @@ func Solve(ctx context.Context, c *Case, opts SolveOptions) (*Result, error) {
 	if opts.TimeLimit > 0 {
 		set.TimeLimit = searchLimit(opts.TimeLimit, time.Since(start), time.Since(baseStart), base != nil)
 	}
-	if base == nil {
-		res.Warnings = append(res.Warnings, "the do-nothing baseline LP could not be solved: baseline and incremental figures are missing")
-	} else {
-		res.BaselineCashflow = base.cashflow
-		res.Shortfall = base.shortfall
-		npv := sumPV(base.cashflow)
-		res.BaselineNPV = &npv
-	}
+	res.setBaseline(base)
 	if base != nil && !opts.NoBaselineStart {
 		set.Start = m.startFromBaseline(base)
 	}
