@@ -38,26 +38,21 @@ func (d *decoder) resolveCatalogs(c *Case, cats []*catalog.Catalog) ErrorList {
 	}
 	classList := sortedKeys(linkClasses)
 
-	// Class ceilings must name classes that links use.
-	for _, k := range sortedKeys(d.classAt) {
-		if !linkClasses[k] && classesKnown {
-			hint := ""
-			if s := catalog.Suggest(k, classList); s != "" {
-				hint = fmt.Sprintf(" (did you mean %q?)", s)
+	// Class ceilings and class vendor restrictions must name classes that
+	// links use.
+	unknownClasses := func(at map[string]catalog.Position, key string) {
+		for _, k := range sortedKeys(at) {
+			if !linkClasses[k] && classesKnown {
+				hint := ""
+				if s := catalog.Suggest(k, classList); s != "" {
+					hint = fmt.Sprintf(" (did you mean %q?)", s)
+				}
+				d.src.ErrorAt(at[k], key, fmt.Errorf("%w: no link has class %q%s", catalog.ErrReference, k, hint))
 			}
-			d.src.ErrorAt(d.classAt[k], "case.class_ceiling", fmt.Errorf("%w: no link has class %q%s", catalog.ErrReference, k, hint))
 		}
 	}
-	// Class vendor restrictions must name classes that links use.
-	for _, k := range sortedKeys(d.classVendorAt) {
-		if !linkClasses[k] && classesKnown {
-			hint := ""
-			if s := catalog.Suggest(k, classList); s != "" {
-				hint = fmt.Sprintf(" (did you mean %q?)", s)
-			}
-			d.src.ErrorAt(d.classVendorAt[k], "case.class_vendor", fmt.Errorf("%w: no link has class %q%s", catalog.ErrReference, k, hint))
-		}
-	}
+	unknownClasses(d.classAt, "case.class_ceiling")
+	unknownClasses(d.classVendorAt, "case.class_vendor")
 	for i := range c.Links {
 		l := &c.Links[i]
 		l.Ceiling = c.Ceiling
