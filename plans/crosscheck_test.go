@@ -148,16 +148,6 @@ func runCBC(cbc, path string) (string, float64, error) {
 // loadSynthetic writes the synthetic case of the generator in package
 // plans (synth.go) to a temporary folder and loads it.
 func loadSynthetic(t testing.TB, sites, years int, seed int64) (*Case, error) {
-	files, err := Synthetic(sites, years, seed)
-	if err != nil {
-		return nil, err
-	}
-	dir := t.TempDir()
-	for _, f := range files {
-		if err := os.WriteFile(filepath.Join(dir, f.Name), f.Data, 0o644); err != nil {
-			return nil, err
-		}
-	}
-	c, _, err := Load(filepath.Join(dir, files[0].Name))
+	c, _, err := Load(writeSynthetic(t, sites, years, seed))
 	return c, err
 }

@@ -6,7 +6,6 @@ import (
 	"math"
 	"os"
 	"path"
-	"path/filepath"
 	"strings"
 	"testing"
 
@@ -17,25 +16,20 @@ import (
 // [case] table.
 func loadSyntheticWith(t *testing.T, sites, years int, seed int64, caseLines string) *Case {
 	t.Helper()
-	files, err := Synthetic(sites, years, seed)
+	path := writeSynthetic(t, sites, years, seed)
+	data, err := os.ReadFile(path)
 	if err != nil {
 		t.Fatal(err)
 	}
-	dir := t.TempDir()
-	for i, f := range files {
-		data := f.Data
-		if i == 0 {
-			text := string(data)
-			if !strings.Contains(text, "\n[budget]") {
-				t.Fatal("test input: no [budget] table after [case] in the synthetic case")
-			}
-			data = []byte(strings.Replace(text, "\n[budget]", "\n"+caseLines+"\n\n[budget]", 1))
-		}
-		if err := os.WriteFile(filepath.Join(dir, f.Name), data, 0o644); err != nil {
-			t.Fatal(err)
-		}
+	text := string(data)
+	if !strings.Contains(text, "\n[budget]") {
+		t.Fatal("test input: no [budget] table after [case] in the synthetic case")
 	}
-	c, _, err := Load(filepath.Join(dir, files[0].Name))
+	text = strings.Replace(text, "\n[budget]", "\n"+caseLines+"\n\n[budget]", 1)
+	if err := os.WriteFile(path, []byte(text), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	c, _, err := Load(path)
 	if err != nil {
 		t.Fatalf("%s: %v", caseLines, err)
 	}
