@@ -16,6 +16,8 @@ type vendorChoice struct {
 	// vendor".
 	vendors []int
 	col     []int
+	// options lists the options on the group's links.
+	options []int
 }
 
 // addVendorChoice adds, for each group of links that must share one vendor
@@ -72,7 +74,8 @@ func (m *Model) addVendorChoice() {
 			ones[i] = 1
 		}
 		m.LP.AddRow("one_vendor_"+label, -lp.Inf, 1, vc.col, ones)
-		for _, oi := range optsOf[g] {
+		vc.options = optsOf[g]
+		for _, oi := range vc.options {
 			o := &m.options[oi]
 			it := &c.Items[o.item]
 			j := o.col[o.lastOrder]
@@ -114,9 +117,9 @@ func (m *Model) setVendorChoice(x []float64) bool {
 	c := m.Case
 	for _, vc := range m.vendorChoices {
 		chosen := -1
-		for _, o := range m.options {
-			g, ok := c.VendorChoiceGroup(c.Links[o.link].Class)
-			if !ok || g != vc.name || x[o.col[o.lastOrder]] < 0.5 {
+		for _, oi := range vc.options {
+			o := &m.options[oi]
+			if x[o.col[o.lastOrder]] < 0.5 {
 				continue
 			}
 			v := c.Items[o.item].Vendor
