@@ -32,7 +32,7 @@ func Evaluate(ctx context.Context, c *Case, plan []PlanRow) (*Result, error) {
 	if err != nil {
 		return nil, err
 	}
-	for _, r := range append(append([]int(nil), m.budgetRow...), m.cumRow) {
+	for _, r := range append(m.budgetRow, m.cumRow) { // m is this call's own
 		if r >= 0 {
 			m.LP.RowLower[r], m.LP.RowUpper[r] = -lp.Inf, lp.Inf
 		}

@@ -28,14 +28,9 @@ type Route struct {
 func (m *Model) routes(x []float64) []Route {
 	c := m.Case
 	nArcs := 2 * len(c.Links)
-	srcIndex := map[int]int{}
-	for si, s := range m.sources {
-		srcIndex[s] = si
-	}
 	var out []Route
 	for t := 0; t < c.Horizon; t++ {
-		for _, s := range m.sources {
-			si := srcIndex[s]
+		for si, s := range m.sources {
 			left := make([]float64, nArcs)
 			for a := range nArcs {
 				if j := m.flow[si][a][t]; j >= 0 {

@@ -734,11 +734,9 @@ func linkReasons(c *plans.Case, r *plans.Result, link string) []string {
 	}
 	// The demands it carries in any year from the upgrade on.
 	var carried []string
-	for y := max(inService, c.FirstYear); y < c.FirstYear+c.Horizon; y++ {
-		for _, dl := range routedOver(r, link, y) {
-			if !slices.Contains(carried, dl.Demand) {
-				carried = append(carried, dl.Demand)
-			}
+	for _, rt := range r.Routes {
+		if rt.Year >= inService && !slices.Contains(carried, rt.Demand) && slices.Contains(rt.Links, link) {
+			carried = append(carried, rt.Demand)
 		}
 	}
 	// At risk without the plan: baseline shortfall of those demands.
