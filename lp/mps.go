@@ -559,9 +559,48 @@ func card(w *bufio.Writer, typ, name1, name2, value, marker string) {
 	w.WriteByte('\n')
 }
 
+// mpsPlainName reports whether a name reads back as one free-format field:
+// not empty, no white space of any kind (strings.Fields splits on every
+// Unicode space, vertical tab included), and not the word the reader takes
+// for an integer marker.
+func mpsPlainName(n string) bool {
+	return n != "" && strings.IndexFunc(n, unicode.IsSpace) < 0 &&
+		strings.Trim(strings.ToUpper(n), "'\"") != "MARKER"
+}
+
+// mpsNames returns names that the free reader gives back one for one. The
+// first use of each plain name is kept (taken holds names reserved
+// beforehand); any other name becomes prefix<index>, with a further _<n>
+// when even that is in use.
+func mpsNames(names []string, prefix string, taken map[string]bool) []string {
+	if taken == nil {
+		taken = map[string]bool{}
+	}
+	out := make([]string, len(names))
+	for i, n := range names {
+		if mpsPlainName(n) && !taken[n] {
+			taken[n] = true
+			out[i] = n
+		}
+	}
+	for i := range out {
+		if out[i] != "" {
+			continue
+		}
+		n := prefix + strconv.Itoa(i)
+		for k := 1; taken[n]; k++ {
+			n = prefix + strconv.Itoa(i) + "_" + strconv.Itoa(k)
+		}
+		taken[n] = true
+		out[i] = n
+	}
+	return out
+}
+
 // WriteMPS writes m in free MPS format, with fields placed at the fixed
-// columns when names have at most 8 characters. Names that are empty or
-// contain white space are replaced by C<j> or R<i>. Every integer column gets
+// columns when names have at most 8 characters. Names that are empty,
+// contain white space or repeat an earlier name are replaced by C<j> or
+// R<i> (see mpsNames). Every integer column gets
 // explicit bounds (other readers take unbounded integer markers as
 // binaries). Ranged rows are written as G rows with a RANGES entry. Numbers
 // are written with 17 significant digits, so ReadMPS gives back the same
@@ -569,25 +608,15 @@ func card(w *bufio.Writer, typ, name1, name2, value, marker string) {
 func WriteMPS(w io.Writer, m *Model) error {
 	bw := bufio.NewWriter(w)
 	name := m.Name
-	if name == "" || strings.ContainsAny(name, " \t") {
+	if !mpsPlainName(name) {
 		name = "model"
 	}
-	colName := func(j int) string {
-		if n := m.ColName[j]; n != "" && !strings.ContainsAny(n, " \t") {
-			return n
-		}
-		return "C" + strconv.Itoa(j)
-	}
-	rowName := func(i int) string {
-		if n := m.RowName[i]; n != "" && !strings.ContainsAny(n, " \t") {
-			return n
-		}
-		return "R" + strconv.Itoa(i)
-	}
 	obj := m.ObjName
-	if obj == "" || strings.ContainsAny(obj, " \t") {
+	if !mpsPlainName(obj) {
 		obj = "obj"
 	}
+	colNames := mpsNames(m.ColName, "C", nil)
+	rowNames := mpsNames(m.RowName, "R", map[string]bool{obj: true})
 	num := func(v float64) string {
 		switch {
 		case math.IsInf(v, 1):
@@ -613,7 +642,7 @@ func WriteMPS(w io.Writer, m *Model) error {
 		case math.IsInf(lo, -1):
 			typ = "L"
 		}
-		fmt.Fprintf(bw, " %s  %s\n", typ, rowName(i))
+		fmt.Fprintf(bw, " %s  %s\n", typ, rowNames[i])
 	}
 	fmt.Fprintf(bw, "COLUMNS\n")
 	cols := m.Columns()
@@ -629,14 +658,14 @@ func WriteMPS(w io.Writer, m *Model) error {
 			marker++
 			inInt = m.Integer[j]
 		}
-		cn := colName(j)
+		cn := colNames[j]
 		wrote := false
 		if m.Obj[j] != 0 {
 			card(bw, "", cn, obj, num(m.Obj[j]), "")
 			wrote = true
 		}
 		for p := cols.Start[j]; p < cols.Start[j+1]; p++ {
-			card(bw, "", cn, rowName(cols.Index[p]), num(cols.Value[p]), "")
+			card(bw, "", cn, rowNames[cols.Index[p]], num(cols.Value[p]), "")
 			wrote = true
 		}
 		if !wrote {
@@ -665,18 +694,18 @@ func WriteMPS(w io.Writer, m *Model) error {
 			ranged = append(ranged, i)
 		}
 		if b != 0 && !math.IsInf(b, 0) {
-			card(bw, "", "RHS", rowName(i), num(b), "")
+			card(bw, "", "RHS", rowNames[i], num(b), "")
 		}
 	}
 	if len(ranged) > 0 {
 		fmt.Fprintf(bw, "RANGES\n")
 		for _, i := range ranged {
-			card(bw, "", "RNG", rowName(i), num(m.RowUpper[i]-m.RowLower[i]), "")
+			card(bw, "", "RNG", rowNames[i], num(m.RowUpper[i]-m.RowLower[i]), "")
 		}
 	}
 	fmt.Fprintf(bw, "BOUNDS\n")
 	for j := range m.Obj {
-		cn := colName(j)
+		cn := colNames[j]
 		lo, up := m.ColLower[j], m.ColUpper[j]
 		switch {
 		case lo == up:

@@ -241,6 +241,49 @@ func TestReadMPSFixedNames(t *testing.T) {
 	}
 }
 
+// TestWriteMPSAwkwardNames writes names the free reader would split or
+// confuse (any Unicode space, a repeat, the objective's name, the marker
+// word) and checks that the model reads back whole, with the plain names
+// kept and each replacement unique. The vertical tab case was found by
+// FuzzReadMPS: fixed format reads "00\v0" as one name.
+func TestWriteMPSAwkwardNames(t *testing.T) {
+	m := NewModel("a\vb")
+	m.ObjName = "cost"
+	x := m.AddCol("x\vy", 1, 0, 4)
+	dup := m.AddCol("C0", 2, 0, 4) // the name x's replacement would take
+	z := m.AddIntCol("x", 0, 0, 3)
+	w := m.AddCol("x", 1, 0, 2)                            // a repeat
+	m.AddRow("cost", 0, 5, []int{x, dup}, []float64{1, 1}) // the objective's name
+	m.AddRow("'MARKER'", -1, 5, []int{z}, []float64{1})
+	m.AddRow("r\u00a0s", 1, 1, []int{x, w}, []float64{1, -1})
+	m.AddRow("ok", 0, 9, []int{dup, z}, []float64{3, 1})
+	back, err := roundTrip(m)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if back.NumRows() != m.NumRows() || back.NumCols() != m.NumCols() {
+		t.Fatalf("size %d×%d, want %d×%d", back.NumRows(), back.NumCols(), m.NumRows(), m.NumCols())
+	}
+	if back.ColName[1] != "C0" || back.ColName[2] != "x" || back.RowName[3] != "ok" {
+		t.Fatalf("plain names not kept: %q %q", back.ColName, back.RowName)
+	}
+	for _, names := range [][]string{back.ColName, append([]string{back.ObjName}, back.RowName...)} {
+		seen := map[string]bool{}
+		for _, n := range names {
+			if seen[n] || n == "" {
+				t.Fatalf("name %q repeated or empty in %q", n, names)
+			}
+			seen[n] = true
+		}
+	}
+	// Everything but the names must come back as written.
+	copy(back.ColName, m.ColName)
+	copy(back.RowName, m.RowName)
+	if err := sameModel(m, back); err != nil {
+		t.Fatal(err)
+	}
+}
+
 func TestReadMPSErrors(t *testing.T) {
 	head := "NAME t\nROWS\n N obj\n L r\nCOLUMNS\n"
 	for _, tc := range []struct {
