@@ -140,11 +140,11 @@ func scaleSparse(a *Sparse, majorScale, minorScale []float64) *Sparse {
 }
 
 // resize returns v with length n, keeping its first elements.
-func resize(v []float64, n int) []float64 {
+func resize[T any](v []T, n int) []T {
 	if cap(v) >= n {
 		return v[:n]
 	}
-	w := make([]float64, n)
+	w := make([]T, n)
 	copy(w, v)
 	return w
 }

@@ -705,6 +705,7 @@ func (s *Solver) dualSimplex(lim *limits, useCutoff bool) Status {
 	// within tolerance), kept up to date where values change; dirty asks
 	// for all of it (and obj) to be recomputed.
 	s.pinf = resize(s.pinf, s.m)
+	s.infAt = resize(s.infAt, s.m)
 	pinf := s.pinf
 	dirty := true
 	degenerate := 0
@@ -729,6 +730,11 @@ func (s *Solver) dualSimplex(lim *limits, useCutoff bool) Status {
 			dirty = true
 		}
 		if dirty {
+			s.infList = s.infList[:0]
+			for p := range pinf {
+				pinf[p] = 0
+				s.infAt[p] = -1
+			}
 			for p := range pinf {
 				s.setInfeasibility(p, ptol)
 			}
@@ -745,13 +751,13 @@ func (s *Solver) dualSimplex(lim *limits, useCutoff bool) Status {
 				return ObjectiveCutoff
 			}
 		}
-		// Choose the leaving row: largest infeasibility²/weight.
+		// Choose the leaving row: largest infeasibility²/weight, ties to
+		// the lowest position (so the path does not depend on the list's
+		// order).
 		r, best := -1, 0.0
-		for p, inf := range pinf {
-			if inf == 0 {
-				continue
-			}
-			if score := inf * inf / s.dse[p]; score > best {
+		for _, p := range s.infList {
+			inf := pinf[p]
+			if score := inf * inf / s.dse[p]; score > best || (score == best && p < r) {
 				r, best = p, score
 			}
 		}
@@ -823,9 +829,16 @@ func (s *Solver) dualSimplex(lim *limits, useCutoff bool) Status {
 			return NumericalTrouble
 		}
 		if len(flips) > 0 {
-			s.applyFlips(flips)
+			flipNZ, dObj := s.applyFlips(flips)
+			if flipNZ == nil {
+				dirty = true
+			} else {
+				for _, p := range flipNZ {
+					s.setInfeasibility(p, ptol)
+				}
+				obj += dObj
+			}
 			delta = s.x[leave] - target
-			dirty = true
 		}
 		// Dual step.
 		thetaD := s.d[q] / row[q]
@@ -858,11 +871,14 @@ func (s *Solver) dualSimplex(lim *limits, useCutoff bool) Status {
 				}
 			} else {
 				for p, v := range s.head {
+					if alpha[p] == 0 {
+						continue
+					}
 					step := dq * alpha[p]
 					s.x[v] -= step
 					dObj -= s.work[v] * step
+					s.setInfeasibility(p, ptol)
 				}
-				dirty = true
 			}
 		}
 		// The loop moved leave by −dq·alpha[r]; it ends at target instead.
@@ -928,17 +944,30 @@ func (s *Solver) dualSimplex(lim *limits, useCutoff bool) Status {
 const cutoffObjectiveSlack = 1e-7
 
 // setInfeasibility records in s.pinf[p] the primal infeasibility of the
-// variable basic at position p, or 0 when it is within tol of its bounds.
+// variable basic at position p, or 0 when it is within tol of its bounds,
+// and keeps s.infList (the positions with a nonzero entry) in step.
 func (s *Solver) setInfeasibility(p int, tol float64) {
 	v := s.head[p]
 	xv := s.x[v]
+	inf := 0.0
 	switch {
 	case xv < s.lo[v]-tol:
-		s.pinf[p] = s.lo[v] - xv
+		inf = s.lo[v] - xv
 	case xv > s.up[v]+tol:
-		s.pinf[p] = xv - s.up[v]
-	default:
-		s.pinf[p] = 0
+		inf = xv - s.up[v]
+	}
+	s.pinf[p] = inf
+	k := s.infAt[p]
+	switch {
+	case inf != 0 && k < 0:
+		s.infAt[p] = len(s.infList)
+		s.infList = append(s.infList, p)
+	case inf == 0 && k >= 0:
+		last := s.infList[len(s.infList)-1]
+		s.infList[k] = last
+		s.infAt[last] = k
+		s.infList = s.infList[:len(s.infList)-1]
+		s.infAt[p] = -1
 	}
 }
 
@@ -955,10 +984,7 @@ func (s *Solver) keepNZ(dst *[]int, nz []int) []int {
 		slices.Sort(out)
 	} else {
 		// Long list: mark and scan instead of sorting.
-		if len(s.nzMark) < s.m {
-			s.nzMark = make([]bool, s.m)
-		}
-		mark := s.nzMark[:s.m]
+		mark := s.nzMarkFor()
 		for _, i := range nz {
 			mark[i] = true
 		}
@@ -1086,12 +1112,14 @@ func (s *Solver) farkasRay(rho []float64, sgn float64) []float64 {
 }
 
 // applyFlips moves the listed nonbasic variables to their other bound and
-// updates the basic values: Δx_B = −B⁻¹·Σ a_j·Δx_j.
-func (s *Solver) applyFlips(flips []int) {
+// updates the basic values: Δx_B = −B⁻¹·Σ a_j·Δx_j. It returns the basis
+// positions whose value may have changed (nil: any) and the change of the
+// working objective.
+func (s *Solver) applyFlips(flips []int) (nz []int, dObj float64) {
 	col := s.tau
-	for i := range col {
-		col[i] = 0
-	}
+	clear(col)
+	rows := s.flipRows[:0]
+	mark := s.nzMarkFor()
 	for _, v := range flips {
 		var dx float64
 		if s.stat[v] == AtLower {
@@ -1102,15 +1130,42 @@ func (s *Solver) applyFlips(flips []int) {
 			dx = s.lo[v] - s.up[v]
 		}
 		s.x[v] = s.boundValue(v, s.stat[v])
+		dObj += s.work[v] * dx
 		idx, val := s.column(v)
 		for k, i := range idx {
 			col[i] += val[k] * dx
+			if !mark[i] {
+				mark[i] = true
+				rows = append(rows, i)
+			}
 		}
 	}
-	s.fac.ftran(col)
-	for p, v := range s.head {
-		s.x[v] -= col[p]
+	for _, i := range rows {
+		mark[i] = false
 	}
+	s.flipRows = rows
+	nz = s.fac.ftranSparse(col, rows)
+	if nz == nil {
+		for p, v := range s.head {
+			s.x[v] -= col[p]
+			dObj -= s.work[v] * col[p]
+		}
+		return nil, dObj
+	}
+	for _, p := range nz {
+		v := s.head[p]
+		s.x[v] -= col[p]
+		dObj -= s.work[v] * col[p]
+	}
+	return s.keepNZ(&s.flipNZ, nz), dObj
+}
+
+// nzMarkFor returns s.nzMark sized to the rows, all false.
+func (s *Solver) nzMarkFor() []bool {
+	if len(s.nzMark) < s.m {
+		s.nzMark = make([]bool, s.m)
+	}
+	return s.nzMark[:s.m]
 }
 
 // primalSimplex runs primal simplex iterations (Devex pricing, Harris

@@ -78,6 +78,9 @@ type Solver struct {
 	unitNZ                       [1]int
 	nzMark                       []bool    // scratch of keepNZ, all false between calls
 	pinf                         []float64 // primal infeasibility per basis position (dual simplex)
+	infList                      []int     // positions p with pinf[p] > 0, in no particular order
+	infAt                        []int     // index of p in infList, or −1
+	flipRows, flipNZ             []int     // scratch for applyFlips
 	rowMark                      []bool
 	rowDirty                     bool // alphaRow must be cleared in full
 	cands                        []ratioCandidate
