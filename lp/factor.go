@@ -78,13 +78,37 @@ type columnFunc func(p int) (idx []int, val []float64)
 // factorise again. Cost: near O(nonzeros) for triangular bases, Markowitz
 // elimination with threshold pivoting on the remaining kernel.
 func factorize(m int, col columnFunc) (f *factor, badCols, freeRows []int) {
+	return factorizeWith(nil, m, col)
+}
+
+// luScratch is the work space of factorizeWith, kept between
+// factorisations of one solver so that they do not allocate it anew. No
+// factor refers to it.
+type luScratch struct {
+	rowIdx, colRows                  [][]int
+	rowVal                           [][]float64
+	rowCount, idxStore               []int
+	valStore                         []float64
+	rowDone, colDone                 []bool
+	head, next, prev, inBucket, mark []int
+	rowSingles, stepOf               []int
+}
+
+// factorizeWith is factorize using the work space sc (nil: its own).
+func factorizeWith(sc *luScratch, m int, col columnFunc) (f *factor, badCols, freeRows []int) {
+	if sc == nil {
+		sc = &luScratch{}
+	}
 	f = &factor{m: m, work: make([]float64, m)}
-	rowIdx := make([][]int, m)
-	rowVal := make([][]float64, m)
-	colRows := make([][]int, m)
+	rowIdx := resize(sc.rowIdx, m)
+	rowVal := resize(sc.rowVal, m)
+	colRows := resize(sc.colRows, m)
+	sc.rowIdx, sc.rowVal, sc.colRows = rowIdx, rowVal, colRows
 	// Carve the rows and columns out of shared arrays, each with exactly
 	// its length as capacity: only rows and columns that fill in grow.
-	rowCount := make([]int, m)
+	rowCount := resize(sc.rowCount, m)
+	clear(rowCount)
+	sc.rowCount = rowCount
 	nnz := 0
 	for p := 0; p < m; p++ {
 		idx, val := col(p)
@@ -95,8 +119,9 @@ func factorize(m int, col columnFunc) (f *factor, badCols, freeRows []int) {
 			}
 		}
 	}
-	idxStore := make([]int, 2*nnz)
-	valStore := make([]float64, nnz)
+	idxStore := resize(sc.idxStore, 2*nnz)
+	valStore := resize(sc.valStore, nnz)
+	sc.idxStore, sc.valStore = idxStore, valStore
 	at := 0
 	for i, c := range rowCount {
 		rowIdx[i] = idxStore[at : at : at+c]
@@ -119,17 +144,21 @@ func factorize(m int, col columnFunc) (f *factor, badCols, freeRows []int) {
 		}
 		colRows[p] = colStore[start:at:at]
 	}
-	rowDone := make([]bool, m)
-	colDone := make([]bool, m)
+	rowDone := resize(sc.rowDone, m)
+	colDone := resize(sc.colDone, m)
+	clear(rowDone)
+	clear(colDone)
+	sc.rowDone, sc.colDone = rowDone, colDone
 
 	// Column count buckets as doubly linked lists.
-	head := make([]int, m+2)
+	head := resize(sc.head, m+2)
 	for c := range head {
 		head[c] = -1
 	}
-	next := make([]int, m)
-	prev := make([]int, m)
-	inBucket := make([]int, m)
+	next := resize(sc.next, m)
+	prev := resize(sc.prev, m)
+	inBucket := resize(sc.inBucket, m)
+	sc.head, sc.next, sc.prev, sc.inBucket = head, next, prev, inBucket
 	link := func(c int) {
 		k := len(colRows[c])
 		if k > m+1 {
@@ -157,15 +186,25 @@ func factorize(m int, col columnFunc) (f *factor, badCols, freeRows []int) {
 	for c := 0; c < m; c++ {
 		link(c)
 	}
-	var rowSingles []int
+	rowSingles := sc.rowSingles[:0]
+	defer func() { sc.rowSingles = rowSingles[:0] }()
 	for i := 0; i < m; i++ {
 		if len(rowIdx[i]) == 1 {
 			rowSingles = append(rowSingles, i)
 		}
 	}
-	mark := make([]int, m) // position+1 of a column in the row being updated
-	f.lstart = append(f.lstart, 0)
-	f.ustart = append(f.ustart, 0)
+	mark := resize(sc.mark, m) // position+1 of a column in the row being updated
+	clear(mark)
+	sc.mark = mark
+	// Every step adds one entry to these; L and U start with room for
+	// the basis' own nonzeros.
+	f.pivRow = make([]int, 0, m)
+	f.pivCol = make([]int, 0, m)
+	f.diag = make([]float64, 0, m)
+	f.lstart = make([]int, 1, m+1)
+	f.ustart = make([]int, 1, m+1)
+	f.uidx = make([]int, 0, nnz)
+	f.uval = make([]float64, 0, nnz)
 
 	removeFromCol := func(c, r int) {
 		rs := colRows[c]
@@ -365,15 +404,16 @@ func factorize(m int, col columnFunc) (f *factor, badCols, freeRows []int) {
 	f.etaPos = make([]int, 0, refactorEvery)
 	f.etaPiv = make([]float64, 0, refactorEvery)
 	f.etaStart = make([]int, 1, refactorEvery+1)
-	f.transpose()
+	f.transpose(sc)
 	return f, nil, nil
 }
 
-// transpose builds the column copy of U and the row copy of L. Cost
-// O(nonzeros of L and U).
-func (f *factor) transpose() {
+// transpose builds the column copy of U and the row copy of L, with work
+// space sc. Cost O(nonzeros of L and U).
+func (f *factor) transpose(sc *luScratch) {
 	m := f.m
-	stepOf := make([]int, m)
+	stepOf := resize(sc.stepOf, m)
+	sc.stepOf = stepOf
 	for k, c := range f.pivCol {
 		stepOf[c] = k
 	}
@@ -386,7 +426,7 @@ func (f *factor) transpose() {
 	}
 	f.ucRow = make([]int, len(f.uidx))
 	f.ucVal = make([]float64, len(f.uidx))
-	next := append([]int(nil), f.ucStart[:m]...)
+	next := append(sc.next[:0], f.ucStart[:m]...)
 	for k := 0; k < m; k++ {
 		for p := f.ustart[k]; p < f.ustart[k+1]; p++ {
 			q := stepOf[f.uidx[p]]

@@ -106,7 +106,7 @@ func (s *Solver) ensureFactor() bool {
 		return true
 	}
 	for attempt := 0; attempt < 4; attempt++ {
-		f, bad, free := factorize(s.m, func(p int) ([]int, []float64) { return s.column(s.head[p]) })
+		f, bad, free := factorizeWith(&s.lu, s.m, func(p int) ([]int, []float64) { return s.column(s.head[p]) })
 		if f != nil {
 			s.fac = f
 			s.facValid = true

@@ -81,6 +81,7 @@ type Solver struct {
 	infList                      []int     // positions p with pinf[p] > 0, in no particular order
 	infAt                        []int     // index of p in infList, or −1
 	flipRows, flipNZ             []int     // scratch for applyFlips
+	lu                           luScratch // work space of the factorisations
 	rowMark                      []bool
 	rowDirty                     bool // alphaRow must be cleared in full
 	cands                        []ratioCandidate
