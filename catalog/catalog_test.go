@@ -185,6 +185,33 @@ func TestSyntaxErrorSnippet(t *testing.T) {
 	}
 }
 
+// TestCaretSnippet checks the snippet renderer on tabs, a position past
+// the end of the line, lines that do not exist, and the two-byte input
+// `"\` on which the TOML decoder's own rendering panics (found by
+// FuzzDecode).
+func TestCaretSnippet(t *testing.T) {
+	for _, tc := range []struct {
+		text             string
+		line, col, width int
+		want             string
+	}{
+		{"a = 1\nb = = 2\n", 2, 5, 1, "      2 | b = = 2\n              ^"},
+		{"\tx = ?", 1, 6, 1, "      1 |         x = ?\n                      ^"},
+		{"x = 1\r\n", 1, 9, 2, "      1 | x = 1\n               ^^"},
+		{"x", 0, 1, 1, ""},
+		{"x", 3, 1, 1, ""},
+	} {
+		if got := caretSnippet(tc.text, tc.line, tc.col, tc.width); got != tc.want {
+			t.Errorf("caretSnippet(%q, %d, %d, %d):\n got %q\nwant %q", tc.text, tc.line, tc.col, tc.width, got, tc.want)
+		}
+	}
+	_, _, err := Decode("q.toml", []byte(`"\`))
+	var list ErrorList
+	if !errors.As(err, &list) || len(list) != 1 || !errors.Is(list[0], ErrSyntax) {
+		t.Fatalf("got %v, want one syntax error", err)
+	}
+}
+
 func TestAllErrorsInOneRun(t *testing.T) {
 	text := strings.NewReplacer(`gbps = 100`, `gbps = -1`, `book_life = 7`, `book_lyfe = 7`, `discount = 0.05`, `discount = 2`).Replace(goodCatalog)
 	_, _, err := Decode("bad.toml", []byte(text))

@@ -30,27 +30,53 @@ type Source struct {
 func Parse(file string, data []byte) (*Source, *Table, error) {
 	var m map[string]any
 	if _, err := toml.Decode(string(data), &m); err != nil {
-		return nil, nil, ErrorList{syntaxError(file, err)}
+		return nil, nil, ErrorList{syntaxError(file, string(data), err)}
 	}
 	src := &Source{File: file, text: string(data), pos: scanKeyPositions(string(data))}
 	return src, &Table{src: src, m: m, used: map[string]bool{}}, nil
 }
 
-// syntaxError turns the TOML decoder's error into an *Error.
-func syntaxError(file string, err error) *Error {
+// syntaxError turns the TOML decoder's error on text into an *Error.
+func syntaxError(file, text string, err error) *Error {
 	var pe toml.ParseError
 	if !errors.As(err, &pe) {
 		return &Error{File: file, Err: fmt.Errorf("%w: %v", ErrSyntax, err)}
 	}
-	e := &Error{File: file, Line: pe.Position.Line, Col: pe.Position.Col,
-		Err: fmt.Errorf("%w: %s", ErrSyntax, pe.Message)}
-	// The last lines of ErrorWithPosition are the offending line and the
-	// caret under it; keep just those two.
-	lines := strings.Split(strings.TrimRight(pe.ErrorWithPosition(), "\n"), "\n")
-	if len(lines) >= 2 && strings.Contains(lines[len(lines)-1], "^") {
-		e.Snippet = lines[len(lines)-2] + "\n" + lines[len(lines)-1]
+	return &Error{File: file, Line: pe.Position.Line, Col: pe.Position.Col,
+		Err:     fmt.Errorf("%w: %s", ErrSyntax, pe.Message),
+		Snippet: caretSnippet(text, pe.Position.Line, pe.Position.Col, pe.Position.Len)}
+}
+
+// caretSnippet renders line (1-based) of text, numbered, with carets
+// under width characters from column col; tabs are expanded to stops of
+// 8 so that the carets line up. It is empty when the line does not exist
+// (the decoder's own rendering panics on some such positions, which
+// fuzzing found).
+func caretSnippet(text string, line, col, width int) string {
+	lines := strings.Split(text, "\n")
+	if line < 1 || line > len(lines) {
+		return ""
 	}
-	return e
+	var shown strings.Builder
+	vis, indent := 0, -1 // vis: characters shown so far
+	for i, r := range []rune(strings.TrimRight(lines[line-1], "\r")) {
+		if i == col-1 {
+			indent = vis
+		}
+		if r == '\t' {
+			n := 8 - vis%8
+			shown.WriteString(strings.Repeat(" ", n))
+			vis += n
+		} else {
+			shown.WriteRune(r)
+			vis++
+		}
+	}
+	if indent < 0 {
+		indent = vis // the position is at or past the end of the line
+	}
+	return fmt.Sprintf("%7d | %s\n%10s%s%s", line, shown.String(), "",
+		strings.Repeat(" ", indent), strings.Repeat("^", max(width, 1)))
 }
 
 // Position returns where the key path (with array indices, "links[2].km")
