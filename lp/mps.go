@@ -479,6 +479,10 @@ func (p *mpsParser) bound(line string) error {
 		}
 	}
 	m := p.m
+	// An upper bound of −∞ or a lower bound of +∞ leaves no value at all.
+	if (math.IsInf(v, -1) && (typ == "UP" || typ == "UI")) || (math.IsInf(v, 1) && (typ == "LO" || typ == "LI")) {
+		return p.errf(valStr, ErrMPSNumber)
+	}
 	switch typ {
 	case "UP", "UI":
 		m.ColUpper[j] = v

@@ -309,6 +309,8 @@ func TestReadMPSErrors(t *testing.T) {
 		{"no end", head + " x r 1\n", 6, ErrMPSEnd},
 		{"form feed line is blank (fuzz regression)", "\f\nFOO\n", 2, ErrMPSSection},
 		{"objsense", "NAME t\nOBJSENSE\n    UP\nENDATA\n", 3, ErrMPSSection},
+		{"upper bound of minus infinity (fuzz regression)", head + " x r 1\nBOUNDS\n UP BND x -1e70\nENDATA\n", 8, ErrMPSNumber},
+		{"lower bound of plus infinity", head + " x r 1\nBOUNDS\n LO BND x 1e30\nENDATA\n", 8, ErrMPSNumber},
 	} {
 		t.Run(tc.name, func(t *testing.T) {
 			_, err := ReadMPS(strings.NewReader(tc.src), MPSAuto)
