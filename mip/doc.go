@@ -26,8 +26,9 @@
 //     against the caller's untouched model.
 //   - Root: activity-based bound propagation, the LP relaxation, rounds of
 //     sequentially lifted knapsack cover cuts on the rows and Gomory
-//     mixed-integer cuts on tableau rows, with a small pool that ages slack
-//     cuts out of the LP; reduced-cost fixing of the global domain whenever
+//     mixed-integer cuts on tableau rows, plus the caller's own cuts
+//     (Settings.Separate), with a small pool that ages slack cuts out of
+//     the LP; reduced-cost fixing of the global domain whenever
 //     the incumbent improves; rounding and diving heuristics (a rounding
 //     that violates rows is repaired by an LP over the continuous columns
 //     at the root, after each dive and every few nodes).

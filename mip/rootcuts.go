@@ -8,7 +8,7 @@ import (
 	"netstage/lp"
 )
 
-// rootCuts runs rounds of cover and Gomory cut separation at the root,
+// rootCuts runs rounds of cover, Gomory and caller's cut separation at the root,
 // re-solving the LP after each round, until no violated cut is found or
 // the bound stalls. Cuts that stay slack are aged out of the LP into the
 // pool, from which they come back when violated. It returns the last LP
@@ -87,6 +87,16 @@ func (s *search) rootCuts(r lp.Result) lp.Result {
 				if c := gomoryFromRow(p, buf, basic, value, basis, s.lpLo, s.lpUp, s.rows); c != nil {
 					found = s.addFound(found, c, x)
 				}
+			}
+		}
+		// The caller's cuts.
+		if s.set.Separate != nil {
+			for _, row := range s.set.Separate(append([]float64(nil), x...)) {
+				if len(row.Index) != len(row.Value) {
+					continue
+				}
+				c := &cut{idx: row.Index, val: row.Value, lower: row.Lower, upper: row.Upper, kind: "caller"}
+				found = s.addFound(found, c, x)
 			}
 		}
 		if len(found) == 0 {

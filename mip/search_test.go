@@ -341,3 +341,59 @@ func TestSmallCases(t *testing.T) {
 		})
 	}
 }
+
+// TestSeparateCallback: the caller's cutting planes enter the root LP. The
+// model is the odd cycle max x + 1.1y + 1.2z with x+y, y+z, x+z ≤ 1 over
+// binaries (weights unequal so that the bound is not rounded to a lattice):
+// its LP optimum is 1.65 (every column at 0.5) and its integer optimum 1.2,
+// and the clique row x+y+z ≤ 1 holds at every integer point (two ones
+// break a pair row). With that row from the callback the root bound is the
+// optimum.
+func TestSeparateCallback(t *testing.T) {
+	m := lp.NewModel("triangle")
+	m.Sense = lp.Maximize
+	x := m.AddIntCol("x", 1, 0, 1)
+	y := m.AddIntCol("y", 1.1, 0, 1)
+	z := m.AddIntCol("z", 1.2, 0, 1)
+	for _, p := range [][2]int{{x, y}, {y, z}, {x, z}} {
+		m.AddRow("pair", -lp.Inf, 1, p[:], []float64{1, 1})
+	}
+	set := Settings{NoHeuristics: true, NoStrongBranching: true}
+	plain, err := Solve(context.Background(), m, set)
+	if err != nil {
+		t.Fatal(err)
+	}
+	calls := 0
+	set.Separate = func(pt []float64) []lp.Row {
+		calls++
+		if len(pt) != m.NumCols() {
+			t.Errorf("separator got %d values, want %d", len(pt), m.NumCols())
+		}
+		return []lp.Row{{Name: "clique", Lower: -lp.Inf, Upper: 1, Index: []int{x, y, z}, Value: []float64{1, 1, 1}}}
+	}
+	r, err := Solve(context.Background(), m, set)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if calls == 0 {
+		t.Fatalf("the separator was never called: %+v", r)
+	}
+	if math.Abs(r.RootBound-1.2) > 1e-9 || r.Status != Optimal || math.Abs(r.Objective-1.2) > 1e-9 {
+		t.Fatalf("with the clique row: root bound %v, status %v, objective %v; want 1.2, optimal, 1.2 (without it the root bound is %v)",
+			r.RootBound, r.Status, r.Objective, plain.RootBound)
+	}
+	// The built-in cuts may close this small gap on their own, so the
+	// rows' effect is shown with a row that is not valid: z ≤ 0, violated
+	// at the LP point, cuts off the optimum, as the documentation warns,
+	// and the best plan left is y alone (1.1).
+	set.Separate = func(pt []float64) []lp.Row {
+		return []lp.Row{{Name: "not valid", Lower: -lp.Inf, Upper: 0, Index: []int{z}, Value: []float64{1}}}
+	}
+	bad, err := Solve(context.Background(), m, set)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if math.Abs(bad.Objective-1.1) > 1e-9 {
+		t.Fatalf("with the row z ≤ 0: objective %v, want 1.1 (the row did not enter the LP); without rows %v", bad.Objective, plain.Objective)
+	}
+}

@@ -3,6 +3,8 @@ package mip
 import (
 	"fmt"
 	"time"
+
+	"netstage/lp"
 )
 
 // Default values used when a Settings field is zero.
@@ -140,6 +142,14 @@ type Settings struct {
 	Heuristic func(lpSolution []float64) [][]float64
 	// HeuristicFreq is the node interval for Heuristic (0: DefaultHeuristicFreq).
 	HeuristicFreq int
+
+	// Separate, when set, lets the caller add cutting planes it knows from
+	// the model's structure. It is called in each round of root cuts with
+	// the LP solution (model columns) and returns rows in the model's
+	// columns that every feasible integer point satisfies (the caller's
+	// promise: an invalid row cuts off solutions). Rows violated by the
+	// point enter the cut pool with the built-in cuts.
+	Separate func(lpSolution []float64) []lp.Row
 
 	// NoCuts turns off root cutting planes; NoStrongBranching turns off
 	// strong branching (pseudocosts alone); NoHeuristics turns off the
