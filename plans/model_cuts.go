@@ -39,7 +39,6 @@ const cutFracTol = 1e-6
 // alone (s = 0, F = committed) gives a second cut with no flow term.
 func (m *Model) addCutSets() {
 	c := m.Case
-	costMode := c.CostMode()
 	var sets [][]int
 	for v := range c.Sites {
 		sets = append(sets, []int{v})
@@ -86,45 +85,8 @@ func (m *Model) addCutSets() {
 			in[v] = true
 		}
 		for t := 0; t < c.Horizon; t++ {
-			var committed, forecast float64
-			var xs []int
-			for k, d := range c.Demands {
-				if in[d.A] == in[d.B] {
-					continue
-				}
-				forecast += d.Forecast[t]
-				if costMode {
-					committed += d.Forecast[t]
-				} else {
-					committed += d.Committed[t]
-				}
-				xs = append(xs, m.served[k][t])
-			}
-			var cols []int
-			var coefs []float64
-			base := 0.0
-			for _, link := range c.Links {
-				if in[link.A] != in[link.B] {
-					base += link.Ceiling * link.BaseCapacity[t]
-				}
-			}
-			for oi := range m.options {
-				o := &m.options[oi]
-				l := &c.Links[o.link]
-				if in[l.A] == in[l.B] {
-					continue
-				}
-				if j := o.unitsInService(t); j >= 0 {
-					cols = append(cols, j)
-					coefs = append(coefs, l.Ceiling*c.Items[o.item].Gbps)
-				}
-			}
-			if len(cols) > 0 {
-				name := fmt.Sprintf("cut_%d_%d", si, c.Year(t))
-				m.addMIR(name+"_c", cols, coefs, committed-base, nil, 0)
-				if !costMode && forecast > committed {
-					m.addMIR(name+"_f", cols, coefs, forecast-base, xs, forecast)
-				}
+			for _, row := range m.cutSetRows(fmt.Sprintf("cut_%d_%d", si, c.Year(t)), in, t) {
+				m.cutRows = append(m.cutRows, m.LP.AddRow(row.Name, row.Lower, row.Upper, row.Index, row.Value))
 			}
 		}
 		for _, v := range set {
@@ -133,12 +95,61 @@ func (m *Model) addCutSets() {
 	}
 }
 
-// addMIR adds the MIR cuts of Σ coefs·y + s ≥ r for each divisor, where
-// s = f − Σ x[xs] (no s when xs is nil).
-func (m *Model) addMIR(name string, cols []int, coefs []float64, r float64, xs []int, f float64) {
-	if r <= cutFracTol {
-		return
+// cutSetRows returns the MIR cut-set rows (see addCutSets) of the site set
+// marked in in, for year t: on committed traffic, and on forecast traffic
+// with the flow term when some traffic is optional.
+func (m *Model) cutSetRows(name string, in []bool, t int) []lp.Row {
+	c := m.Case
+	var committed, forecast float64
+	var xs []int
+	for k, d := range c.Demands {
+		if in[d.A] == in[d.B] {
+			continue
+		}
+		forecast += d.Forecast[t]
+		if c.CostMode() {
+			committed += d.Forecast[t]
+		} else {
+			committed += d.Committed[t]
+		}
+		xs = append(xs, m.served[k][t])
 	}
+	var cols []int
+	var coefs []float64
+	base := 0.0
+	for _, link := range c.Links {
+		if in[link.A] != in[link.B] {
+			base += link.Ceiling * link.BaseCapacity[t]
+		}
+	}
+	for oi := range m.options {
+		o := &m.options[oi]
+		l := &c.Links[o.link]
+		if in[l.A] == in[l.B] {
+			continue
+		}
+		if j := o.unitsInService(t); j >= 0 {
+			cols = append(cols, j)
+			coefs = append(coefs, l.Ceiling*c.Items[o.item].Gbps)
+		}
+	}
+	if len(cols) == 0 {
+		return nil
+	}
+	rows := mirRows(name+"_c", cols, coefs, committed-base, nil, 0)
+	if !c.CostMode() && forecast > committed {
+		rows = append(rows, mirRows(name+"_f", cols, coefs, forecast-base, xs, forecast)...)
+	}
+	return rows
+}
+
+// mirRows returns the MIR cuts of Σ coefs·y + s ≥ r for each divisor,
+// where s = f − Σ x[xs] (no s when xs is nil).
+func mirRows(name string, cols []int, coefs []float64, r float64, xs []int, f float64) []lp.Row {
+	if r <= cutFracTol {
+		return nil
+	}
+	var rows []lp.Row
 	divisors := append([]float64(nil), coefs...)
 	sort.Sort(sort.Reverse(sort.Float64Slice(divisors)))
 	var distinct []float64
@@ -175,7 +186,158 @@ func (m *Model) addMIR(name string, cols []int, coefs []float64, r float64, xs [
 			}
 			lower -= f * w
 		}
-		row := m.LP.AddRow(fmt.Sprintf("%s_%d", name, di), lower, lp.Inf, rc, vals)
-		m.cutRows = append(m.cutRows, row)
+		rows = append(rows, lp.Row{Name: fmt.Sprintf("%s_%d", name, di), Lower: lower, Upper: lp.Inf, Index: rc, Value: vals})
 	}
+	return rows
+}
+
+// Limits of the cut-set separation.
+const (
+	// maxSeparatedRows caps the rows one separation call returns (the
+	// most violated first).
+	maxSeparatedRows = 200
+	// minCutViolation is the least violation (in the row's own units,
+	// modules) of a separated row.
+	minCutViolation = 1e-3
+)
+
+// separateCutSets returns MIR cut-set rows (see addCutSets) that the LP
+// point x violates, over site sets the static rows do not cover. For each
+// year and each seed site it grows a connected set one neighbour at a
+// time, always adding the site that leaves the least spare capacity across
+// the cut at x (capacity across minus traffic served across: where that
+// is small the rounding to whole modules bites), and tests the rows of
+// every set on the way up to all but two sites. Cost per call
+// O(years · sites² · (sites + links + rows tested)).
+func (m *Model) separateCutSets(x []float64) []lp.Row {
+	c := m.Case
+	n := len(c.Sites)
+	if n < 5 {
+		return nil
+	}
+	// Spare capacity across a cut changes, when site u joins, by what
+	// crosses between u and the rest: links and demands by end pair.
+	adj := make([][]int, n) // adj[u]: links at u
+	for li, l := range c.Links {
+		adj[l.A] = append(adj[l.A], li)
+		adj[l.B] = append(adj[l.B], li)
+	}
+	type found struct {
+		row  lp.Row
+		viol float64
+	}
+	var out []found
+	seen := map[string]bool{}
+	in := make([]bool, n)
+	linkCap := make([]float64, len(c.Links))
+	pair := make([][]float64, n) // served traffic between two sites at x
+	for u := range pair {
+		pair[u] = make([]float64, n)
+	}
+	for t := 0; t < c.Horizon; t++ {
+		for li, l := range c.Links {
+			linkCap[li] = l.Ceiling * l.BaseCapacity[t]
+		}
+		for oi := range m.options {
+			o := &m.options[oi]
+			if j := o.unitsInService(t); j >= 0 {
+				l := &c.Links[o.link]
+				linkCap[o.link] += l.Ceiling * c.Items[o.item].Gbps * x[j]
+			}
+		}
+		for u := range pair {
+			clear(pair[u])
+		}
+		for k, d := range c.Demands {
+			v := x[m.served[k][t]]
+			pair[d.A][d.B] += v
+			pair[d.B][d.A] += v
+		}
+		// gain(u): change of spare capacity when u joins the set.
+		gain := func(u int) float64 {
+			g := 0.0
+			for _, li := range adj[u] {
+				l := &c.Links[li]
+				other := l.A + l.B - u
+				if in[other] {
+					g -= linkCap[li]
+				} else {
+					g += linkCap[li]
+				}
+			}
+			for v := 0; v < n; v++ {
+				if v == u {
+					continue
+				}
+				if in[v] {
+					g += pair[u][v]
+				} else {
+					g -= pair[u][v]
+				}
+			}
+			return g
+		}
+		// Seeds: every site, then both ends of every link.
+		for seed := 0; seed < n+len(c.Links); seed++ {
+			clear(in)
+			members := []int{seed}
+			if seed >= n {
+				l := &c.Links[seed-n]
+				members = []int{l.A, l.B}
+				in[l.B] = true
+			}
+			in[members[0]] = true
+			for len(members) < n-2 {
+				best, bestGain := -1, math.Inf(1)
+				for _, u := range members {
+					for _, li := range adj[u] {
+						l := &c.Links[li]
+						v := l.A + l.B - u
+						if in[v] {
+							continue
+						}
+						if g := gain(v); g < bestGain {
+							best, bestGain = v, g
+						}
+					}
+				}
+				if best < 0 {
+					break
+				}
+				in[best] = true
+				members = append(members, best)
+				if len(members) < 3 {
+					continue // pairs are static rows already
+				}
+				key := fmt.Sprint(t, slices.Sorted(slices.Values(members)))
+				if seen[key] {
+					continue
+				}
+				seen[key] = true
+				for _, row := range m.cutSetRows("sep", in, t) {
+					if v := row.Lower - rowActivity(row, x); v > minCutViolation {
+						out = append(out, found{row, v})
+					}
+				}
+			}
+		}
+	}
+	sort.SliceStable(out, func(a, b int) bool { return out[a].viol > out[b].viol })
+	if len(out) > maxSeparatedRows {
+		out = out[:maxSeparatedRows]
+	}
+	rows := make([]lp.Row, len(out))
+	for k, f := range out {
+		rows[k] = f.row
+	}
+	return rows
+}
+
+// rowActivity is Σ row.Value·x over the row's columns.
+func rowActivity(row lp.Row, x []float64) float64 {
+	a := 0.0
+	for k, j := range row.Index {
+		a += row.Value[k] * x[j]
+	}
+	return a
 }

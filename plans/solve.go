@@ -98,6 +98,9 @@ func Solve(ctx context.Context, c *Case, opts SolveOptions) (*Result, error) {
 	if !opts.NoHeuristic {
 		set.Heuristic = m.roundUpHeuristic
 	}
+	if !opts.NoCutSets && !opts.NoSeparation {
+		set.Separate = m.separateCutSets
+	}
 	// The baseline is one LP: solve it first, so that a stop during the
 	// search still leaves it.
 	baseStart := time.Now()

@@ -21,8 +21,12 @@ type SolveOptions struct {
 	// NoHeuristic turns off the plan's rounding heuristic (for measuring
 	// what it buys).
 	NoHeuristic bool
-	// NoCutSets turns off the cut-set inequalities on link capacities.
+	// NoCutSets turns off the cut-set inequalities on link capacities
+	// (the model's rows and those separated at the root).
 	NoCutSets bool
+	// NoSeparation keeps the model's cut-set rows but does not separate
+	// further ones at the root (for measuring what separation buys).
+	NoSeparation bool
 	// NoBaselineStart does not hand the do-nothing plan to the search as
 	// its first incumbent (for measuring what it buys).
 	NoBaselineStart bool
