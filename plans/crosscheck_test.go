@@ -151,3 +151,22 @@ func loadSynthetic(t testing.TB, sites, years int, seed int64) (*Case, error) {
 	c, _, err := Load(writeSynthetic(t, sites, years, seed))
 	return c, err
 }
+
+// relaxSynthetic loads a synthetic case, builds its model and solves the
+// LP relaxation, failing the test on any error.
+func relaxSynthetic(t testing.TB, sites, years int, seed int64) (*Case, *Model, lp.Result) {
+	t.Helper()
+	c, err := loadSynthetic(t, sites, years, seed)
+	if err != nil {
+		t.Fatal(err)
+	}
+	m, err := BuildModel(c, BuildOptions{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	relax, err := lp.Solve(context.Background(), m.LP, lp.Settings{})
+	if err != nil || relax.Status != lp.Optimal {
+		t.Fatalf("%d sites, %d years, seed %d: relaxation %v %v", sites, years, seed, relax.Status, err)
+	}
+	return c, m, relax
+}

@@ -4,8 +4,6 @@ import (
 	"context"
 	"fmt"
 	"testing"
-
-	"netstage/lp"
 )
 
 // TestSeparatedCutSetsValid: every cut-set row separated at the LP optimum
@@ -19,18 +17,7 @@ func TestSeparatedCutSetsValid(t *testing.T) {
 	found := 0
 	for _, tc := range []struct{ sites, years, seed int }{{7, 3, 1}, {8, 3, 2}, {9, 4, 3}, {8, 4, 4}} {
 		t.Run(fmt.Sprintf("%d-sites-%d-years-seed-%d", tc.sites, tc.years, tc.seed), func(t *testing.T) {
-			c, err := loadSynthetic(t, tc.sites, tc.years, int64(tc.seed))
-			if err != nil {
-				t.Fatal(err)
-			}
-			m, err := BuildModel(c, BuildOptions{})
-			if err != nil {
-				t.Fatal(err)
-			}
-			relax, err := lp.Solve(context.Background(), m.LP, lp.Settings{})
-			if err != nil || relax.Status != lp.Optimal {
-				t.Fatalf("LP relaxation: %v %v", relax.Status, err)
-			}
+			c, m, relax := relaxSynthetic(t, tc.sites, tc.years, int64(tc.seed))
 			rows := m.separateCutSets(relax.X)
 			found += len(rows)
 			res, err := Solve(context.Background(), c, SolveOptions{Gap: 1e-9})

@@ -67,18 +67,7 @@ func TestRoundUpHeuristic(t *testing.T) {
 		n = 3
 	}
 	for seed := 1; seed <= n; seed++ {
-		c, err := loadSynthetic(t, 4+seed%3, 4+seed%2, int64(seed))
-		if err != nil {
-			t.Fatal(err)
-		}
-		m, err := BuildModel(c, BuildOptions{})
-		if err != nil {
-			t.Fatal(err)
-		}
-		relax, err := lp.Solve(context.Background(), m.LP, lp.Settings{})
-		if err != nil || relax.Status != lp.Optimal {
-			t.Fatalf("seed %d: relaxation %v %v", seed, relax.Status, err)
-		}
+		_, m, relax := relaxSynthetic(t, 4+seed%3, 4+seed%2, int64(seed))
 		cands := m.roundUpHeuristic(relax.X)
 		if len(cands) != len(roundingThresholds)+1 {
 			t.Fatalf("seed %d: %d candidates, want %d (no budget trouble here)", seed, len(cands), len(roundingThresholds)+1)
