@@ -505,14 +505,21 @@ func (f *factor) ftranU(b []float64) {
 // file).
 func (f *factor) btran(d []float64) {
 	for e := len(f.etaPos) - 1; e >= 0; e-- {
-		p := f.etaPos[e]
-		v := d[p]
-		for q := f.etaStart[e]; q < f.etaStart[e+1]; q++ {
-			v -= f.etaVal[q] * d[f.etaIdx[q]]
-		}
-		d[p] = v / f.etaPiv[e]
+		f.btranEta(e, d)
 	}
 	f.btranFromU(d)
+}
+
+// btranEta applies eta update e to d in the btran direction and returns
+// the new value at its position.
+func (f *factor) btranEta(e int, d []float64) float64 {
+	p := f.etaPos[e]
+	v := d[p]
+	for q := f.etaStart[e]; q < f.etaStart[e+1]; q++ {
+		v -= f.etaVal[q] * d[f.etaIdx[q]]
+	}
+	d[p] = v / f.etaPiv[e]
+	return d[p]
 }
 
 // btranFromU is btran after the eta file: the Uᵀ and Lᵀ passes.

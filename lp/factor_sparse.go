@@ -288,14 +288,8 @@ func (f *factor) btranSparse(d []float64, nz []int) []int {
 		start = append(start, f.stepOfCol[p])
 	}
 	for e := len(f.etaPos) - 1; e >= 0; e-- {
-		p := f.etaPos[e]
-		v := d[p]
-		for q := f.etaStart[e]; q < f.etaStart[e+1]; q++ {
-			v -= f.etaVal[q] * d[f.etaIdx[q]]
-		}
-		d[p] = v / f.etaPiv[e]
-		if d[p] != 0 {
-			start = append(start, f.stepOfCol[p])
+		if f.btranEta(e, d) != 0 {
+			start = append(start, f.stepOfCol[f.etaPos[e]])
 		}
 	}
 	// Uᵀ pass: step k reaches the later steps of the columns in U row k.
