@@ -203,12 +203,14 @@ const (
 
 // separateCutSets returns MIR cut-set rows (see addCutSets) that the LP
 // point x violates, over site sets the static rows do not cover. For each
-// year and each seed site it grows a connected set one neighbour at a
-// time, always adding the site that leaves the least spare capacity across
-// the cut at x (capacity across minus traffic served across: where that
-// is small the rounding to whole modules bites), and tests the rows of
-// every set on the way up to all but two sites. Cost per call
-// O(years · sites² · (sites + links + rows tested)).
+// year, starting from each site and from the two ends of each link, it
+// grows a connected set one neighbour at a time, always adding the site
+// that leaves the least spare capacity across the cut at x (capacity
+// across minus traffic served across: where that is small the rounding to
+// whole modules bites), and tests the rows of every set on the way up to
+// all but two sites. Cost per call O(years · (sites + links) · sites ·
+// (sites · degree + demands + options)); about 0.2 s on the synthetic L
+// case (50 sites, 10 years).
 func (m *Model) separateCutSets(x []float64) []lp.Row {
 	c := m.Case
 	n := len(c.Sites)
