@@ -209,8 +209,9 @@ const (
 // across minus traffic served across: where that is small the rounding to
 // whole modules bites), and tests the rows of every set on the way up to
 // all but two sites. Cost per call O(years · (sites + links) · sites ·
-// (sites · degree + demands + options)); about 0.2 s on the synthetic L
-// case (50 sites, 10 years).
+// (sites + demands + options)): the gains of the candidate sites are kept
+// up to date as the set grows. BenchmarkSeparateCutSets: 8 ms on the
+// synthetic M case, 23 ms on L (50 sites, 10 years).
 func (m *Model) separateCutSets(x []float64) []lp.Row {
 	c := m.Case
 	n := len(c.Sites)
@@ -231,12 +232,18 @@ func (m *Model) separateCutSets(x []float64) []lp.Row {
 	var out []found
 	seen := map[string]bool{}
 	in := make([]bool, n)
+	frontier := make([]bool, n)
+	gain := make([]float64, n)
+	spare0 := make([]float64, n)
+	members := make([]int, 0, n)
 	linkCap := make([]float64, len(c.Links))
 	pair := make([][]float64, n) // served traffic between two sites at x
 	for u := range pair {
 		pair[u] = make([]float64, n)
 	}
+	mask := make([]byte, (n+7)/8)
 	for t := 0; t < c.Horizon; t++ {
+		clear(seen)
 		for li, l := range c.Links {
 			linkCap[li] = l.Ceiling * l.BaseCapacity[t]
 		}
@@ -255,63 +262,69 @@ func (m *Model) separateCutSets(x []float64) []lp.Row {
 			pair[d.A][d.B] += v
 			pair[d.B][d.A] += v
 		}
-		// gain(u): change of spare capacity when u joins the set.
-		gain := func(u int) float64 {
+		// spare0[u]: the spare capacity around u alone (capacity of its
+		// links less the traffic served to and from it).
+		for u := 0; u < n; u++ {
 			g := 0.0
 			for _, li := range adj[u] {
-				l := &c.Links[li]
-				other := l.A + l.B - u
-				if in[other] {
-					g -= linkCap[li]
-				} else {
-					g += linkCap[li]
-				}
+				g += linkCap[li]
 			}
 			for v := 0; v < n; v++ {
-				if v == u {
-					continue
-				}
-				if in[v] {
-					g += pair[u][v]
-				} else {
-					g -= pair[u][v]
-				}
+				g -= pair[u][v]
 			}
-			return g
+			spare0[u] = g
 		}
 		// Seeds: every site, then both ends of every link.
 		for seed := 0; seed < n+len(c.Links); seed++ {
 			clear(in)
-			members := []int{seed}
-			if seed >= n {
-				l := &c.Links[seed-n]
-				members = []int{l.A, l.B}
-				in[l.B] = true
+			clear(frontier)
+			// gain[v]: the change of spare capacity across the cut when
+			// v joins the set; join keeps it (and the frontier of sites
+			// linked to the set) up to date in O(sites + degree).
+			copy(gain, spare0)
+			members := members[:0]
+			join := func(u int) {
+				in[u] = true
+				members = append(members, u)
+				for v := 0; v < n; v++ {
+					gain[v] += 2 * pair[v][u]
+				}
+				for _, li := range adj[u] {
+					l := &c.Links[li]
+					v := l.A + l.B - u
+					gain[v] -= 2 * linkCap[li]
+					frontier[v] = true
+				}
 			}
-			in[members[0]] = true
+			if seed < n {
+				join(seed)
+			} else {
+				l := &c.Links[seed-n]
+				join(l.A)
+				join(l.B)
+			}
 			for len(members) < n-2 {
 				best, bestGain := -1, math.Inf(1)
-				for _, u := range members {
-					for _, li := range adj[u] {
-						l := &c.Links[li]
-						v := l.A + l.B - u
-						if in[v] {
-							continue
-						}
-						if g := gain(v); g < bestGain {
-							best, bestGain = v, g
-						}
+				for v := 0; v < n; v++ {
+					if frontier[v] && !in[v] && gain[v] < bestGain {
+						best, bestGain = v, gain[v]
 					}
 				}
 				if best < 0 {
 					break
 				}
-				in[best] = true
-				members = append(members, best)
+				join(best)
 				if len(members) < 3 {
 					continue // pairs are static rows already
 				}
-				key := fmt.Sprint(t, slices.Sorted(slices.Values(members)))
+				// The set as a bit mask (the year is fixed in this loop).
+				for k := range mask {
+					mask[k] = 0
+				}
+				for _, u := range members {
+					mask[u/8] |= 1 << (u % 8)
+				}
+				key := string(mask)
 				if seen[key] {
 					continue
 				}

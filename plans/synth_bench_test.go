@@ -4,6 +4,8 @@ import (
 	"context"
 	"testing"
 	"time"
+
+	"netstage/lp"
 )
 
 // benchTimeLimit caps each solve of the benchmarks: issue 5 asks for the
@@ -77,5 +79,24 @@ func BenchmarkSynthetic(b *testing.B) {
 		if _, err := Synthetic(50, 10, int64(i)); err != nil {
 			b.Fatal(err)
 		}
+	}
+}
+
+// BenchmarkSeparateCutSets times one call of the root separator on the LP
+// relaxation's point of the synthetic M and L cases (seed 1), and reports
+// how many violated rows it finds. Run:
+// go test -run '^$' -bench SeparateCutSets -benchtime 5x ./plans
+func BenchmarkSeparateCutSets(b *testing.B) {
+	for _, sz := range SyntheticSizes[1:] {
+		b.Run(sz.Name, func(b *testing.B) {
+			_, m, relax := relaxSynthetic(b, sz.Sites, sz.Years, 1)
+			b.ReportAllocs()
+			b.ResetTimer()
+			var rows []lp.Row
+			for i := 0; i < b.N; i++ {
+				rows = m.separateCutSets(relax.X)
+			}
+			b.ReportMetric(float64(len(rows)), "rows")
+		})
 	}
 }
