@@ -241,7 +241,7 @@ func (m *Model) separateCutSets(x []float64) []lp.Row {
 	for u := range pair {
 		pair[u] = make([]float64, n)
 	}
-	mask := make([]byte, (n+7)/8)
+	mask := make([]byte, (n+7)/8) // the set as a bit mask
 	for t := 0; t < c.Horizon; t++ {
 		clear(seen)
 		for li, l := range c.Links {
@@ -278,6 +278,7 @@ func (m *Model) separateCutSets(x []float64) []lp.Row {
 		for seed := 0; seed < n+len(c.Links); seed++ {
 			clear(in)
 			clear(frontier)
+			clear(mask)
 			// gain[v]: the change of spare capacity across the cut when
 			// v joins the set; join keeps it (and the frontier of sites
 			// linked to the set) up to date in O(sites + degree).
@@ -285,6 +286,7 @@ func (m *Model) separateCutSets(x []float64) []lp.Row {
 			members := members[:0]
 			join := func(u int) {
 				in[u] = true
+				mask[u/8] |= 1 << (u % 8)
 				members = append(members, u)
 				for v := 0; v < n; v++ {
 					gain[v] += 2 * pair[v][u]
@@ -317,14 +319,7 @@ func (m *Model) separateCutSets(x []float64) []lp.Row {
 				if len(members) < 3 {
 					continue // pairs are static rows already
 				}
-				// The set as a bit mask (the year is fixed in this loop).
-				for k := range mask {
-					mask[k] = 0
-				}
-				for _, u := range members {
-					mask[u/8] |= 1 << (u % 8)
-				}
-				key := string(mask)
+				key := string(mask) // the set (the year is fixed in this loop)
 				if seen[key] {
 					continue
 				}
