@@ -148,7 +148,8 @@ type Settings struct {
 	// the LP solution (model columns) and returns rows in the model's
 	// columns that every feasible integer point satisfies (the caller's
 	// promise: an invalid row cuts off solutions). Rows violated by the
-	// point enter the cut pool with the built-in cuts.
+	// point enter the cut pool with the built-in cuts; the search keeps
+	// their Index and Value slices, so the callback must not reuse them.
 	Separate func(lpSolution []float64) []lp.Row
 
 	// NoCuts turns off root cutting planes; NoStrongBranching turns off
