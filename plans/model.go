@@ -57,6 +57,9 @@ type Model struct {
 	LP   *lp.Model
 
 	opts BuildOptions
+	// costMode caches Case.CostMode (no demand pays a tariff), which scans
+	// every tariff and is read in loops.
+	costMode bool
 
 	// sources lists the site indices that are an end of a demand;
 	// flow[si][a][t] is the flow column (−1 when absent) of source
@@ -196,11 +199,11 @@ func BuildModel(c *Case, opts BuildOptions) (*Model, error) {
 	if c.Horizon < 1 {
 		return nil, fmt.Errorf("plans: horizon %d is not positive", c.Horizon)
 	}
-	m := &Model{Case: c, LP: lp.NewModel(c.Name), opts: opts, cumRow: -1}
+	m := &Model{Case: c, LP: lp.NewModel(c.Name), opts: opts, cumRow: -1, costMode: c.CostMode()}
 	m.LP.ObjName = "npv"
 	T := c.Horizon
 	tax := c.Finance.TaxRate
-	costMode := c.CostMode()
+	costMode := m.costMode
 
 	// Served traffic: revenue (1−τ)·DF_t·12·tariff per Gbps.
 	m.served = make([][]int, len(c.Demands))
@@ -697,7 +700,7 @@ func (m *Model) telescope(col []int, coef []float64, capex func(tau, j int, sign
 // Gbps-month (not a tax deduction; DESIGN.md §2 lists the tax base).
 func (m *Model) addShortfall() {
 	c := m.Case
-	costMode := c.CostMode()
+	costMode := m.costMode
 	m.shortfall = make([][]int, len(c.Demands))
 	for k, d := range c.Demands {
 		m.shortfall[k] = make([]int, c.Horizon)

@@ -107,7 +107,7 @@ func (m *Model) cutSetRows(name string, in []bool, t int) []lp.Row {
 			continue
 		}
 		forecast += d.Forecast[t]
-		if c.CostMode() {
+		if m.costMode {
 			committed += d.Forecast[t]
 		} else {
 			committed += d.Committed[t]
@@ -137,7 +137,7 @@ func (m *Model) cutSetRows(name string, in []bool, t int) []lp.Row {
 		return nil
 	}
 	rows := mirRows(name+"_c", cols, coefs, committed-base, nil, 0)
-	if !c.CostMode() && forecast > committed {
+	if !m.costMode && forecast > committed {
 		rows = append(rows, mirRows(name+"_f", cols, coefs, forecast-base, xs, forecast)...)
 	}
 	return rows
