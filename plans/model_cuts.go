@@ -235,7 +235,7 @@ func (m *Model) separateCutSets(x []float64) []lp.Row {
 	frontier := make([]bool, n)
 	gain := make([]float64, n)
 	spare0 := make([]float64, n)
-	members := make([]int, 0, n)
+	memberBuf := make([]int, 0, n)
 	linkCap := make([]float64, len(c.Links))
 	pair := make([][]float64, n) // served traffic between two sites at x
 	for u := range pair {
@@ -283,7 +283,7 @@ func (m *Model) separateCutSets(x []float64) []lp.Row {
 			// v joins the set; join keeps it (and the frontier of sites
 			// linked to the set) up to date in O(sites + degree).
 			copy(gain, spare0)
-			members := members[:0]
+			members := memberBuf[:0]
 			join := func(u int) {
 				in[u] = true
 				mask[u/8] |= 1 << (u % 8)

@@ -60,8 +60,9 @@ func Export(c *Case, opts BuildOptions) (*lp.Model, error) {
 // Pipeline: MIP (with the rounding heuristic and cut-sets unless turned
 // off) → LP with the integer decisions fixed (capacity duals give the value
 // of one more Gbps) → LP holding that NPV and minimising Gbps·km (no
-// detours; equal-length routings stay ties) → cash flows recomputed from the decisions alone. An infeasible
-// case is explained by an elastic model (explain.go).
+// detours; equal-length routings stay ties) → cash flows recomputed from
+// the decisions alone. An infeasible case is explained by an elastic model
+// (explain.go).
 //
 // SolveOptions.TimeLimit bounds the whole solve, approximately: the
 // baseline LP runs first and its time counts; the search gets what remains
