@@ -55,8 +55,11 @@
 // the node's LP solution). Every candidate, and every incumbent, is checked
 // against the original model's bounds, rows and integrality; a candidate
 // that violates rows has its integer values fixed and its continuous
-// columns re-optimised by LP. Settings.Progress receives the incumbent,
-// bound, gap, nodes and elapsed time.
+// columns re-optimised by LP. Settings.Improve hands each new incumbent to
+// the caller's own local search (with the basis of the LP that completed
+// it, as a warm start) at the same call points as Settings.Heuristic, and
+// its answer is checked the same way. Settings.Progress receives the
+// incumbent, bound, gap, nodes and elapsed time.
 //
 // The search is deterministic: the same model, settings and seed give the
 // same path and the same answer (a time limit, by nature, may stop it at a

@@ -340,9 +340,10 @@ func (s *search) tryCandidate(x []float64) bool {
 		return false
 	}
 	y := p.snap(x)
+	var basis *lp.Basis
 	if !p.check(y, s.set.FeasTol, s.set.IntTol) {
 		var ok bool
-		y, ok = s.complete(y)
+		y, basis, ok = s.complete(y)
 		if !ok {
 			return false
 		}
@@ -353,6 +354,7 @@ func (s *search) tryCandidate(x []float64) bool {
 	}
 	s.incX = y
 	s.incObj = obj
+	s.incBasis = basis
 	s.prop.cutoff = s.pruneLimit() - p.constant
 	if s.queue != nil {
 		if least := s.queue.prune(s.pruneLimit()); !math.IsInf(least, 1) {
@@ -365,16 +367,17 @@ func (s *search) tryCandidate(x []float64) bool {
 }
 
 // complete fixes the integer columns of y and solves the LP over the
-// continuous ones. It returns the completed point when it is feasible.
-func (s *search) complete(y []float64) ([]float64, bool) {
+// continuous ones. It returns the completed point and the LP's optimal
+// basis when the point is feasible.
+func (s *search) complete(y []float64) ([]float64, *lp.Basis, bool) {
 	p := s.p
 	if p.nInt == p.n {
-		return nil, false
+		return nil, nil, false
 	}
 	if s.completion == nil {
 		c, err := lp.NewSolver(p.work, s.lpSet)
 		if err != nil {
-			return nil, false
+			return nil, nil, false
 		}
 		s.completion = c
 		if s.lps != nil && s.lps.NumRows() == p.work.NumRows() && s.lpSolved {
@@ -389,7 +392,7 @@ func (s *search) complete(y []float64) ([]float64, bool) {
 		if p.isInt[j] {
 			v := y[j]
 			if v < p.work.ColLower[j] || v > p.work.ColUpper[j] {
-				return nil, false
+				return nil, nil, false
 			}
 			s.completion.SetColBounds(j, v, v)
 		}
@@ -398,14 +401,14 @@ func (s *search) complete(y []float64) ([]float64, bool) {
 	if !s.deadline.IsZero() {
 		set.TimeLimit = time.Until(s.deadline)
 		if set.TimeLimit <= 0 {
-			return nil, false
+			return nil, nil, false
 		}
 	}
 	s.completion.SetSettings(set)
 	r := s.completion.Solve(s.ctx)
 	s.iters += r.Iterations
 	if r.Status != lp.Optimal {
-		return nil, false
+		return nil, nil, false
 	}
 	z := append([]float64(nil), r.X...)
 	for j := 0; j < p.n; j++ {
@@ -414,18 +417,26 @@ func (s *search) complete(y []float64) ([]float64, bool) {
 		}
 	}
 	if !p.check(z, s.set.FeasTol, s.set.IntTol) {
-		return nil, false
+		return nil, nil, false
 	}
-	return z, true
+	return z, &r.Basis, true
 }
 
-// callHeuristic asks the caller's Heuristic for candidates.
+// callHeuristic asks the caller's Heuristic for candidates, then its
+// Improve for a better point than the incumbent when the incumbent changed
+// since Improve last saw it.
 func (s *search) callHeuristic(x []float64) {
-	if s.set.Heuristic == nil {
+	if s.set.Heuristic != nil {
+		for _, c := range s.set.Heuristic(append([]float64(nil), x...)) {
+			s.tryCandidate(c)
+		}
+	}
+	if s.set.Improve == nil || s.incX == nil || s.incObj == s.improvedObj {
 		return
 	}
-	for _, c := range s.set.Heuristic(append([]float64(nil), x...)) {
-		s.tryCandidate(c)
+	s.improvedObj = s.incObj
+	if y := s.set.Improve(append([]float64(nil), s.incX...), s.incBasis); y != nil && s.tryCandidate(y) {
+		s.improvedObj = s.incObj
 	}
 }
 

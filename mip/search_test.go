@@ -397,3 +397,58 @@ func TestSeparateCallback(t *testing.T) {
 		t.Fatalf("with the row z ≤ 0: objective %v, want 1.1 (the row did not enter the LP); without rows %v", bad.Objective, plain.Objective)
 	}
 }
+
+// TestImproveCallback checks the plumbing of Settings.Improve on a small
+// knapsack whose root LP is fractional: with the node limit at the root and
+// the built-in heuristics and cuts off, the search keeps its start point
+// unless the callback's better point is taken. The start breaks the row of
+// the continuous column, so it is completed by LP and the callback gets
+// that LP's basis; a point the callback returns that breaks a row is
+// refused.
+func TestImproveCallback(t *testing.T) {
+	m := lp.NewModel("knapsack")
+	m.Sense = lp.Maximize
+	a := m.AddIntCol("a", 5, 0, 1)
+	b := m.AddIntCol("b", 4, 0, 1)
+	c := m.AddIntCol("c", 3, 0, 1)
+	s := m.AddCol("s", 0.1, 0, 1)
+	m.AddRow("weight", -lp.Inf, 4.5, []int{a, b, c}, []float64{2, 3, 1})
+	m.AddRow("link", -lp.Inf, 0.5, []int{s, a}, []float64{1, -1})
+	set := Settings{NoHeuristics: true, NoCuts: true, NoStrongBranching: true, NodeLimit: 1, Start: []float64{0, 0, 1, 1}}
+	plain, err := Solve(context.Background(), m, set)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if math.Abs(plain.Objective-3.05) > 1e-9 {
+		t.Fatalf("without the callback: objective %v, want the completed start 3.05", plain.Objective)
+	}
+	var got [][]float64
+	var bases []*lp.Basis
+	set.Improve = func(inc []float64, basis *lp.Basis) []float64 {
+		got, bases = append(got, inc), append(bases, basis)
+		return []float64{1, 0, 1, 1} // 5 + 3 + 0.1: the optimum
+	}
+	r, err := Solve(context.Background(), m, set)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(got) == 0 || math.Abs(got[0][c]-1) > 1e-9 || math.Abs(got[0][s]-0.5) > 1e-9 {
+		t.Fatalf("callback calls %v, want the completed start (0, 0, 1, 0.5) first", got)
+	}
+	if bases[0] == nil || len(bases[0].Cols) != m.NumCols() || len(bases[0].Rows) != m.NumRows() {
+		t.Fatalf("callback got basis %v, want the completion LP's", bases[0])
+	}
+	if math.Abs(r.Objective-8.1) > 1e-9 {
+		t.Fatalf("with the callback: objective %v, want 8.1", r.Objective)
+	}
+	set.Improve = func(inc []float64, basis *lp.Basis) []float64 {
+		return []float64{1, 1, 1, 1} // weight 6 > 4.5
+	}
+	bad, err := Solve(context.Background(), m, set)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if math.Abs(bad.Objective-3.05) > 1e-9 {
+		t.Fatalf("with an infeasible improvement: objective %v, want 3.05", bad.Objective)
+	}
+}

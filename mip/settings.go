@@ -142,6 +142,14 @@ type Settings struct {
 	Heuristic func(lpSolution []float64) [][]float64
 	// HeuristicFreq is the node interval for Heuristic (0: DefaultHeuristicFreq).
 	HeuristicFreq int
+	// Improve, when set, lets the caller improve the incumbent: at each
+	// Heuristic call point, when the incumbent has changed since the last
+	// call of Improve, it gets the incumbent (model columns) and returns a
+	// better point, or nil. The point is checked like a Heuristic candidate.
+	// basis, when not nil, is an optimal basis of the model's LP with the
+	// integer columns fixed at the incumbent's values (a warm start for
+	// the caller's own LPs).
+	Improve func(incumbent []float64, basis *lp.Basis) []float64
 
 	// Separate, when set, lets the caller add cutting planes it knows from
 	// the model's structure. It is called in each round of root cuts with

@@ -97,8 +97,13 @@ type search struct {
 	queue *nodeQueue
 	ids   int
 
-	incX   []float64 // best solution, original columns
-	incObj float64   // its internal objective; +Inf when none
+	incX []float64 // best solution, original columns
+	// incBasis is the optimal basis of the LP that completed incX (its
+	// integer columns fixed), or nil when incX needed no completion.
+	incBasis *lp.Basis
+	incObj   float64 // its internal objective; +Inf when none
+	// improvedObj is incObj when Settings.Improve last saw the incumbent.
+	improvedObj float64
 
 	prunedMin float64 // least bound of nodes pruned by the gap rule or lost to LP failure
 	lpLost    bool    // some subproblem was given up after LP failure
@@ -136,7 +141,7 @@ type search struct {
 }
 
 func newSearch(ctx context.Context, m *lp.Model, set Settings) *search {
-	s := &search{model: m, ctx: ctx, set: set, started: time.Now(), incObj: inf, prunedMin: inf, curBound: math.Inf(-1)}
+	s := &search{model: m, ctx: ctx, set: set, started: time.Now(), incObj: inf, improvedObj: inf, prunedMin: inf, curBound: math.Inf(-1)}
 	if set.TimeLimit > 0 {
 		s.deadline = s.started.Add(set.TimeLimit)
 	}
