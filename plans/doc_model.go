@@ -41,6 +41,12 @@
 // service from year s with book life L is −DF_τ + τ_tax·Σ DF_t/L over its
 // depreciation years inside the horizon + DF_T·(1 − (T − s + 1)/L)⁺ (the
 // straight-line salvage); yearly opex from s on weighs −(1 − τ_tax)·Σ DF_t.
+// During the search, the heuristic rounds LP points to plans
+// (solve_heuristic.go), and each new best plan goes through a local search
+// on its unit counts (solve_improve.go): moves of one unit — one more or one
+// less from an order year on, an order a year later or earlier — ranked by
+// the reduced costs of the LP with the decisions fixed and judged by
+// re-solving that LP, so that traffic re-routes around each change.
 // Solve then fixes the integer decisions and solves two LPs: the NPV again
 // (its capacity-row duals give the value of one more Gbps per link and
 // year) and, holding that NPV, the fewest Gbps·km, so the routing reported

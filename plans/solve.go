@@ -116,6 +116,13 @@ func Solve(ctx context.Context, c *Case, opts SolveOptions) (*Result, error) {
 	if base != nil && !opts.NoBaselineStart {
 		set.Start = m.startFromBaseline(base)
 	}
+	if !opts.NoHeuristic && !opts.NoImprove {
+		deadline := time.Time{}
+		if set.TimeLimit > 0 {
+			deadline = time.Now().Add(set.TimeLimit)
+		}
+		set.Improve = m.newImprover(ctx, deadline).improve
+	}
 	mr, err := mipSolve(ctx, m.LP, set)
 	if err != nil {
 		return nil, fmt.Errorf("plans: %w", err)

@@ -24,6 +24,9 @@ type SolveOptions struct {
 	// NoCutSets turns off the cut-set inequalities on link capacities
 	// (the model's rows and those separated at the root).
 	NoCutSets bool
+	// NoImprove turns off the local search on the incumbent's unit counts
+	// (solve_improve.go).
+	NoImprove bool
 	// NoSeparation keeps the model's cut-set rows but does not separate
 	// further ones at the root (for measuring what separation buys).
 	NoSeparation bool

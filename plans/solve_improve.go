@@ -1,0 +1,289 @@
+package plans
+
+import (
+	"context"
+	"math"
+	"sort"
+	"time"
+
+	"netstage/lp"
+)
+
+// Limits of the plan improvement (improver).
+const (
+	// improveUpTrials is how many moves that raise units one pass tries.
+	improveUpTrials = 50
+	// improveMaxTrials bounds the LP trials of one call.
+	improveMaxTrials = 4000
+	// improveShare is the share of the time left before the deadline that
+	// one call may use.
+	improveShare = 0.3
+	// improveRelTol is the least relative gain of an accepted move.
+	improveRelTol = 1e-9
+)
+
+// improver is a local search on a plan's unit counts. Starting from a
+// feasible point of the MIP, it ranks every move of one unit — add a unit
+// from an order year on, remove one, order one a year later or a year
+// earlier — by the reduced costs of the LP with the integer columns fixed
+// (a first-order estimate of the move's effect on −NPV), tries the most
+// promising ones with that LP, and keeps the first that improves the NPV,
+// until no tried move improves. The LP re-routes the traffic around each
+// change, so a move is judged with the network effects the rounding
+// heuristic cannot see: a module bought on one link lets traffic leave a
+// fractionally loaded neighbour, and a unit that carries little can go.
+//
+// The fixed LP is one solver kept across calls; each trial changes a few
+// column bounds and re-solves by dual simplex from the last accepted basis.
+type improver struct {
+	m        *Model
+	ctx      context.Context
+	deadline time.Time // zero: none
+	sv       *lp.Solver
+	isInt    []bool
+	// fixed[j] is the value integer column j is fixed at in sv.
+	fixed []float64
+}
+
+// newImprover returns an improver for m that stops at ctx's end or at
+// deadline (zero: none).
+func (m *Model) newImprover(ctx context.Context, deadline time.Time) *improver {
+	return &improver{m: m, ctx: ctx, deadline: deadline, isInt: m.LP.Integer}
+}
+
+// Kinds of unitMove.
+const (
+	moveAdd     = iota // one more unit from order step i on
+	moveRemove         // one unit less from order step i on
+	moveLater          // a unit ordered at step i moves to step i+1
+	moveEarlier        // a unit ordered at step i+1 moves to step i
+)
+
+// unitMove is one move of the local search on option oi's cumulative unit
+// columns, at the i-th order step of the option (its i-th column).
+type unitMove struct {
+	oi, i, kind int
+	estimate    float64 // first-order change of −NPV
+}
+
+// improve returns a point better than x (a feasible point of the MIP) when
+// it finds one, else nil. It makes passes over the ranked moves, keeping
+// every move that improves the NPV as it goes, and ranks again after a
+// pass that kept one.
+func (im *improver) improve(x []float64, basis *lp.Basis) []float64 {
+	start := time.Now()
+	var stop time.Time
+	if !im.deadline.IsZero() {
+		stop = start.Add(time.Duration(improveShare * float64(time.Until(im.deadline))))
+	}
+	over := func() bool {
+		return im.ctx.Err() != nil || (!stop.IsZero() && time.Now().After(stop))
+	}
+	set := lp.Settings{}
+	if !stop.IsZero() {
+		set.TimeLimit = time.Until(stop)
+		if set.TimeLimit <= 0 {
+			return nil
+		}
+	}
+	if im.sv == nil {
+		sv, err := lp.NewSolver(im.m.LP, set)
+		if err != nil {
+			return nil
+		}
+		im.sv = sv
+		im.fixed = make([]float64, len(x))
+		for j := range im.fixed {
+			im.fixed[j] = math.NaN()
+		}
+	}
+	if basis != nil {
+		_ = im.sv.SetBasis(*basis)
+	}
+	y := append([]float64(nil), x...)
+	im.fix(y)
+	im.sv.SetSettings(set)
+	r := im.sv.Solve(im.ctx)
+	if r.Status != lp.Optimal {
+		return nil
+	}
+	best := r
+	improved := false
+	trials := 0
+	for trials < improveMaxTrials && !over() {
+		accepted := false
+		ups := 0
+		for _, mv := range im.moves(y, best.ReducedCost) {
+			if trials >= improveMaxTrials || over() {
+				break
+			}
+			if mv.kind == moveAdd || mv.kind == moveEarlier {
+				if ups >= improveUpTrials {
+					break
+				}
+				ups++
+			}
+			z := append([]float64(nil), y...)
+			if !im.apply(z, mv) {
+				continue
+			}
+			trials++
+			state := im.sv.SaveState()
+			im.fix(z)
+			tol := improveRelTol * math.Max(1, math.Abs(best.Objective))
+			set.HasCutoff, set.ObjectiveCutoff = true, best.Objective-tol
+			if !stop.IsZero() {
+				if set.TimeLimit = time.Until(stop); set.TimeLimit <= 0 {
+					im.sv.RestoreState(state)
+					im.fix(y)
+					break
+				}
+			}
+			im.sv.SetSettings(set)
+			t := im.sv.Solve(im.ctx)
+			if t.Status == lp.Optimal && t.Objective < best.Objective-tol {
+				y, best, accepted, improved = z, t, true, true
+				continue
+			}
+			im.sv.RestoreState(state)
+			im.fix(y)
+		}
+		if !accepted {
+			break
+		}
+	}
+	if !improved {
+		return nil
+	}
+	z := append([]float64(nil), best.X...)
+	for j, isInt := range im.isInt {
+		if isInt {
+			z[j] = y[j]
+		}
+	}
+	return z
+}
+
+// fix sets the bounds of sv's integer columns to the values of y, touching
+// only the columns whose value changed.
+func (im *improver) fix(y []float64) {
+	for j, isInt := range im.isInt {
+		if isInt && y[j] != im.fixed[j] {
+			im.sv.SetColBounds(j, y[j], y[j])
+			im.fixed[j] = y[j]
+		}
+	}
+}
+
+// moves lists the unit moves whose first-order estimate (from the fixed
+// LP's reduced costs d at the point y) improves −NPV: the moves that lower
+// units first, best first, then those that raise them, best first. The
+// estimate is optimistic (the LP's value is convex in each fixed column),
+// and far more so for raising units, whose capacity the duals price as if
+// every Gbps of it carried traffic.
+func (im *improver) moves(y, d []float64) []unitMove {
+	m := im.m
+	var down, up []unitMove
+	for oi := range m.options {
+		cols := m.options[oi].orderCols()
+		n := len(cols)
+		tail := 0.0 // Σ d over cols[i:], the estimate of +1 from step i on
+		for i := n - 1; i >= 0; i-- {
+			tail += d[cols[i]]
+			if tail < 0 {
+				up = append(up, unitMove{oi, i, moveAdd, tail})
+			} else if tail > 0 {
+				down = append(down, unitMove{oi, i, moveRemove, -tail})
+			}
+			if i+1 < n {
+				if dj := d[cols[i]]; dj > 0 {
+					down = append(down, unitMove{oi, i, moveLater, -dj})
+				} else if dj < 0 {
+					up = append(up, unitMove{oi, i, moveEarlier, dj})
+				}
+			}
+		}
+	}
+	byEstimate := func(ms []unitMove) {
+		sort.SliceStable(ms, func(a, b int) bool { return ms[a].estimate < ms[b].estimate })
+	}
+	byEstimate(down)
+	byEstimate(up)
+	return append(down, up...)
+}
+
+// orderCols returns o's cumulative unit columns in order-year order.
+func (o *option) orderCols() []int {
+	var cols []int
+	for _, j := range o.col {
+		if j >= 0 {
+			cols = append(cols, j)
+		}
+	}
+	return cols
+}
+
+// apply makes move mv on z when z allows it (units stay within bounds and
+// non-decreasing), and sets the columns that follow from the units (builds
+// of candidate links, tiers, vendor choices). It reports false when the
+// move is not possible or breaks a link's slot limit or a one-vendor rule.
+func (im *improver) apply(z []float64, mv unitMove) bool {
+	m := im.m
+	cols := m.options[mv.oi].orderCols()
+	i, n := mv.i, len(cols)
+	prev := 0.0
+	if i > 0 {
+		prev = z[cols[i-1]]
+	}
+	switch mv.kind {
+	case moveAdd:
+		if z[cols[n-1]]+1 > m.LP.ColUpper[cols[n-1]]+heuristicIntTol {
+			return false
+		}
+		for _, j := range cols[i:] {
+			z[j]++
+		}
+	case moveRemove:
+		if z[cols[i]]-1 < prev-heuristicIntTol {
+			return false
+		}
+		for _, j := range cols[i:] {
+			z[j]--
+		}
+	case moveLater:
+		if z[cols[i]]-1 < prev-heuristicIntTol {
+			return false
+		}
+		z[cols[i]]--
+	case moveEarlier:
+		if z[cols[i]]+1 > z[cols[i+1]]+heuristicIntTol {
+			return false
+		}
+		z[cols[i]]++
+	}
+	if !m.slotsFit(z) {
+		return false
+	}
+	m.gateBuilds(z)
+	m.setTiers(z)
+	return m.setVendorChoice(z)
+}
+
+// slotsFit reports whether the units of z fit every link's slot limit.
+func (m *Model) slotsFit(z []float64) bool {
+	c := m.Case
+	used := make([]float64, len(c.Links))
+	for oi := range m.options {
+		o := &m.options[oi]
+		if o.lastOrder < 0 {
+			continue
+		}
+		used[o.link] += float64(c.Items[o.item].SlotsPerUnit) * z[o.col[o.lastOrder]]
+	}
+	for l := range c.Links {
+		if s := c.Links[l].Slots; s != UnlimitedSlots && used[l] > float64(s)+heuristicIntTol {
+			return false
+		}
+	}
+	return true
+}
