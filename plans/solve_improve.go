@@ -11,8 +11,10 @@ import (
 
 // Limits of the plan improvement (improver).
 const (
-	// improveUpTrials is how many moves that raise units one pass tries.
-	improveUpTrials = 50
+	// improveUpTrials is how many moves that raise units one pass tries,
+	// and improveSwapTrials how many that swap items.
+	improveUpTrials   = 50
+	improveSwapTrials = 50
 	// improveMaxTrials bounds the LP trials of one call.
 	improveMaxTrials = 4000
 	// improveShare is the share of the time left before the deadline that
@@ -40,7 +42,8 @@ type improver struct {
 	ctx      context.Context
 	deadline time.Time // zero: none
 	sv       *lp.Solver
-	isInt    []bool
+	intCols  []int   // the model's integer columns
+	byLink   [][]int // the options of each link
 	// fixed[j] is the value integer column j is fixed at in sv.
 	fixed []float64
 }
@@ -48,7 +51,16 @@ type improver struct {
 // newImprover returns an improver for m that stops at ctx's end or at
 // deadline (zero: none).
 func (m *Model) newImprover(ctx context.Context, deadline time.Time) *improver {
-	return &improver{m: m, ctx: ctx, deadline: deadline, isInt: m.LP.Integer}
+	im := &improver{m: m, ctx: ctx, deadline: deadline, byLink: make([][]int, len(m.Case.Links))}
+	for oi := range m.options {
+		im.byLink[m.options[oi].link] = append(im.byLink[m.options[oi].link], oi)
+	}
+	for j, isInt := range m.LP.Integer {
+		if isInt {
+			im.intCols = append(im.intCols, j)
+		}
+	}
+	return im
 }
 
 // Kinds of unitMove.
@@ -57,6 +69,7 @@ const (
 	moveRemove         // one unit less from order step i on
 	moveLater          // a unit ordered at step i moves to step i+1
 	moveEarlier        // a unit ordered at step i+1 moves to step i
+	moveSwap           // a unit of option oi ordered in year tau becomes one of option oj (same link)
 )
 
 // unitMove is one move of the local search on option oi's cumulative unit
@@ -64,6 +77,7 @@ const (
 type unitMove struct {
 	oi, i, kind int
 	estimate    float64 // first-order change of −NPV
+	oj, tau     int     // moveSwap only
 }
 
 // improve returns a point better than x (a feasible point of the MIP) when
@@ -110,39 +124,50 @@ func (im *improver) improve(x []float64, basis *lp.Basis) []float64 {
 	best := r
 	improved := false
 	trials := 0
+	state := im.sv.SaveState() // of the point y
+	z := append([]float64(nil), y...)
 	for trials < improveMaxTrials && !over() {
 		accepted := false
-		ups := 0
+		ups, swaps := 0, 0
+	scan:
 		for _, mv := range im.moves(y, best.ReducedCost) {
 			if trials >= improveMaxTrials || over() {
 				break
 			}
-			if mv.kind == moveAdd || mv.kind == moveEarlier {
+			switch mv.kind {
+			case moveAdd, moveEarlier:
 				if ups >= improveUpTrials {
-					break
+					break scan
 				}
 				ups++
+			case moveSwap:
+				if swaps >= improveSwapTrials {
+					continue
+				}
+				swaps++
 			}
-			z := append([]float64(nil), y...)
+			// Only the integer columns matter: the LP sets the others.
+			for _, j := range im.intCols {
+				z[j] = y[j]
+			}
 			if !im.apply(z, mv) {
 				continue
 			}
-			trials++
-			state := im.sv.SaveState()
-			im.fix(z)
 			tol := improveRelTol * math.Max(1, math.Abs(best.Objective))
 			set.HasCutoff, set.ObjectiveCutoff = true, best.Objective-tol
 			if !stop.IsZero() {
 				if set.TimeLimit = time.Until(stop); set.TimeLimit <= 0 {
-					im.sv.RestoreState(state)
-					im.fix(y)
 					break
 				}
 			}
+			trials++
+			im.fix(z)
 			im.sv.SetSettings(set)
 			t := im.sv.Solve(im.ctx)
 			if t.Status == lp.Optimal && t.Objective < best.Objective-tol {
-				y, best, accepted, improved = z, t, true, true
+				y, z = z, y
+				best, accepted, improved = t, true, true
+				state = im.sv.SaveState()
 				continue
 			}
 			im.sv.RestoreState(state)
@@ -155,20 +180,18 @@ func (im *improver) improve(x []float64, basis *lp.Basis) []float64 {
 	if !improved {
 		return nil
 	}
-	z := append([]float64(nil), best.X...)
-	for j, isInt := range im.isInt {
-		if isInt {
-			z[j] = y[j]
-		}
+	out := append([]float64(nil), best.X...)
+	for _, j := range im.intCols {
+		out[j] = y[j]
 	}
-	return z
+	return out
 }
 
 // fix sets the bounds of sv's integer columns to the values of y, touching
 // only the columns whose value changed.
 func (im *improver) fix(y []float64) {
-	for j, isInt := range im.isInt {
-		if isInt && y[j] != im.fixed[j] {
+	for _, j := range im.intCols {
+		if y[j] != im.fixed[j] {
 			im.sv.SetColBounds(j, y[j], y[j])
 			im.fixed[j] = y[j]
 		}
@@ -191,25 +214,78 @@ func (im *improver) moves(y, d []float64) []unitMove {
 		for i := n - 1; i >= 0; i-- {
 			tail += d[cols[i]]
 			if tail < 0 {
-				up = append(up, unitMove{oi, i, moveAdd, tail})
+				up = append(up, unitMove{oi: oi, i: i, kind: moveAdd, estimate: tail})
 			} else if tail > 0 {
-				down = append(down, unitMove{oi, i, moveRemove, -tail})
+				down = append(down, unitMove{oi: oi, i: i, kind: moveRemove, estimate: -tail})
 			}
 			if i+1 < n {
 				if dj := d[cols[i]]; dj > 0 {
-					down = append(down, unitMove{oi, i, moveLater, -dj})
+					down = append(down, unitMove{oi: oi, i: i, kind: moveLater, estimate: -dj})
 				} else if dj < 0 {
-					up = append(up, unitMove{oi, i, moveEarlier, dj})
+					up = append(up, unitMove{oi: oi, i: i, kind: moveEarlier, estimate: dj})
 				}
 			}
 		}
 	}
+	swaps := im.swaps(y, d)
 	byEstimate := func(ms []unitMove) {
 		sort.SliceStable(ms, func(a, b int) bool { return ms[a].estimate < ms[b].estimate })
 	}
 	byEstimate(down)
+	byEstimate(swaps)
 	byEstimate(up)
-	return append(down, up...)
+	return append(append(down, swaps...), up...)
+}
+
+// swaps lists the moves that turn a unit of one item ordered in some year
+// into a unit of another item on the same link ordered that year (a larger
+// module, another vendor) whose estimate improves −NPV.
+func (im *improver) swaps(y, d []float64) []unitMove {
+	m := im.m
+	T := m.Case.Horizon
+	// tail[oi][tau]: Σ d over option oi's columns of order years ≥ tau.
+	tail := make([][]float64, len(m.options))
+	for oi := range m.options {
+		tail[oi] = make([]float64, T+1)
+		for tau := T - 1; tau >= 0; tau-- {
+			tail[oi][tau] = tail[oi][tau+1]
+			if j := m.options[oi].col[tau]; j >= 0 {
+				tail[oi][tau] += d[j]
+			}
+		}
+	}
+	var out []unitMove
+	for _, opts := range im.byLink {
+		for _, oi := range opts {
+			for _, oj := range opts {
+				if oi == oj {
+					continue
+				}
+				for tau := 0; tau < T; tau++ {
+					if m.options[oi].col[tau] < 0 || m.options[oj].col[tau] < 0 || !m.options[oi].orderedIn(y, tau) {
+						continue
+					}
+					if e := tail[oj][tau] - tail[oi][tau]; e < 0 {
+						out = append(out, unitMove{oi: oi, kind: moveSwap, estimate: e, oj: oj, tau: tau})
+					}
+				}
+			}
+		}
+	}
+	return out
+}
+
+// orderedIn reports whether y orders at least one unit of o in year tau
+// (o must offer that year).
+func (o *option) orderedIn(y []float64, tau int) bool {
+	prev := 0.0
+	for p := tau - 1; p >= 0; p-- {
+		if o.col[p] >= 0 {
+			prev = y[o.col[p]]
+			break
+		}
+	}
+	return y[o.col[tau]]-1 >= prev-heuristicIntTol
 }
 
 // orderCols returns o's cumulative unit columns in order-year order.
@@ -229,6 +305,9 @@ func (o *option) orderCols() []int {
 // move is not possible or breaks a link's slot limit or a one-vendor rule.
 func (im *improver) apply(z []float64, mv unitMove) bool {
 	m := im.m
+	if mv.kind == moveSwap {
+		return im.applySwap(z, mv)
+	}
 	cols := m.options[mv.oi].orderCols()
 	i, n := mv.i, len(cols)
 	prev := 0.0
@@ -261,6 +340,32 @@ func (im *improver) apply(z []float64, mv unitMove) bool {
 		}
 		z[cols[i]]++
 	}
+	return im.settle(z)
+}
+
+// applySwap makes the moveSwap mv on z (see apply).
+func (im *improver) applySwap(z []float64, mv unitMove) bool {
+	m := im.m
+	from, to := &m.options[mv.oi], &m.options[mv.oj]
+	if !from.orderedIn(z, mv.tau) || z[to.col[to.lastOrder]]+1 > m.LP.ColUpper[to.col[to.lastOrder]]+heuristicIntTol {
+		return false
+	}
+	for tau := mv.tau; tau < len(from.col); tau++ {
+		if j := from.col[tau]; j >= 0 {
+			z[j]--
+		}
+		if j := to.col[tau]; j >= 0 {
+			z[j]++
+		}
+	}
+	return im.settle(z)
+}
+
+// settle sets the columns that follow from the units of z (builds of
+// candidate links, tiers, vendor choices); it reports false when z breaks
+// a link's slot limit or a one-vendor rule.
+func (im *improver) settle(z []float64) bool {
+	m := im.m
 	if !m.slotsFit(z) {
 		return false
 	}
