@@ -126,6 +126,10 @@ func (im *improver) improve(x []float64, basis *lp.Basis) []float64 {
 	trials := 0
 	state := im.sv.SaveState() // of the point y
 	z := append([]float64(nil), y...)
+	// A move that failed is not tried again in this call: after other
+	// moves it might pay, but rarely, and retrying every failure in every
+	// pass spent most trials on large cases.
+	failed := map[unitMove]bool{}
 	for trials < improveMaxTrials && !over() {
 		accepted := false
 		ups, swaps := 0, 0
@@ -133,6 +137,11 @@ func (im *improver) improve(x []float64, basis *lp.Basis) []float64 {
 		for _, mv := range im.moves(y, best.ReducedCost) {
 			if trials >= improveMaxTrials || over() {
 				break
+			}
+			key := mv
+			key.estimate = 0
+			if failed[key] {
+				continue
 			}
 			switch mv.kind {
 			case moveAdd, moveEarlier:
@@ -170,6 +179,7 @@ func (im *improver) improve(x []float64, basis *lp.Basis) []float64 {
 				state = im.sv.SaveState()
 				continue
 			}
+			failed[key] = true
 			im.sv.RestoreState(state)
 			im.fix(y)
 		}
