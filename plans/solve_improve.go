@@ -27,16 +27,19 @@ const (
 // improver is a local search on a plan's unit counts. Starting from a
 // feasible point of the MIP, it ranks every move of one unit — add a unit
 // from an order year on, remove one, order one a year later or a year
-// earlier — by the reduced costs of the LP with the integer columns fixed
-// (a first-order estimate of the move's effect on −NPV), tries the most
-// promising ones with that LP, and keeps the first that improves the NPV,
-// until no tried move improves. The LP re-routes the traffic around each
-// change, so a move is judged with the network effects the rounding
-// heuristic cannot see: a module bought on one link lets traffic leave a
+// earlier, swap one for another item on the same link ordered the same
+// year — by the reduced costs of the LP with the integer columns fixed (a
+// first-order estimate of the move's effect on −NPV, optimistic), tries
+// them in that order with the LP itself, and keeps each one that improves
+// the NPV; after a pass that kept a move it ranks again, and it stops after
+// a pass that kept none. The LP re-routes the traffic around each change,
+// so a move is judged with the network effects the rounding heuristic
+// cannot see: a module bought on one link lets traffic leave a
 // fractionally loaded neighbour, and a unit that carries little can go.
 //
 // The fixed LP is one solver kept across calls; each trial changes a few
-// column bounds and re-solves by dual simplex from the last accepted basis.
+// column bounds and re-solves by dual simplex from the last accepted basis,
+// with the current NPV as cutoff.
 type improver struct {
 	m        *Model
 	ctx      context.Context
