@@ -94,10 +94,7 @@ func (m *Model) roundOption(x, xlp []float64, oi int, round func(float64) float6
 // that item cannot serve in time keeps x as it is.
 func (m *Model) roundLinks(x, xlp []float64) {
 	c := m.Case
-	byLink := make([][]int, len(c.Links))
-	for oi := range m.options {
-		byLink[m.options[oi].link] = append(byLink[m.options[oi].link], oi)
-	}
+	byLink := m.optionsByLink()
 	T := c.Horizon
 	for _, opts := range byLink {
 		if len(opts) < 2 {
@@ -159,6 +156,15 @@ func (m *Model) roundLinks(x, xlp []float64) {
 			x[j], run = v, v
 		}
 	}
+}
+
+// optionsByLink returns the indices of the options of each link.
+func (m *Model) optionsByLink() [][]int {
+	out := make([][]int, len(m.Case.Links))
+	for oi := range m.options {
+		out[m.options[oi].link] = append(out[m.options[oi].link], oi)
+	}
+	return out
 }
 
 // repairSlots lowers units on links whose slots overflow, taking first the

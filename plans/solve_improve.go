@@ -47,6 +47,7 @@ type improver struct {
 	sv       *lp.Solver
 	intCols  []int   // the model's integer columns
 	byLink   [][]int // the options of each link
+	cols     [][]int // cols[oi]: option oi's unit columns (orderCols)
 	// fixed[j] is the value integer column j is fixed at in sv.
 	fixed []float64
 }
@@ -54,9 +55,9 @@ type improver struct {
 // newImprover returns an improver for m that stops at ctx's end or at
 // deadline (zero: none).
 func (m *Model) newImprover(ctx context.Context, deadline time.Time) *improver {
-	im := &improver{m: m, ctx: ctx, deadline: deadline, byLink: make([][]int, len(m.Case.Links))}
+	im := &improver{m: m, ctx: ctx, deadline: deadline, byLink: m.optionsByLink(), cols: make([][]int, len(m.options))}
 	for oi := range m.options {
-		im.byLink[m.options[oi].link] = append(im.byLink[m.options[oi].link], oi)
+		im.cols[oi] = m.options[oi].orderCols()
 	}
 	for j, isInt := range m.LP.Integer {
 		if isInt {
@@ -221,7 +222,7 @@ func (im *improver) moves(y, d []float64) []unitMove {
 	m := im.m
 	var down, up []unitMove
 	for oi := range m.options {
-		cols := m.options[oi].orderCols()
+		cols := im.cols[oi]
 		n := len(cols)
 		tail := 0.0 // Σ d over cols[i:], the estimate of +1 from step i on
 		for i := n - 1; i >= 0; i-- {
@@ -321,7 +322,7 @@ func (im *improver) apply(z []float64, mv unitMove) bool {
 	if mv.kind == moveSwap {
 		return im.applySwap(z, mv)
 	}
-	cols := m.options[mv.oi].orderCols()
+	cols := im.cols[mv.oi]
 	i, n := mv.i, len(cols)
 	prev := 0.0
 	if i > 0 {
