@@ -137,7 +137,6 @@ func (im *improver) improve(x []float64, basis *lp.Basis) []float64 {
 	for trials < improveMaxTrials && !over() {
 		accepted := false
 		ups, swaps := 0, 0
-	scan:
 		for _, mv := range im.moves(y, best.ReducedCost) {
 			if trials >= improveMaxTrials || over() {
 				break
@@ -147,17 +146,12 @@ func (im *improver) improve(x []float64, basis *lp.Basis) []float64 {
 			if failed[key] {
 				continue
 			}
-			switch mv.kind {
-			case moveAdd, moveEarlier:
-				if ups >= improveUpTrials {
-					break scan
-				}
-				ups++
-			case moveSwap:
-				if swaps >= improveSwapTrials {
-					continue
-				}
-				swaps++
+			raises := mv.kind == moveAdd || mv.kind == moveEarlier
+			if raises && ups >= improveUpTrials {
+				break // the raising moves come last
+			}
+			if mv.kind == moveSwap && swaps >= improveSwapTrials {
+				continue
 			}
 			// Only the integer columns matter: the LP sets the others.
 			for _, j := range im.intCols {
@@ -165,6 +159,11 @@ func (im *improver) improve(x []float64, basis *lp.Basis) []float64 {
 			}
 			if !im.apply(z, mv) {
 				continue
+			}
+			if raises {
+				ups++
+			} else if mv.kind == moveSwap {
+				swaps++
 			}
 			tol := improveRelTol * math.Max(1, math.Abs(best.Objective))
 			set.HasCutoff, set.ObjectiveCutoff = true, best.Objective-tol
@@ -214,10 +213,10 @@ func (im *improver) fix(y []float64) {
 
 // moves lists the unit moves whose first-order estimate (from the fixed
 // LP's reduced costs d at the point y) improves −NPV: the moves that lower
-// units first, best first, then those that raise them, best first. The
+// units first, best first, then the swaps, then those that raise units. The
 // estimate is optimistic (the LP's value is convex in each fixed column),
-// and far more so for raising units, whose capacity the duals price as if
-// every Gbps of it carried traffic.
+// and far more so when units rise, since the duals price all the new
+// capacity as if every Gbps of it carried traffic.
 func (im *improver) moves(y, d []float64) []unitMove {
 	m := im.m
 	var down, up []unitMove
