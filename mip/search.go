@@ -434,9 +434,11 @@ func (s *search) callHeuristic(x []float64) {
 	if s.set.Improve == nil || s.incX == nil || s.incObj == s.improvedObj {
 		return
 	}
+	// The point Improve returns, once the incumbent, is offered again at the
+	// next call point: a caller that stopped early can go on from it.
 	s.improvedObj = s.incObj
-	if y := s.set.Improve(append([]float64(nil), s.incX...), s.incBasis); y != nil && s.tryCandidate(y) {
-		s.improvedObj = s.incObj
+	if y := s.set.Improve(append([]float64(nil), s.incX...), s.incBasis); y != nil {
+		s.tryCandidate(y)
 	}
 }
 

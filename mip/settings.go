@@ -145,7 +145,10 @@ type Settings struct {
 	// Improve, when set, lets the caller improve the incumbent: at each
 	// Heuristic call point, when the incumbent has changed since the last
 	// call of Improve, it gets the incumbent (model columns) and returns a
-	// better point, or nil. The point is checked like a Heuristic candidate.
+	// better point, or nil. The point is checked like a Heuristic candidate;
+	// when it becomes the incumbent, Improve gets it at the next call point
+	// (a caller that stopped short can go on; one that finished should
+	// answer nil at once).
 	// basis, when not nil, is an optimal basis of the model's LP with the
 	// integer columns fixed at the incumbent's values (a warm start for
 	// the caller's own LPs).

@@ -50,6 +50,9 @@ type improver struct {
 	cols     [][]int // cols[oi]: option oi's unit columns (orderCols)
 	// fixed[j] is the value integer column j is fixed at in sv.
 	fixed []float64
+	// settled holds the integer values of the last point from which a
+	// whole pass found no improving move (nil: none yet).
+	settled []float64
 }
 
 // newImprover returns an improver for m that stops at ctx's end or at
@@ -89,6 +92,9 @@ type unitMove struct {
 // every move that improves the NPV as it goes, and ranks again after a
 // pass that kept one.
 func (im *improver) improve(x []float64, basis *lp.Basis) []float64 {
+	if im.isSettled(x) {
+		return nil // mip offers the point this search returned; it is done
+	}
 	start := time.Now()
 	var stop time.Time
 	if !im.deadline.IsZero() {
@@ -187,6 +193,12 @@ func (im *improver) improve(x []float64, basis *lp.Basis) []float64 {
 			im.fix(y)
 		}
 		if !accepted {
+			if !over() && trials < improveMaxTrials {
+				im.settled = im.settled[:0]
+				for _, j := range im.intCols {
+					im.settled = append(im.settled, y[j])
+				}
+			}
 			break
 		}
 	}
@@ -198,6 +210,20 @@ func (im *improver) improve(x []float64, basis *lp.Basis) []float64 {
 		out[j] = y[j]
 	}
 	return out
+}
+
+// isSettled reports whether x has the integer values of the last point
+// where a pass found no improving move.
+func (im *improver) isSettled(x []float64) bool {
+	if im.settled == nil {
+		return false
+	}
+	for k, j := range im.intCols {
+		if x[j] != im.settled[k] {
+			return false
+		}
+	}
+	return true
 }
 
 // fix sets the bounds of sv's integer columns to the values of y, touching
