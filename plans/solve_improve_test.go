@@ -10,17 +10,12 @@ import (
 	"netstage/lp"
 )
 
-// fixedLP solves m's LP with the integer columns fixed at x's values and
-// returns the result (the best completion of x's decisions).
+// fixedLP solves m's LP with the integer columns fixed at x's values
+// (Model.fixIntegers) and returns the result: the best completion of x's
+// decisions.
 func fixedLP(t *testing.T, m *Model, x []float64) lp.Result {
 	t.Helper()
-	f := m.LP.Clone()
-	for j, isInt := range f.Integer {
-		if isInt {
-			f.ColLower[j], f.ColUpper[j] = x[j], x[j]
-		}
-	}
-	r, err := lp.Solve(context.Background(), f, lp.Settings{})
+	r, err := lp.Solve(context.Background(), m.fixIntegers(x), lp.Settings{})
 	if err != nil {
 		t.Fatal(err)
 	}
