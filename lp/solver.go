@@ -423,6 +423,9 @@ func (s *Solver) SetBasis(b Basis) error {
 		s.dse[p] = 1
 	}
 	s.facValid = false
+	// A loaded basis is a warm start: perturbing the costs would move an
+	// optimal basis away from optimality.
+	s.warm = true
 	return nil
 }
 

@@ -2,6 +2,7 @@ package lp
 
 import (
 	"context"
+	"fmt"
 	"math"
 	"math/rand"
 	"testing"
@@ -360,6 +361,61 @@ func TestSlackBasisWarm(t *testing.T) {
 	}
 }
 
+// TestLoadedOptimalBasis loads the optimal basis of a solve into a new
+// solver of the same model (as a caller that keeps bases between solvers
+// does): the solve must stop at once, without perturbing the costs away
+// from that optimum first.
+func TestLoadedOptimalBasis(t *testing.T) {
+	// A transportation problem with equal costs: every feasible basis is
+	// optimal and most reduced costs are zero, so perturbed costs would
+	// make the loaded basis non-optimal.
+	tp := NewModel("flat transport")
+	const n = 8
+	var x [n][n]int
+	for i := 0; i < n; i++ {
+		for j := 0; j < n; j++ {
+			x[i][j] = tp.AddCol(fmt.Sprintf("x%d_%d", i, j), 1, 0, Inf)
+		}
+	}
+	for i := 0; i < n; i++ {
+		var out, in []int
+		for j := 0; j < n; j++ {
+			out, in = append(out, x[i][j]), append(in, x[j][i])
+		}
+		tp.AddRow(fmt.Sprintf("supply%d", i), -Inf, float64(10+i), out, ones(n))
+		tp.AddRow(fmt.Sprintf("demand%d", i), float64(10+n-1-i), Inf, in, ones(n))
+	}
+	cases := []string{"flat transport"}
+	for _, tc := range netlibCases {
+		cases = append(cases, tc.name)
+	}
+	for _, name := range cases {
+		t.Run(name, func(t *testing.T) {
+			m := tp
+			if name != tp.Name {
+				m = readSample(t, name)
+			}
+			first, err := Solve(context.Background(), m, Settings{})
+			if err != nil {
+				t.Fatal(err)
+			}
+			solveOK(t, m, first)
+			sv, err := NewSolver(m, Settings{})
+			if err != nil {
+				t.Fatal(err)
+			}
+			if err := sv.SetBasis(first.Basis); err != nil {
+				t.Fatal(err)
+			}
+			r := sv.Solve(context.Background())
+			solveOK(t, m, r)
+			if !close(r.Objective, first.Objective, 1e-9) || r.Iterations > 0 {
+				t.Fatalf("objective %v after %d iterations, want %v at once", r.Objective, r.Iterations, first.Objective)
+			}
+		})
+	}
+}
+
 // TestSingularBasis loads a basis with two equal columns: the solve must
 // replace one by a slack and still reach the optimum.
 func TestSingularBasis(t *testing.T) {
@@ -437,4 +493,13 @@ func TestCostChanges(t *testing.T) {
 			t.Logf("%d iterations over 5 cost changes", total)
 		})
 	}
+}
+
+// ones returns n ones.
+func ones(n int) []float64 {
+	v := make([]float64, n)
+	for k := range v {
+		v[k] = 1
+	}
+	return v
 }
