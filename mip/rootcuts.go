@@ -124,6 +124,10 @@ func (s *search) rootCuts(r lp.Result) lp.Result {
 		if r.Status != lp.Optimal {
 			return r
 		}
+		// Every round's optimum is a valid bound: keep it, in case a
+		// later round is stopped by a limit.
+		s.rootBound = math.Max(s.rootBound, p.roundBound(r.Objective))
+		s.curBound = s.rootBound
 		s.ageCuts(false)
 		if !s.set.NoHeuristics {
 			s.simpleRounding(r.X, true)

@@ -404,6 +404,12 @@ func (s *search) complete(y []float64) ([]float64, *lp.Basis, bool) {
 			return nil, nil, false
 		}
 	}
+	if lim := s.pruneLimit(); !math.IsInf(lim, 1) {
+		// A completion that cannot beat the incumbent is of no use: the
+		// dual simplex stops as soon as its bound passes the limit, which
+		// on large models saves most of the LP of a poor rounding.
+		set.ObjectiveCutoff, set.HasCutoff = lim, true
+	}
 	s.completion.SetSettings(set)
 	r := s.completion.Solve(s.ctx)
 	s.iters += r.Iterations
