@@ -50,8 +50,9 @@
 //     bounds are rounded up to the objective's lattice (multiples of the
 //     coefficients' gcd).
 //
-// Callers can give a starting solution (Settings.Start, Solver.AddSolution)
-// and propose solutions during the search (Settings.Heuristic, called with
+// Callers can give a starting solution (Settings.Start, Solver.AddSolution,
+// or Settings.LateStart, asked for once the root LP has ended, so that it
+// can be computed meanwhile) and propose solutions during the search (Settings.Heuristic, called with
 // the node's LP solution). Every candidate, and every incumbent, is checked
 // against the original model's bounds, rows and integrality; a candidate
 // that violates rows has its integer values fixed and its continuous

@@ -81,6 +81,7 @@ func (s *search) run(starts [][]float64) Result {
 	r := s.lpSolve(inf, 0)
 	s.lpSolved = r.Status == lp.Optimal
 	s.nodes = 1
+	s.lateStart()
 	switch r.Status {
 	case lp.Optimal:
 	case lp.Infeasible:
@@ -137,6 +138,17 @@ func (s *search) run(starts [][]float64) Result {
 	s.curBound = inf
 	s.treeSearch(root)
 	return s.finish()
+}
+
+// lateStart tries the point of Settings.LateStart, once.
+func (s *search) lateStart() {
+	if s.set.LateStart == nil || s.lateDone {
+		return
+	}
+	s.lateDone = true
+	if x := s.set.LateStart(); x != nil {
+		s.tryCandidate(x)
+	}
 }
 
 // modelOf returns the model the search was built for.

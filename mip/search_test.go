@@ -452,3 +452,46 @@ func TestImproveCallback(t *testing.T) {
 		t.Fatalf("with an infeasible improvement: objective %v, want 3.05", bad.Objective)
 	}
 }
+
+// TestLateStart checks that a start handed over after the root LP
+// (Settings.LateStart) gives the same search as the same point given as
+// Start: the root LP does not depend on the incumbent. The knapsack of
+// TestImproveCallback, with a feasible start (one that needs completing
+// by LP is completed from the root LP's basis when it comes late, so its
+// iterations differ).
+func TestLateStart(t *testing.T) {
+	m := lp.NewModel("knapsack")
+	m.Sense = lp.Maximize
+	a := m.AddIntCol("a", 5, 0, 1)
+	b := m.AddIntCol("b", 4, 0, 1)
+	c := m.AddIntCol("c", 3, 0, 1)
+	s := m.AddCol("s", 0.1, 0, 1)
+	m.AddRow("weight", -lp.Inf, 4.5, []int{a, b, c}, []float64{2, 3, 1})
+	m.AddRow("link", -lp.Inf, 0.5, []int{s, a}, []float64{1, -1})
+	start := []float64{0, 0, 1, 0}
+	for _, set := range []Settings{
+		{NoHeuristics: true, NoCuts: true, NoStrongBranching: true, NodeLimit: 1},
+		{},
+	} {
+		early := set
+		early.Start = start
+		want, err := Solve(context.Background(), m, early)
+		if err != nil {
+			t.Fatal(err)
+		}
+		calls := 0
+		late := set
+		late.LateStart = func() []float64 { calls++; return start }
+		got, err := Solve(context.Background(), m, late)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if calls != 1 {
+			t.Errorf("LateStart called %d times, want once", calls)
+		}
+		if got.Objective != want.Objective || got.Nodes != want.Nodes || got.LPIterations != want.LPIterations || got.Status != want.Status {
+			t.Errorf("with LateStart: %v, objective %v, %d nodes, %d iterations; with Start: %v, %v, %d, %d",
+				got.Status, got.Objective, got.Nodes, got.LPIterations, want.Status, want.Objective, want.Nodes, want.LPIterations)
+		}
+	}
+}

@@ -125,6 +125,16 @@ type Settings struct {
 	// only as a hint: its integer values are fixed and the continuous columns
 	// re-optimised. An unusable start is ignored.
 	Start []float64
+	// LateStart, when set, is called once, from the solving goroutine, as
+	// soon as the root LP has ended (solved or stopped by a limit); the
+	// point it returns (nil: none) is tried like Start. It lets a caller
+	// compute its start concurrently with the root LP, which does not
+	// depend on the incumbent: with a point that satisfies the model, the
+	// search takes the same path as with that point as Start (one that
+	// needs completing by LP is completed from the root LP's basis). A
+	// search that proves the model infeasible before its root LP does not
+	// call it.
+	LateStart func() []float64
 
 	// Progress, when set, is called from the solving goroutine every
 	// ProgressInterval and whenever the incumbent improves.

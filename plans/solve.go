@@ -64,10 +64,13 @@ func Export(c *Case, opts BuildOptions) (*lp.Model, error) {
 // the decisions alone. An infeasible case is explained by an elastic model
 // (explain.go).
 //
-// SolveOptions.TimeLimit bounds the whole solve, approximately: the
-// baseline LP runs first and its time counts; the search gets what remains
-// less a reserve for the LPs that decode the plan afterwards (estimated from
-// the baseline LP's own time, see searchLimit). Those LPs run to their end,
+// The do-nothing baseline LP runs on its own goroutine, alongside the
+// search's root LP, and gives the search its start plan when that LP ends.
+//
+// SolveOptions.TimeLimit bounds the whole solve, approximately: the search
+// stops at the limit less a reserve for the LPs that decode the plan
+// afterwards (estimated from the baseline LP's own time, see searchLimit;
+// until the baseline is done, the limit itself). Those LPs run to their end,
 // even after ctx is cancelled, so that the best plan is reported; a solve
 // may therefore overrun its limit by the difference between the reserve and
 // their real time.
@@ -102,31 +105,63 @@ func Solve(ctx context.Context, c *Case, opts SolveOptions) (*Result, error) {
 	if !opts.NoCutSets && !opts.NoSeparation {
 		set.Separate = m.separateCutSets
 	}
-	// The baseline is one LP: solve it first, so that a stop during the
-	// search still leaves it.
-	baseStart := time.Now()
-	base, err := solveBaseline(ctx, c)
-	if err != nil {
-		return nil, err
-	}
+	// The baseline LP runs concurrently with the search's root LP, which
+	// does not need it. The search takes the baseline's plan as its start
+	// right after that LP (mip Settings.LateStart: the same path as a start
+	// given up front), and once the baseline's time is known the search is
+	// stopped at the time limit less the reserve for decoding (searchLimit).
+	searchCtx, stopSearch := context.WithCancel(ctx)
+	defer stopSearch()
 	if opts.TimeLimit > 0 {
-		set.TimeLimit = searchLimit(opts.TimeLimit, time.Since(start), time.Since(baseStart), base != nil)
+		set.TimeLimit = max(opts.TimeLimit-time.Since(start), minSearchTime) // a backstop; stopSearch ends the search earlier
 	}
-	res.setBaseline(base)
-	if base != nil && !opts.NoBaselineStart {
-		set.Start = m.startFromBaseline(base)
-	}
-	if !opts.NoHeuristic && !opts.NoImprove {
-		deadline := time.Time{}
-		if set.TimeLimit > 0 {
-			deadline = time.Now().Add(set.TimeLimit)
+	baseDone := make(chan baselineRun, 1)
+	go func() {
+		baseStart := time.Now()
+		var br baselineRun
+		br.base, br.err = solveBaseline(ctx, c)
+		if opts.TimeLimit > 0 {
+			br.deadline = start.Add(searchLimit(opts.TimeLimit, baseStart.Sub(start), time.Since(baseStart), br.base != nil))
+			br.timer = time.AfterFunc(time.Until(br.deadline), stopSearch)
 		}
-		set.Improve = m.newImprover(ctx, deadline).improve
+		baseDone <- br
+	}()
+	var baseRun *baselineRun
+	waitBaseline := func() *baselineRun {
+		if baseRun == nil {
+			br := <-baseDone
+			baseRun = &br
+		}
+		return baseRun
 	}
-	mr, err := mipSolve(ctx, m.LP, set)
+	var im *improver
+	if !opts.NoHeuristic && !opts.NoImprove {
+		im = m.newImprover(searchCtx, time.Time{})
+		set.Improve = im.improve
+	}
+	set.LateStart = func() []float64 {
+		br := waitBaseline()
+		if im != nil {
+			im.deadline = br.deadline // Improve is first called after this
+		}
+		if br.base == nil || opts.NoBaselineStart {
+			return nil
+		}
+		return m.startFromBaseline(br.base)
+	}
+	mr, err := mipSolve(searchCtx, m.LP, set)
+	br := waitBaseline()
+	if br.timer != nil {
+		br.timer.Stop()
+	}
+	if br.err != nil {
+		return nil, br.err
+	}
 	if err != nil {
 		return nil, fmt.Errorf("plans: %w", err)
 	}
+	base := br.base
+	res.setBaseline(base)
 	res.Stats.Nodes, res.Stats.Iterations = mr.Nodes, mr.LPIterations
 	res.mipObjective = mr.Objective
 
@@ -195,6 +230,16 @@ const (
 	// baseline used up the limit: enough to check the start plan.
 	minSearchTime = time.Millisecond
 )
+
+// baselineRun is the outcome of the baseline LP run concurrently with the
+// search: the baseline, and the search's deadline (zero without a time
+// limit) with the timer that stops the search then.
+type baselineRun struct {
+	base     *baselineSolution
+	err      error
+	deadline time.Time
+	timer    *time.Timer
+}
 
 // searchLimit returns the time limit of the search in a solve limited to
 // limit, of which elapsed has passed, the baseline LP having taken
