@@ -406,14 +406,8 @@ func TestSeparateCallback(t *testing.T) {
 // that LP's basis; a point the callback returns that breaks a row is
 // refused.
 func TestImproveCallback(t *testing.T) {
-	m := lp.NewModel("knapsack")
-	m.Sense = lp.Maximize
-	a := m.AddIntCol("a", 5, 0, 1)
-	b := m.AddIntCol("b", 4, 0, 1)
-	c := m.AddIntCol("c", 3, 0, 1)
-	s := m.AddCol("s", 0.1, 0, 1)
-	m.AddRow("weight", -lp.Inf, 4.5, []int{a, b, c}, []float64{2, 3, 1})
-	m.AddRow("link", -lp.Inf, 0.5, []int{s, a}, []float64{1, -1})
+	m := linkedKnapsack()
+	c, s := 2, 3 // columns a, b, c, s
 	set := Settings{NoHeuristics: true, NoCuts: true, NoStrongBranching: true, NodeLimit: 1, Start: []float64{0, 0, 1, 1}}
 	plain, err := Solve(context.Background(), m, set)
 	if err != nil {
@@ -460,14 +454,7 @@ func TestImproveCallback(t *testing.T) {
 // by LP is completed from the root LP's basis when it comes late, so its
 // iterations differ).
 func TestLateStart(t *testing.T) {
-	m := lp.NewModel("knapsack")
-	m.Sense = lp.Maximize
-	a := m.AddIntCol("a", 5, 0, 1)
-	b := m.AddIntCol("b", 4, 0, 1)
-	c := m.AddIntCol("c", 3, 0, 1)
-	s := m.AddCol("s", 0.1, 0, 1)
-	m.AddRow("weight", -lp.Inf, 4.5, []int{a, b, c}, []float64{2, 3, 1})
-	m.AddRow("link", -lp.Inf, 0.5, []int{s, a}, []float64{1, -1})
+	m := linkedKnapsack()
 	start := []float64{0, 0, 1, 0}
 	for _, set := range []Settings{
 		{NoHeuristics: true, NoCuts: true, NoStrongBranching: true, NodeLimit: 1},
@@ -494,4 +481,19 @@ func TestLateStart(t *testing.T) {
 				got.Status, got.Objective, got.Nodes, got.LPIterations, want.Status, want.Objective, want.Nodes, want.LPIterations)
 		}
 	}
+}
+
+// linkedKnapsack returns max 5a + 4b + 3c + 0.1s over binaries a, b, c
+// with 2a + 3b + c ≤ 4.5, and s ∈ [0, 1] with s − a ≤ 0.5 (columns in that
+// order): its LP relaxation is fractional, its optimum 8.1 at (1, 0, 1, 1).
+func linkedKnapsack() *lp.Model {
+	m := lp.NewModel("knapsack")
+	m.Sense = lp.Maximize
+	a := m.AddIntCol("a", 5, 0, 1)
+	b := m.AddIntCol("b", 4, 0, 1)
+	c := m.AddIntCol("c", 3, 0, 1)
+	s := m.AddCol("s", 0.1, 0, 1)
+	m.AddRow("weight", -lp.Inf, 4.5, []int{a, b, c}, []float64{2, 3, 1})
+	m.AddRow("link", -lp.Inf, 0.5, []int{s, a}, []float64{1, -1})
+	return m
 }
