@@ -5,6 +5,7 @@ import (
 	"errors"
 	"fmt"
 	"math"
+	"sync"
 	"time"
 
 	"netstage/lp"
@@ -120,20 +121,15 @@ func Solve(ctx context.Context, c *Case, opts SolveOptions) (*Result, error) {
 		baseStart := time.Now()
 		var br baselineRun
 		br.base, br.err = solveBaseline(ctx, c)
-		if opts.TimeLimit > 0 {
+		if br.err != nil {
+			stopSearch() // Solve fails with this error: no use searching on
+		} else if opts.TimeLimit > 0 {
 			br.deadline = start.Add(searchLimit(opts.TimeLimit, baseStart.Sub(start), time.Since(baseStart), br.base != nil))
 			br.timer = time.AfterFunc(time.Until(br.deadline), stopSearch)
 		}
 		baseDone <- br
 	}()
-	var baseRun *baselineRun
-	waitBaseline := func() *baselineRun {
-		if baseRun == nil {
-			br := <-baseDone
-			baseRun = &br
-		}
-		return baseRun
-	}
+	waitBaseline := sync.OnceValue(func() baselineRun { return <-baseDone })
 	var im *improver
 	if !opts.NoHeuristic && !opts.NoImprove {
 		im = m.newImprover(searchCtx, time.Time{})
