@@ -245,20 +245,24 @@ func (im *improver) fix(y []float64) {
 // capacity as if every Gbps of it carried traffic.
 func (im *improver) moves(y, d []float64) []unitMove {
 	m := im.m
+	tail := im.tails(d)
 	var down, up []unitMove
 	for oi := range m.options {
-		cols := im.cols[oi]
-		n := len(cols)
-		tail := 0.0 // Σ d over cols[i:], the estimate of +1 from step i on
-		for i := n - 1; i >= 0; i-- {
-			tail += d[cols[i]]
-			if tail < 0 {
-				up = append(up, unitMove{oi: oi, i: i, kind: moveAdd, estimate: tail})
-			} else if tail > 0 {
-				down = append(down, unitMove{oi: oi, i: i, kind: moveRemove, estimate: -tail})
+		o := &m.options[oi]
+		i := len(im.cols[oi]) // position in im.cols[oi] of the column of year tau
+		for tau := len(o.col) - 1; tau >= 0; tau-- {
+			j := o.col[tau]
+			if j < 0 {
+				continue
 			}
-			if i+1 < n {
-				if dj := d[cols[i]]; dj > 0 {
+			i--
+			if e := tail[oi][tau]; e < 0 {
+				up = append(up, unitMove{oi: oi, i: i, kind: moveAdd, estimate: e})
+			} else if e > 0 {
+				down = append(down, unitMove{oi: oi, i: i, kind: moveRemove, estimate: -e})
+			}
+			if i+1 < len(im.cols[oi]) {
+				if dj := d[j]; dj > 0 {
 					down = append(down, unitMove{oi: oi, i: i, kind: moveLater, estimate: -dj})
 				} else if dj < 0 {
 					up = append(up, unitMove{oi: oi, i: i, kind: moveEarlier, estimate: dj})
@@ -266,7 +270,7 @@ func (im *improver) moves(y, d []float64) []unitMove {
 			}
 		}
 	}
-	swaps := im.swaps(y, d)
+	swaps := im.swaps(y, tail)
 	byEstimate := func(ms []unitMove) {
 		sort.SliceStable(ms, func(a, b int) bool { return ms[a].estimate < ms[b].estimate })
 	}
@@ -276,13 +280,12 @@ func (im *improver) moves(y, d []float64) []unitMove {
 	return append(append(down, swaps...), up...)
 }
 
-// swaps lists the moves that turn a unit of one item ordered in some year
-// into a unit of another item on the same link ordered that year (a larger
-// module, another vendor) whose estimate improves −NPV.
-func (im *improver) swaps(y, d []float64) []unitMove {
+// tails returns tail[oi][tau], the sum of the reduced costs d over option
+// oi's unit columns of order years ≥ tau (0 for tau = horizon): the
+// first-order estimate of one more unit of oi ordered in year tau.
+func (im *improver) tails(d []float64) [][]float64 {
 	m := im.m
 	T := m.Case.Horizon
-	// tail[oi][tau]: Σ d over option oi's columns of order years ≥ tau.
 	tail := make([][]float64, len(m.options))
 	for oi := range m.options {
 		tail[oi] = make([]float64, T+1)
@@ -293,6 +296,16 @@ func (im *improver) swaps(y, d []float64) []unitMove {
 			}
 		}
 	}
+	return tail
+}
+
+// swaps lists the moves that turn a unit of one item ordered in some year
+// into a unit of another item on the same link ordered that year (a larger
+// module, another vendor) whose estimate, from the tails of the reduced
+// costs (see tails), improves −NPV.
+func (im *improver) swaps(y []float64, tail [][]float64) []unitMove {
+	m := im.m
+	T := m.Case.Horizon
 	var out []unitMove
 	for _, opts := range im.byLink {
 		for _, oi := range opts {
