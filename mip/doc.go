@@ -52,8 +52,8 @@
 //
 // Callers can give a starting solution (Settings.Start, Solver.AddSolution,
 // or Settings.LateStart, asked for once the root LP has ended, so that it
-// can be computed meanwhile) and propose solutions during the search (Settings.Heuristic, called with
-// the node's LP solution). Every candidate, and every incumbent, is checked
+// can be computed meanwhile) and propose solutions during the search
+// (Settings.Heuristic, called with the node's LP solution). Every candidate, and every incumbent, is checked
 // against the original model's bounds, rows and integrality; a candidate
 // that violates rows has its integer values fixed and its continuous
 // columns re-optimised by LP. Settings.Improve hands each new incumbent to

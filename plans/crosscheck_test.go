@@ -152,6 +152,23 @@ func loadSynthetic(t testing.TB, sites, years int, seed int64) (*Case, error) {
 	return c, err
 }
 
+// synthCase names a small synthetic case of the tests.
+type synthCase struct {
+	sites, years int
+	seed         int64
+}
+
+// eachRelaxed runs f as a subtest on each synthetic case, with the case,
+// its model and its LP relaxation (see relaxSynthetic).
+func eachRelaxed(t *testing.T, cases []synthCase, f func(t *testing.T, c *Case, m *Model, relax lp.Result)) {
+	for _, tc := range cases {
+		t.Run(fmt.Sprintf("%d-sites-%d-years-seed-%d", tc.sites, tc.years, tc.seed), func(t *testing.T) {
+			c, m, relax := relaxSynthetic(t, tc.sites, tc.years, tc.seed)
+			f(t, c, m, relax)
+		})
+	}
+}
+
 // relaxSynthetic loads a synthetic case, builds its model and solves the
 // LP relaxation, failing the test on any error.
 func relaxSynthetic(t testing.TB, sites, years int, seed int64) (*Case, *Model, lp.Result) {

@@ -2,8 +2,9 @@ package plans
 
 import (
 	"context"
-	"fmt"
 	"testing"
+
+	"netstage/lp"
 )
 
 // TestSeparatedCutSetsValid: every cut-set row separated at the LP optimum
@@ -15,41 +16,38 @@ import (
 // these cases, or the test proves nothing.
 func TestSeparatedCutSetsValid(t *testing.T) {
 	found := 0
-	for _, tc := range []struct{ sites, years, seed int }{{7, 3, 1}, {8, 3, 2}, {9, 4, 3}, {8, 4, 4}} {
-		t.Run(fmt.Sprintf("%d-sites-%d-years-seed-%d", tc.sites, tc.years, tc.seed), func(t *testing.T) {
-			c, m, relax := relaxSynthetic(t, tc.sites, tc.years, int64(tc.seed))
-			rows := m.separateCutSets(relax.X)
-			found += len(rows)
-			res, err := Solve(context.Background(), c, SolveOptions{Gap: 1e-9})
-			if err != nil || res.Status != StatusOptimal {
-				t.Fatalf("solve: %v %v", res.Status, err)
+	eachRelaxed(t, []synthCase{{7, 3, 1}, {8, 3, 2}, {9, 4, 3}, {8, 4, 4}}, func(t *testing.T, c *Case, m *Model, relax lp.Result) {
+		rows := m.separateCutSets(relax.X)
+		found += len(rows)
+		res, err := Solve(context.Background(), c, SolveOptions{Gap: 1e-9})
+		if err != nil || res.Status != StatusOptimal {
+			t.Fatalf("solve: %v %v", res.Status, err)
+		}
+		base, err := solveBaseline(context.Background(), c)
+		if err != nil || base == nil {
+			t.Fatalf("baseline: %v", err)
+		}
+		points := map[string][]float64{"optimal plan": res.x, "do-nothing plan": m.startFromBaseline(base)}
+		for _, row := range rows {
+			if v := row.Lower - rowActivity(row, relax.X); v <= minCutViolation {
+				t.Errorf("%s: violation %g at the LP point, want > %g", row.Name, v, minCutViolation)
 			}
-			base, err := solveBaseline(context.Background(), c)
-			if err != nil || base == nil {
-				t.Fatalf("baseline: %v", err)
-			}
-			points := map[string][]float64{"optimal plan": res.x, "do-nothing plan": m.startFromBaseline(base)}
-			for _, row := range rows {
-				if v := row.Lower - rowActivity(row, relax.X); v <= minCutViolation {
-					t.Errorf("%s: violation %g at the LP point, want > %g", row.Name, v, minCutViolation)
-				}
-				for name, x := range points {
-					if a := rowActivity(row, x); a < row.Lower-1e-6*(1+abs(row.Lower)) {
-						t.Errorf("%s cuts off the %s: activity %.9g < %.9g", row.Name, name, a, row.Lower)
-					}
+			for name, x := range points {
+				if a := rowActivity(row, x); a < row.Lower-1e-6*(1+abs(row.Lower)) {
+					t.Errorf("%s cuts off the %s: activity %.9g < %.9g", row.Name, name, a, row.Lower)
 				}
 			}
-			// The separated rows do not change the optimum (they only
-			// tighten the relaxation).
-			plain, err := Solve(context.Background(), c, SolveOptions{Gap: 1e-9, NoSeparation: true})
-			if err != nil || plain.Status != StatusOptimal {
-				t.Fatalf("solve without separation: %v %v", plain.Status, err)
-			}
-			if d := *res.Objective - *plain.Objective; abs(d) > 1e-6*abs(*plain.Objective) {
-				t.Errorf("NPV %.2f with separation, %.2f without", *res.Objective, *plain.Objective)
-			}
-		})
-	}
+		}
+		// The separated rows do not change the optimum (they only
+		// tighten the relaxation).
+		plain, err := Solve(context.Background(), c, SolveOptions{Gap: 1e-9, NoSeparation: true})
+		if err != nil || plain.Status != StatusOptimal {
+			t.Fatalf("solve without separation: %v %v", plain.Status, err)
+		}
+		if d := *res.Objective - *plain.Objective; abs(d) > 1e-6*abs(*plain.Objective) {
+			t.Errorf("NPV %.2f with separation, %.2f without", *res.Objective, *plain.Objective)
+		}
+	})
 	if found == 0 {
 		t.Fatal("separation found no violated row on any case")
 	}

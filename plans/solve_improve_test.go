@@ -2,7 +2,6 @@ package plans
 
 import (
 	"context"
-	"fmt"
 	"math"
 	"testing"
 	"time"
@@ -30,40 +29,37 @@ func fixedLP(t *testing.T, m *Model, x []float64) lp.Result {
 // search (which would mean an invalid point).
 func TestImprovePlan(t *testing.T) {
 	improved := 0
-	for _, tc := range []struct{ sites, years, seed int }{{8, 4, 1}, {10, 4, 2}, {9, 5, 3}, {12, 5, 4}} {
-		t.Run(fmt.Sprintf("%d-sites-%d-years-seed-%d", tc.sites, tc.years, tc.seed), func(t *testing.T) {
-			c, m, relax := relaxSynthetic(t, tc.sites, tc.years, int64(tc.seed))
-			start := m.roundUpHeuristic(relax.X)
-			if len(start) == 0 {
-				t.Skip("the heuristic found no candidate plan within the budget")
-			}
-			from := fixedLP(t, m, start[0])
-			if from.Status != lp.Optimal {
-				t.Skipf("the rounded-up plan has no feasible routing (%v)", from.Status)
-			}
-			z := m.newImprover(context.Background(), time.Time{}).improve(start[0], nil)
-			if z == nil {
-				t.Logf("no improving move from −NPV %.2f", from.Objective)
-				return
-			}
-			improved++
-			if v, integral := m.LP.MaxViolation(z, 1e-9); v > 1e-6 || !integral {
-				t.Fatalf("improved point violates the model by %g (integral %v)", v, integral)
-			}
-			obj, _ := m.LP.Evaluate(z)
-			if obj >= from.Objective-1e-6*math.Abs(from.Objective) {
-				t.Errorf("improved −NPV %.2f, not below the start's %.2f", obj, from.Objective)
-			}
-			res, err := Solve(context.Background(), c, SolveOptions{Gap: 1e-9})
-			if err != nil || res.Status != StatusOptimal {
-				t.Fatalf("solve: %v %v", res.Status, err)
-			}
-			if -obj > *res.Objective*(1+1e-9)+1e-6 {
-				t.Errorf("improved NPV %.2f above the proven optimum %.2f", -obj, *res.Objective)
-			}
-			t.Logf("NPV %.2f → %.2f (optimum %.2f)", -from.Objective, -obj, *res.Objective)
-		})
-	}
+	eachRelaxed(t, []synthCase{{8, 4, 1}, {10, 4, 2}, {9, 5, 3}, {12, 5, 4}}, func(t *testing.T, c *Case, m *Model, relax lp.Result) {
+		start := m.roundUpHeuristic(relax.X)
+		if len(start) == 0 {
+			t.Skip("the heuristic found no candidate plan within the budget")
+		}
+		from := fixedLP(t, m, start[0])
+		if from.Status != lp.Optimal {
+			t.Skipf("the rounded-up plan has no feasible routing (%v)", from.Status)
+		}
+		z := m.newImprover(context.Background(), time.Time{}).improve(start[0], nil)
+		if z == nil {
+			t.Logf("no improving move from −NPV %.2f", from.Objective)
+			return
+		}
+		improved++
+		if v, integral := m.LP.MaxViolation(z, 1e-9); v > 1e-6 || !integral {
+			t.Fatalf("improved point violates the model by %g (integral %v)", v, integral)
+		}
+		obj, _ := m.LP.Evaluate(z)
+		if obj >= from.Objective-1e-6*math.Abs(from.Objective) {
+			t.Errorf("improved −NPV %.2f, not below the start's %.2f", obj, from.Objective)
+		}
+		res, err := Solve(context.Background(), c, SolveOptions{Gap: 1e-9})
+		if err != nil || res.Status != StatusOptimal {
+			t.Fatalf("solve: %v %v", res.Status, err)
+		}
+		if -obj > *res.Objective*(1+1e-9)+1e-6 {
+			t.Errorf("improved NPV %.2f above the proven optimum %.2f", -obj, *res.Objective)
+		}
+		t.Logf("NPV %.2f → %.2f (optimum %.2f)", -from.Objective, -obj, *res.Objective)
+	})
 	if improved == 0 {
 		t.Fatal("the local search improved no start plan")
 	}
