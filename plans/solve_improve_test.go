@@ -26,7 +26,8 @@ func fixedLP(t *testing.T, m *Model, x []float64) lp.Result {
 // LP used, so there is something to gain) and checks what comes back: a
 // point of the MIP (rows, bounds, integrality), better than the start's
 // own best completion, and no better than the optimum found by the full
-// search (which would mean an invalid point).
+// search (which would mean an invalid point). Offered that point again, the
+// search answers nil at once.
 func TestImprovePlan(t *testing.T) {
 	improved := 0
 	eachRelaxed(t, []synthCase{{8, 4, 1}, {10, 4, 2}, {9, 5, 3}, {12, 5, 4}}, func(t *testing.T, c *Case, m *Model, relax lp.Result) {
@@ -38,12 +39,22 @@ func TestImprovePlan(t *testing.T) {
 		if from.Status != lp.Optimal {
 			t.Skipf("the rounded-up plan has no feasible routing (%v)", from.Status)
 		}
-		z := m.newImprover(context.Background(), time.Time{}).improve(start[0], nil)
+		im := m.newImprover(context.Background(), time.Time{})
+		z := im.improve(start[0], nil)
 		if z == nil {
 			t.Logf("no improving move from −NPV %.2f", from.Objective)
 			return
 		}
 		improved++
+		// Without limits the search ends with a pass that kept no move, so
+		// it knows z as settled and, offered z again (as mip does), answers
+		// nil at once.
+		if !im.isSettled(z) {
+			t.Error("the returned point is not marked settled")
+		}
+		if again := im.improve(z, nil); again != nil {
+			t.Error("offered its own result again, the search improved it")
+		}
 		if v, integral := m.LP.MaxViolation(z, 1e-9); v > 1e-6 || !integral {
 			t.Fatalf("improved point violates the model by %g (integral %v)", v, integral)
 		}
