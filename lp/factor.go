@@ -45,6 +45,18 @@ type factor struct {
 	ltStart []int
 	ltRow   []int // pivRow of the step
 	ltVal   []float64
+	// The steps each dense pass must visit in order, and those it may do
+	// last in any order (they read values no later step changes and change
+	// none): most steps of a basis with many slacks have no L or U entries,
+	// and walking them in the main loops costs more than their arithmetic.
+	lSteps          []int // steps with an L column (ftran L pass)
+	ucSteps, ucTriv []int // steps with and without a U column (ftran U pass)
+	uSteps, uTriv   []int // steps with and without a U row (btran Uᵀ pass)
+	ltSteps         []int // steps whose pivot row has Lᵀ entries (btran Lᵀ pass)
+	// The steps without entries whose pivot is a power of two (most are
+	// slacks, pivot −1): dividing by it is multiplying by its exact inverse,
+	// which costs a fraction of a division.
+	ucScale, uScale []scaleStep
 
 	// Eta file: update e replaced position etaPos[e]; its column (B⁻¹ of
 	// the entering column, without the pivot) is etaIdx/etaVal over
@@ -62,6 +74,21 @@ type factor struct {
 	stepOfRow, stepOfCol []int
 	gL, gU, gUt, gLt     stepGraph
 	sc                   *sparseScratch
+}
+
+// scaleStep is an elimination step without L or U entries in the pass at
+// hand whose pivot has an exact inverse: the pass sets the value at row
+// (btran) or position (ftran) from the other index times inv.
+type scaleStep struct {
+	row, col int
+	inv      float64
+}
+
+// exactInverse reports whether 1/d is exact (d a power of two), so that
+// x*(1/d) equals x/d for every x.
+func exactInverse(d float64) bool {
+	frac, _ := math.Frexp(d)
+	return frac == 0.5 || frac == -0.5
 }
 
 // numUpdates returns the number of eta updates since factorisation.
@@ -454,13 +481,67 @@ func (f *factor) transpose(sc *luScratch) {
 		}
 	}
 	f.initSparse()
+	// One allocation for the step lists: the with/without pairs split m
+	// steps between them, and lSteps and ltSteps hold at most m each.
+	buf := make([]int, 4*m)
+	uc, u := buf[:m:m], buf[m:2*m:2*m]
+	f.lSteps, f.ltSteps = buf[2*m:2*m:3*m], buf[3*m:3*m:4*m]
+	nuc, nu := 0, 0
+	for k, r := range f.pivRow {
+		if f.lstart[k] < f.lstart[k+1] {
+			f.lSteps = append(f.lSteps, k)
+		}
+		if f.ltStart[r] < f.ltStart[r+1] {
+			f.ltSteps = append(f.ltSteps, k)
+		}
+		if f.ucStart[k] < f.ucStart[k+1] {
+			uc[nuc] = k
+			nuc++
+		}
+		if f.ustart[k] < f.ustart[k+1] {
+			u[nu] = k
+			nu++
+		}
+	}
+	// The steps without entries fill each half from the back (their order
+	// does not matter).
+	tuc, tu := m, m
+	for k := m - 1; k >= 0; k-- {
+		if f.ucStart[k] == f.ucStart[k+1] {
+			tuc--
+			uc[tuc] = k
+		}
+		if f.ustart[k] == f.ustart[k+1] {
+			tu--
+			u[tu] = k
+		}
+	}
+	f.ucSteps, f.ucTriv = uc[:nuc], uc[nuc:]
+	f.uSteps, f.uTriv = u[:nu], u[nu:]
+	f.ucTriv, f.ucScale = f.splitExact(f.ucTriv)
+	f.uTriv, f.uScale = f.splitExact(f.uTriv)
+}
+
+// splitExact moves the steps of list whose pivot has an exact inverse to a
+// list of scaleSteps; the rest stay in list (in place).
+func (f *factor) splitExact(list []int) ([]int, []scaleStep) {
+	var scale []scaleStep
+	rest := list[:0]
+	for _, k := range list {
+		if d := f.diag[k]; exactInverse(d) {
+			scale = append(scale, scaleStep{f.pivRow[k], f.pivCol[k], 1 / d})
+		} else {
+			rest = append(rest, k)
+		}
+	}
+	return rest, scale
 }
 
 // ftran solves B·x = b in place: on entry b is indexed by rows, on return
 // by basis positions. Cost O(m + nonzeros of L, U and the eta file).
 func (f *factor) ftran(b []float64) {
-	for k, r := range f.pivRow {
-		br := b[r]
+	for _, k := range f.lSteps {
+		br := b[f.pivRow[k]]
 		if br == 0 {
 			continue
 		}
@@ -475,10 +556,11 @@ func (f *factor) ftran(b []float64) {
 // f.work zero.
 func (f *factor) ftranU(b []float64) {
 	out := f.work
-	for k := f.m - 1; k >= 0; k-- {
+	steps := f.ucSteps
+	for i := len(steps) - 1; i >= 0; i-- {
+		k := steps[i]
 		v := b[f.pivRow[k]]
 		if v == 0 {
-			out[f.pivCol[k]] = 0
 			continue
 		}
 		v /= f.diag[k]
@@ -486,6 +568,12 @@ func (f *factor) ftranU(b []float64) {
 		for p := f.ucStart[k]; p < f.ucStart[k+1]; p++ {
 			b[f.ucRow[p]] -= f.ucVal[p] * v
 		}
+	}
+	for _, k := range f.ucTriv {
+		out[f.pivCol[k]] = b[f.pivRow[k]] / f.diag[k]
+	}
+	for _, st := range f.ucScale {
+		out[st.col] = b[st.row] * st.inv
 	}
 	for e, p := range f.etaPos {
 		xp := out[p] / f.etaPiv[e]
@@ -525,8 +613,8 @@ func (f *factor) btranEta(e int, d []float64) float64 {
 // btranFromU is btran after the eta file: the Uᵀ and Lᵀ passes.
 func (f *factor) btranFromU(d []float64) {
 	w := f.work
-	for k, c := range f.pivCol {
-		wr := d[c] / f.diag[k]
+	for _, k := range f.uSteps {
+		wr := d[f.pivCol[k]] / f.diag[k]
 		w[f.pivRow[k]] = wr
 		if wr == 0 {
 			continue
@@ -535,6 +623,12 @@ func (f *factor) btranFromU(d []float64) {
 			d[f.uidx[p]] -= wr * f.uval[p]
 		}
 	}
+	for _, k := range f.uTriv {
+		w[f.pivRow[k]] = d[f.pivCol[k]] / f.diag[k]
+	}
+	for _, st := range f.uScale {
+		w[st.row] = d[st.col] * st.inv
+	}
 	f.btranFromL(d)
 }
 
@@ -542,8 +636,9 @@ func (f *factor) btranFromU(d []float64) {
 // pass, then the result moves to d. It leaves f.work zero.
 func (f *factor) btranFromL(d []float64) {
 	w := f.work
-	for k := f.m - 1; k >= 0; k-- {
-		r := f.pivRow[k]
+	steps := f.ltSteps
+	for i := len(steps) - 1; i >= 0; i-- {
+		r := f.pivRow[steps[i]]
 		v := w[r]
 		if v == 0 {
 			continue
