@@ -40,8 +40,9 @@
 // certificate (Result.Ray) that the solver has checked. Long runs of degenerate pivots in an unperturbed solve
 // switch the perturbation on. The basis is factorised as sparse LU (singletons
 // first, then Markowitz pivoting with threshold 0.1) with product-form
-// updates and a refactorisation every 100 updates or when the pivot seen
-// from the row and from the column disagree. The model is scaled by
+// updates and a refactorisation every 100 updates, when the updates hold
+// more nonzeros than the factors, or when the pivot seen from the row and
+// from the column disagree. The model is scaled by
 // geometric row/column passes rounded to powers of two. Memory is
 // proportional to the nonzeros of A and of the factors; no dense m×n array
 // is formed.

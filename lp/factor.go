@@ -91,6 +91,15 @@ func exactInverse(d float64) bool {
 	return frac == 0.5 || frac == -0.5
 }
 
+// needsRefactor reports whether the eta file has grown enough that a fresh
+// factorisation pays: after refactorEvery updates, or once its nonzeros
+// exceed etaGrowth times those of L, U and the diagonal (from then on every
+// solve spends more on the etas than on the factors).
+func (f *factor) needsRefactor() bool {
+	n := len(f.etaPos)
+	return n >= refactorEvery || (n > 0 && float64(len(f.etaIdx)) > etaGrowth*float64(len(f.lidx)+len(f.uidx)+f.m))
+}
+
 // numUpdates returns the number of eta updates since factorisation.
 func (f *factor) numUpdates() int { return len(f.etaPos) }
 

@@ -166,3 +166,49 @@ func checkSame(t *testing.T, what string, trial int, got, want []float64, list [
 		}
 	}
 }
+
+// TestRefactorRule checks when the eta file asks for a fresh factorisation:
+// updates whose columns are a single entry (etas without off-pivot
+// nonzeros) do so only after refactorEvery updates, and dense updates as
+// soon as their nonzeros pass etaGrowth times those of L, U and the
+// diagonal, well before that count.
+func TestRefactorRule(t *testing.T) {
+	rng := rand.New(rand.NewSource(11))
+	const m = 300
+	idx, val := randomBasis(rng, m, 0.9)
+	col := func(p int) ([]int, []float64) { return idx[p], val[p] }
+
+	f, bad, _ := factorize(m, col)
+	if f == nil || len(bad) > 0 {
+		t.Fatal("random basis singular")
+	}
+	for u := 1; u <= refactorEvery; u++ {
+		if f.needsRefactor() {
+			t.Fatalf("single-entry updates: refactorisation asked after %d updates, want %d", u-1, refactorEvery)
+		}
+		alpha := make([]float64, m)
+		alpha[u%m] = 1
+		f.update(u%m, alpha)
+	}
+	if !f.needsRefactor() {
+		t.Fatalf("no refactorisation asked after %d updates", refactorEvery)
+	}
+
+	f, _, _ = factorize(m, col)
+	limit := etaGrowth * float64(len(f.lidx)+len(f.uidx)+m)
+	updates := 0
+	for !f.needsRefactor() {
+		if float64(len(f.etaIdx)) > limit {
+			t.Fatalf("eta file of %d nonzeros, above %g, without a refactorisation asked", len(f.etaIdx), limit)
+		}
+		alpha := make([]float64, m)
+		for i := range alpha {
+			alpha[i] = 1 + rng.Float64()
+		}
+		f.update(updates%m, alpha)
+		updates++
+	}
+	if float64(len(f.etaIdx)) <= limit || updates >= refactorEvery {
+		t.Fatalf("dense updates: refactorisation asked after %d updates with %d eta nonzeros (limit %g)", updates, len(f.etaIdx), limit)
+	}
+}

@@ -722,7 +722,7 @@ func (s *Solver) dualSimplex(lim *limits, useCutoff bool) Status {
 		if st := s.checkLimits(lim); st != StatusUnknown {
 			return st
 		}
-		if s.fac.numUpdates() >= refactorEvery {
+		if s.fac.needsRefactor() {
 			if !s.refactor() {
 				return NumericalTrouble
 			}
@@ -1190,7 +1190,7 @@ func (s *Solver) primalSimplex(lim *limits) Status {
 		if st := s.checkLimits(lim); st != StatusUnknown {
 			return st
 		}
-		if s.fac.numUpdates() >= refactorEvery {
+		if s.fac.needsRefactor() {
 			if !s.refactor() {
 				return NumericalTrouble
 			}
