@@ -51,7 +51,11 @@
 // (its capacity-row duals give the value of one more Gbps per link and
 // year) and, holding that NPV, the fewest Gbps·km, so the routing reported
 // sends no traffic the long way round (routings of equal Gbps·km remain
-// ties, broken by the LP's pivots). The cash flow is recomputed from the purchases and the served
+// ties, broken by the LP's pivots). With a time limit the search stops
+// early enough to leave time for these LPs (twice the baseline's time, at
+// most a quarter of the limit); the Gbps·km stage, a tie-break, stops at the
+// limit (after at least a second) and a warning then says the routes may
+// take longer paths. The cash flow is recomputed from the purchases and the served
 // traffic alone and equals the MIP objective (checked in the tests).
 // The do-nothing baseline is an LP without purchases whose committed
 // traffic may fall short at the SLA penalty; an infeasible case is

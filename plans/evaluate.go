@@ -68,7 +68,7 @@ func Evaluate(ctx context.Context, c *Case, plan []PlanRow) (*Result, error) {
 	res.Status = StatusOptimal
 	res.model = m
 	res.mipObjective = mr.Objective
-	if err := m.decode(context.WithoutCancel(ctx), res, mr.X, base); err != nil {
+	if err := m.decode(context.WithoutCancel(ctx), res, mr.X, base, time.Time{}); err != nil {
 		return nil, err
 	}
 	res.Stats.Seconds = time.Since(start).Seconds()

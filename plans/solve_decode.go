@@ -3,6 +3,7 @@ package plans
 import (
 	"context"
 	"math"
+	"time"
 
 	"netstage/plans/finance"
 )
@@ -10,16 +11,20 @@ import (
 // decode fills res from the MIP's point xi: it fixes the integer decisions,
 // re-solves the continuous part (NPV, then Gbps·km), and reports plan, cash
 // flow, links, demands and the incremental figures against base (nil when
-// the baseline LP failed).
-func (m *Model) decode(ctx context.Context, res *Result, xi []float64, base *baselineSolution) error {
+// the baseline LP failed). The Gbps·km stage stops at tieBreakBy (zero: no
+// limit), keeping the NPV stage's routing.
+func (m *Model) decode(ctx context.Context, res *Result, xi []float64, base *baselineSolution, tieBreakBy time.Time) error {
 	c := m.Case
 	fixed := m.fixIntegers(xi)
-	lr, err := solveLex(ctx, fixed, m.kmObjective())
+	lr, err := solveLex(ctx, fixed, tieBreakBy, m.kmObjective())
 	if err != nil {
 		return err
 	}
 	if lr == nil {
 		return errNoFixedLP
+	}
+	if lr.tieBreakCut {
+		res.Warnings = append(res.Warnings, "the time limit stopped the choice of the shortest routing: the routes and utilisations shown carry the plan's traffic at the same NPV, but some may take a longer path than needed")
 	}
 	x := lr.x
 	res.x = x

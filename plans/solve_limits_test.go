@@ -3,6 +3,7 @@ package plans
 import (
 	"context"
 	"encoding/json"
+	"strings"
 	"testing"
 	"time"
 )
@@ -67,5 +68,71 @@ func TestTimeLimitHonoured(t *testing.T) {
 	}
 	if res.Status == StatusFeasible {
 		checkInvariants(t, c, res)
+	}
+}
+
+// TestTieBreakDeadline: the shortest-routing stage of decoding stops at its
+// deadline and keeps the routing of the NPV stage, which has the same NPV
+// and no fewer Gbps·km, and decode says so in a warning; without a deadline
+// the stage runs to its optimum (source: the lexicographic order of the two
+// objectives; the first stage's optimum is the reference).
+func TestTieBreakDeadline(t *testing.T) {
+	c, err := loadSynthetic(t, 8, 4, 3)
+	if err != nil {
+		t.Fatal(err)
+	}
+	res, err := Solve(context.Background(), c, SolveOptions{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	m := res.model
+	fixed := m.fixIntegers(res.x)
+	km := m.kmObjective()
+	dot := func(x []float64) float64 {
+		s := 0.0
+		for j, v := range km {
+			s += v * x[j]
+		}
+		return s
+	}
+	full, err := solveLex(context.Background(), fixed, time.Time{}, km)
+	if err != nil || full == nil {
+		t.Fatalf("lexicographic LP without a deadline: %v", err)
+	}
+	if full.tieBreakCut {
+		t.Fatal("a stage without a deadline reported as stopped by one")
+	}
+
+	defer func(d time.Duration) { minTieBreak = d }(minTieBreak)
+	minTieBreak = 0
+	cut, err := solveLex(context.Background(), fixed, time.Now().Add(-time.Second), km)
+	if err != nil || cut == nil {
+		t.Fatalf("lexicographic LP with a past deadline: %v", err)
+	}
+	if !cut.tieBreakCut {
+		t.Fatal("a tie-break stage past its deadline not reported as stopped")
+	}
+	npvCut, _ := fixed.Evaluate(cut.x)
+	npvFull, _ := fixed.Evaluate(full.x)
+	if !withinRel(npvCut, full.firstObj, 1e-9) || !withinRel(npvFull, full.firstObj, 1e-6) {
+		t.Errorf("objective: cut %.6f, full %.6f, NPV stage %.6f", npvCut, npvFull, full.firstObj)
+	}
+	if dot(cut.x) < dot(full.x)-1e-6*dot(full.x) {
+		t.Errorf("Gbps·km: stopped stage %.3f below the optimum %.3f", dot(cut.x), dot(full.x))
+	}
+	t.Logf("Gbps·km: %.1f stopped, %.1f optimal", dot(cut.x), dot(full.x))
+
+	// decode passes the deadline on and warns.
+	res2 := &Result{}
+	res2.setBaseline(nil)
+	if err := m.decode(context.Background(), res2, res.x, nil, time.Now().Add(-time.Second)); err != nil {
+		t.Fatal(err)
+	}
+	warned := false
+	for _, w := range res2.Warnings {
+		warned = warned || strings.Contains(w, "shortest routing")
+	}
+	if !warned {
+		t.Errorf("no warning about the stopped tie-break: %q", res2.Warnings)
 	}
 }
