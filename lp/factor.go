@@ -49,14 +49,15 @@ type factor struct {
 	// last in any order (they read values no later step changes and change
 	// none): most steps of a basis with many slacks have no L or U entries,
 	// and walking them in the main loops costs more than their arithmetic.
-	lSteps          []int // steps with an L column (ftran L pass)
-	ucSteps, ucTriv []int // steps with and without a U column (ftran U pass)
-	uSteps, uTriv   []int // steps with and without a U row (btran Uᵀ pass)
-	ltSteps         []int // steps whose pivot row has Lᵀ entries (btran Lᵀ pass)
-	// The steps without entries whose pivot is a power of two (most are
-	// slacks, pivot −1): dividing by it is multiplying by its exact inverse,
-	// which costs a fraction of a division.
+	lSteps  []int // steps with an L column (ftran L pass)
+	ucSteps []int // steps with a U column (ftran U pass)
+	uSteps  []int // steps with a U row (btran Uᵀ pass)
+	ltSteps []int // steps whose pivot row has Lᵀ entries (btran Lᵀ pass)
+	// The steps without entries in the U pass at hand: those whose pivot is
+	// a power of two (most are slacks, pivot −1) multiply by its exact
+	// inverse, which costs a fraction of a division; the others divide.
 	ucScale, uScale []scaleStep
+	ucTriv, uTriv   []int
 
 	// Eta file: update e replaced position etaPos[e]; its column (B⁻¹ of
 	// the entering column, without the pivot) is etaIdx/etaVal over
@@ -490,12 +491,10 @@ func (f *factor) transpose(sc *luScratch) {
 		}
 	}
 	f.initSparse()
-	// One allocation for the step lists: the with/without pairs split m
-	// steps between them, and lSteps and ltSteps hold at most m each.
-	buf := make([]int, 4*m)
-	uc, u := buf[:m:m], buf[m:2*m:2*m]
-	f.lSteps, f.ltSteps = buf[2*m:2*m:3*m], buf[3*m:3*m:4*m]
-	nuc, nu := 0, 0
+	f.lSteps, f.ltSteps = make([]int, 0, m), make([]int, 0, m)
+	f.ucSteps, f.uSteps = make([]int, 0, m), make([]int, 0, m)
+	f.ucTriv, f.uTriv = nil, nil
+	f.ucScale, f.uScale = nil, nil
 	for k, r := range f.pivRow {
 		if f.lstart[k] < f.lstart[k+1] {
 			f.lSteps = append(f.lSteps, k)
@@ -503,47 +502,24 @@ func (f *factor) transpose(sc *luScratch) {
 		if f.ltStart[r] < f.ltStart[r+1] {
 			f.ltSteps = append(f.ltSteps, k)
 		}
-		if f.ucStart[k] < f.ucStart[k+1] {
-			uc[nuc] = k
-			nuc++
+		exact := exactInverse(f.diag[k])
+		switch {
+		case f.ucStart[k] < f.ucStart[k+1]:
+			f.ucSteps = append(f.ucSteps, k)
+		case exact:
+			f.ucScale = append(f.ucScale, scaleStep{r, f.pivCol[k], 1 / f.diag[k]})
+		default:
+			f.ucTriv = append(f.ucTriv, k)
 		}
-		if f.ustart[k] < f.ustart[k+1] {
-			u[nu] = k
-			nu++
-		}
-	}
-	// The steps without entries fill each half from the back (their order
-	// does not matter).
-	tuc, tu := m, m
-	for k := m - 1; k >= 0; k-- {
-		if f.ucStart[k] == f.ucStart[k+1] {
-			tuc--
-			uc[tuc] = k
-		}
-		if f.ustart[k] == f.ustart[k+1] {
-			tu--
-			u[tu] = k
+		switch {
+		case f.ustart[k] < f.ustart[k+1]:
+			f.uSteps = append(f.uSteps, k)
+		case exact:
+			f.uScale = append(f.uScale, scaleStep{r, f.pivCol[k], 1 / f.diag[k]})
+		default:
+			f.uTriv = append(f.uTriv, k)
 		}
 	}
-	f.ucSteps, f.ucTriv = uc[:nuc], uc[nuc:]
-	f.uSteps, f.uTriv = u[:nu], u[nu:]
-	f.ucTriv, f.ucScale = f.splitExact(f.ucTriv)
-	f.uTriv, f.uScale = f.splitExact(f.uTriv)
-}
-
-// splitExact moves the steps of list whose pivot has an exact inverse to a
-// list of scaleSteps; the rest stay in list (in place).
-func (f *factor) splitExact(list []int) ([]int, []scaleStep) {
-	var scale []scaleStep
-	rest := list[:0]
-	for _, k := range list {
-		if d := f.diag[k]; exactInverse(d) {
-			scale = append(scale, scaleStep{f.pivRow[k], f.pivCol[k], 1 / d})
-		} else {
-			rest = append(rest, k)
-		}
-	}
-	return rest, scale
 }
 
 // ftran solves B·x = b in place: on entry b is indexed by rows, on return
