@@ -172,7 +172,6 @@ func Solve(ctx context.Context, c *Case, opts SolveOptions) (*Result, error) {
 		return m.startFromBaseline(br.base)
 	}
 	mr, err := mipSolve(searchCtx, m.LP, set)
-	stopEarly() // a search that ended before its root LP never took the early plan
 	br := waitBaseline()
 	if br.timer != nil {
 		br.timer.Stop()
