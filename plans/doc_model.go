@@ -46,12 +46,7 @@
 // on its unit counts (solve_improve.go): moves of one unit — one more or one
 // less from an order year on, an order a year later or earlier — ranked by
 // the reduced costs of the LP with the decisions fixed and judged by
-// re-solving that LP, so that traffic re-routes around each change. With a
-// time limit and a spare core, the same search also starts from the
-// do-nothing plan as soon as the baseline is solved, while the root LP
-// runs, and its plan is the search's start (on the 50-site seed-2 case,
-// whose root LP outlasts a 30 s limit here, it lifts the plan reported from
-// the do-nothing NPV 7,745,809 to 7,893,535).
+// re-solving that LP, so that traffic re-routes around each change.
 // Solve then fixes the integer decisions and solves two LPs: the NPV again
 // (its capacity-row duals give the value of one more Gbps per link and
 // year) and, holding that NPV, the fewest Gbps·km, so the routing reported

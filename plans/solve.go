@@ -5,7 +5,6 @@ import (
 	"errors"
 	"fmt"
 	"math"
-	"runtime"
 	"sync"
 	"time"
 
@@ -118,22 +117,6 @@ func Solve(ctx context.Context, c *Case, opts SolveOptions) (*Result, error) {
 		set.TimeLimit = max(opts.TimeLimit-time.Since(start), minSearchTime) // a backstop; stopSearch ends the search earlier
 	}
 	baseDone := make(chan baselineRun, 1)
-	// With a time limit and a spare core, the local search starts from the
-	// do-nothing plan as soon as the baseline is known, while the root LP
-	// runs: on large cases that LP can take most of the limit, and the plan
-	// improved meanwhile is the start the search then gets. (Not without a
-	// time limit: where the root LP stops it would decide the path, and such
-	// solves are reproducible.)
-	early := opts.TimeLimit > 0 && !opts.NoHeuristic && !opts.NoImprove && !opts.NoBaselineStart && runtime.NumCPU() > 1
-	if early {
-		// The early search reads m.LP on another goroutine: build the
-		// model's lazy caches now, so that nothing writes it meanwhile.
-		m.LP.Columns()
-		m.LP.Rows()
-	}
-	earlyCtx, stopEarly := context.WithCancel(searchCtx)
-	defer stopEarly()
-	earlyDone := make(chan []float64, 1)
 	go func() {
 		baseStart := time.Now()
 		var br baselineRun
@@ -145,11 +128,6 @@ func Solve(ctx context.Context, c *Case, opts SolveOptions) (*Result, error) {
 			br.timer = time.AfterFunc(time.Until(br.deadline), stopSearch)
 		}
 		baseDone <- br
-		var x []float64
-		if early && br.base != nil {
-			x = m.earlyPlan(earlyCtx, br.base)
-		}
-		earlyDone <- x
 	}()
 	waitBaseline := sync.OnceValue(func() baselineRun { return <-baseDone })
 	var im *improver
@@ -164,10 +142,6 @@ func Solve(ctx context.Context, c *Case, opts SolveOptions) (*Result, error) {
 		}
 		if br.base == nil || opts.NoBaselineStart {
 			return nil
-		}
-		if early {
-			stopEarly()
-			return <-earlyDone
 		}
 		return m.startFromBaseline(br.base)
 	}
@@ -391,17 +365,6 @@ func (m *Model) startFromBaseline(base *baselineSolution) []float64 {
 	}
 	for _, vy := range m.tiers {
 		x[vy.choice[0]] = 1
-	}
-	return x
-}
-
-// earlyPlan returns the do-nothing plan improved by the local search until
-// ctx ends or the search settles: the start of a search whose root LP is
-// still running.
-func (m *Model) earlyPlan(ctx context.Context, base *baselineSolution) []float64 {
-	x := m.startFromBaseline(base)
-	if y := m.newImprover(ctx, time.Time{}).improve(x, nil); y != nil {
-		return y
 	}
 	return x
 }

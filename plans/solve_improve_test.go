@@ -3,7 +3,6 @@ package plans
 import (
 	"context"
 	"math"
-	"slices"
 	"testing"
 	"time"
 
@@ -74,52 +73,5 @@ func TestImprovePlan(t *testing.T) {
 	})
 	if improved == 0 {
 		t.Fatal("the local search improved no start plan")
-	}
-}
-
-// TestEarlyPlan: the plan the local search makes from the do-nothing plan
-// while the root LP runs is a feasible integral point of the model, never
-// worse than the do-nothing plan and better where purchases pay (source:
-// the model's own rows and objective; the do-nothing plan is the
-// reference). With its context already ended it is the do-nothing plan.
-func TestEarlyPlan(t *testing.T) {
-	better := 0
-	for _, sc := range []synthCase{{8, 4, 1}, {10, 4, 2}, {9, 5, 3}} {
-		c, err := loadSynthetic(t, sc.sites, sc.years, sc.seed)
-		if err != nil {
-			t.Fatal(err)
-		}
-		m, err := BuildModel(c, BuildOptions{})
-		if err != nil {
-			t.Fatal(err)
-		}
-		base, err := solveBaseline(context.Background(), c)
-		if err != nil || base == nil {
-			t.Fatalf("baseline: %v", err)
-		}
-		start := m.startFromBaseline(base)
-		from, _ := m.LP.Evaluate(start)
-
-		x := m.earlyPlan(context.Background(), base)
-		if v, integral := m.LP.MaxViolation(x, 1e-9); v > 1e-6 || !integral {
-			t.Fatalf("%v: early plan violates the model by %g (integral %v)", sc, v, integral)
-		}
-		obj, _ := m.LP.Evaluate(x)
-		if obj > from+1e-9*math.Abs(from) {
-			t.Errorf("%v: early plan −NPV %.2f above the do-nothing plan's %.2f", sc, obj, from)
-		}
-		if obj < from-1e-6*math.Abs(from) {
-			better++
-		}
-		t.Logf("%v: NPV %.2f → %.2f", sc, -from, -obj)
-
-		ctx, cancel := context.WithCancel(context.Background())
-		cancel()
-		if y := m.earlyPlan(ctx, base); !slices.Equal(y, start) {
-			t.Errorf("%v: with its context ended, the early plan is not the do-nothing plan", sc)
-		}
-	}
-	if better == 0 {
-		t.Fatal("the early plan improved on the do-nothing plan in no case")
 	}
 }

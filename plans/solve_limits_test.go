@@ -136,27 +136,3 @@ func TestTieBreakDeadline(t *testing.T) {
 		t.Errorf("no warning about the stopped tie-break: %q", res2.Warnings)
 	}
 }
-
-// TestEarlyStartSameOptimum: a solve with a (generous) time limit, where
-// the local search improves the do-nothing plan on another goroutine while
-// the root LP runs, proves the same optimum as a solve without a limit
-// (the unlimited solve is the reference; under -race it also checks that
-// the two goroutines share the model safely).
-func TestEarlyStartSameOptimum(t *testing.T) {
-	c, err := loadSynthetic(t, 10, 4, 2)
-	if err != nil {
-		t.Fatal(err)
-	}
-	ref, err := Solve(context.Background(), c, SolveOptions{Gap: 1e-9})
-	if err != nil || ref.Status != StatusOptimal {
-		t.Fatalf("unlimited solve: %v %v", ref.Status, err)
-	}
-	res, err := Solve(context.Background(), c, SolveOptions{Gap: 1e-9, TimeLimit: 10 * time.Minute})
-	if err != nil || res.Status != StatusOptimal {
-		t.Fatalf("time-limited solve: %v %v", res.Status, err)
-	}
-	if !withinRel(*res.Objective, *ref.Objective, 1e-8) {
-		t.Errorf("NPV %.4f with a time limit, %.4f without", *res.Objective, *ref.Objective)
-	}
-	checkInvariants(t, c, res)
-}
