@@ -495,6 +495,18 @@ func (f *factor) transpose(sc *luScratch) {
 	f.ucSteps, f.uSteps = make([]int, 0, m), make([]int, 0, m)
 	f.ucTriv, f.uTriv = nil, nil
 	f.ucScale, f.uScale = nil, nil
+	// place files step k of a U pass under the steps with entries, the
+	// exact scalings or the divisions.
+	place := func(k int, entries bool, steps, triv *[]int, scale *[]scaleStep) {
+		switch d := f.diag[k]; {
+		case entries:
+			*steps = append(*steps, k)
+		case exactInverse(d):
+			*scale = append(*scale, scaleStep{f.pivRow[k], f.pivCol[k], 1 / d})
+		default:
+			*triv = append(*triv, k)
+		}
+	}
 	for k, r := range f.pivRow {
 		if f.lstart[k] < f.lstart[k+1] {
 			f.lSteps = append(f.lSteps, k)
@@ -502,23 +514,8 @@ func (f *factor) transpose(sc *luScratch) {
 		if f.ltStart[r] < f.ltStart[r+1] {
 			f.ltSteps = append(f.ltSteps, k)
 		}
-		exact := exactInverse(f.diag[k])
-		switch {
-		case f.ucStart[k] < f.ucStart[k+1]:
-			f.ucSteps = append(f.ucSteps, k)
-		case exact:
-			f.ucScale = append(f.ucScale, scaleStep{r, f.pivCol[k], 1 / f.diag[k]})
-		default:
-			f.ucTriv = append(f.ucTriv, k)
-		}
-		switch {
-		case f.ustart[k] < f.ustart[k+1]:
-			f.uSteps = append(f.uSteps, k)
-		case exact:
-			f.uScale = append(f.uScale, scaleStep{r, f.pivCol[k], 1 / f.diag[k]})
-		default:
-			f.uTriv = append(f.uTriv, k)
-		}
+		place(k, f.ucStart[k] < f.ucStart[k+1], &f.ucSteps, &f.ucTriv, &f.ucScale)
+		place(k, f.ustart[k] < f.ustart[k+1], &f.uSteps, &f.uTriv, &f.uScale)
 	}
 }
 
