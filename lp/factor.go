@@ -493,8 +493,6 @@ func (f *factor) transpose(sc *luScratch) {
 	f.initSparse()
 	f.lSteps, f.ltSteps = make([]int, 0, m), make([]int, 0, m)
 	f.ucSteps, f.uSteps = make([]int, 0, m), make([]int, 0, m)
-	f.ucTriv, f.uTriv = nil, nil
-	f.ucScale, f.uScale = nil, nil
 	// place files step k of a U pass under the steps with entries, the
 	// exact scalings or the divisions.
 	place := func(k int, entries bool, steps, triv *[]int, scale *[]scaleStep) {

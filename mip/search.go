@@ -140,12 +140,12 @@ func (s *search) run(starts [][]float64) Result {
 	return s.finish()
 }
 
-// lateStart tries the point of Settings.LateStart, once.
+// lateStart tries the point of Settings.LateStart (called once, right
+// after the root LP).
 func (s *search) lateStart() {
-	if s.set.LateStart == nil || s.lateDone {
+	if s.set.LateStart == nil {
 		return
 	}
-	s.lateDone = true
 	if x := s.set.LateStart(); x != nil {
 		s.tryCandidate(x)
 	}

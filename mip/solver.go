@@ -102,8 +102,6 @@ type search struct {
 	// integer columns fixed), or nil when incX needed no completion.
 	incBasis *lp.Basis
 	incObj   float64 // its internal objective; +Inf when none
-	// lateDone: Settings.LateStart was called.
-	lateDone bool
 	// improvedObj is incObj when Settings.Improve last saw the incumbent.
 	improvedObj float64
 
