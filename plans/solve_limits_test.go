@@ -73,8 +73,9 @@ func TestTimeLimitHonoured(t *testing.T) {
 
 // TestTieBreakDeadline: the shortest-routing stage of decoding stops at its
 // deadline and keeps the routing of the NPV stage, which has the same NPV
-// and no fewer Gbps·km, and decode says so in a warning; without a deadline
-// the stage runs to its optimum (source: the lexicographic order of the two
+// and no fewer Gbps·km, and decode says so in a warning; without a deadline,
+// or with one just passed (the stage still gets minTieBreak), the stage runs
+// to its optimum (source: the lexicographic order of the two
 // objectives; the first stage's optimum is the reference).
 func TestTieBreakDeadline(t *testing.T) {
 	c, err := loadSynthetic(t, 8, 4, 3)
@@ -101,6 +102,16 @@ func TestTieBreakDeadline(t *testing.T) {
 	}
 	if full.tieBreakCut {
 		t.Fatal("a stage without a deadline reported as stopped by one")
+	}
+
+	// A deadline already passed still leaves the stage minTieBreak (1 s),
+	// far more than this small case needs: it runs to the same optimum.
+	late, err := solveLex(context.Background(), fixed, time.Now().Add(-time.Second), km)
+	if err != nil || late == nil {
+		t.Fatalf("lexicographic LP with a past deadline and the floor: %v", err)
+	}
+	if late.tieBreakCut || !withinRel(dot(late.x), dot(full.x), 1e-9) {
+		t.Errorf("with the floor of %v: stopped %v, Gbps·km %.3f, want %.3f", minTieBreak, late.tieBreakCut, dot(late.x), dot(full.x))
 	}
 
 	defer func(d time.Duration) { minTieBreak = d }(minTieBreak)
