@@ -1,6 +1,9 @@
 package lp
 
-import "math"
+import (
+	"math"
+	"slices"
+)
 
 // Factorisation constants.
 const (
@@ -534,9 +537,17 @@ func (f *factor) ftran(b []float64) {
 
 // ftranU is ftran after its L pass: the U pass and the eta file. It leaves
 // f.work zero.
-func (f *factor) ftranU(b []float64) {
+func (f *factor) ftranU(b []float64) { f.ftranUBelow(b, f.m) }
+
+// ftranUBelow is ftranU when the steps from below on are done already:
+// their values are in f.work and their rows of b are unchanged.
+func (f *factor) ftranUBelow(b []float64, below int) {
 	out := f.work
 	steps := f.ucSteps
+	if below < f.m {
+		n, _ := slices.BinarySearch(steps, below)
+		steps = steps[:n]
+	}
 	for i := len(steps) - 1; i >= 0; i-- {
 		k := steps[i]
 		v := b[f.pivRow[k]]
@@ -614,9 +625,17 @@ func (f *factor) btranFromU(d []float64) {
 
 // btranFromL is btran after the Uᵀ pass (its result in f.work): the Lᵀ
 // pass, then the result moves to d. It leaves f.work zero.
-func (f *factor) btranFromL(d []float64) {
+func (f *factor) btranFromL(d []float64) { f.btranFromLBelow(d, f.m) }
+
+// btranFromLBelow is btranFromL when the steps from below on are done
+// already.
+func (f *factor) btranFromLBelow(d []float64, below int) {
 	w := f.work
 	steps := f.ltSteps
+	if below < f.m {
+		n, _ := slices.BinarySearch(steps, below)
+		steps = steps[:n]
+	}
 	for i := len(steps) - 1; i >= 0; i-- {
 		r := f.pivRow[steps[i]]
 		v := w[r]
