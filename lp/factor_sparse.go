@@ -72,7 +72,9 @@ type stepGraph struct {
 }
 
 // initSparse builds the maps from rows and positions to elimination steps,
-// the four step graphs the sparse solves walk, and the scratch space.
+// the four step graphs of the sparse solves (the first passes walk gL and
+// gUt; the second passes, driven by the values, read the steps of their
+// entries from gU and gLt), and the scratch space.
 // Called by transpose; nothing for bases under hyperMinRows rows. Cost
 // O(m + nonzeros of L and U).
 func (f *factor) initSparse() {
@@ -196,6 +198,7 @@ func (f *factor) ftranSparse(b []float64, nz []int) []int {
 	gen := sc.nextGen()
 	heap, touched := f.pending(gen, b)
 	done := sc.steps[:0]
+	adj := f.gU.adj
 	for len(heap) > 0 {
 		var k int
 		k, heap = popMax(heap)
@@ -212,7 +215,6 @@ func (f *factor) ftranSparse(b []float64, nz []int) []int {
 		v /= f.diag[k]
 		out[f.pivCol[k]] = v
 		done = append(done, k)
-		adj := f.gU.adj
 		for p := f.ucStart[k]; p < f.ucStart[k+1]; p++ {
 			b[f.ucRow[p]] -= f.ucVal[p] * v
 			if q := adj[p]; sc.mark[q] != gen {
