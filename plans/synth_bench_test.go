@@ -72,6 +72,37 @@ func benchSolve(b *testing.B, sizes []SyntheticSize, opts SolveOptions) {
 	}
 }
 
+// BenchmarkRelaxation solves the LP relaxation of the synthetic cases S, M
+// and L (seed 1) from scratch: the root LP of the search, the largest
+// single LP of a solve. The path is deterministic, so equal iteration
+// counts mean the same pivots and the times of two builds compare fairly.
+// Run: go test -run '^$' -bench Relaxation -benchtime 1x ./plans
+func BenchmarkRelaxation(b *testing.B) {
+	for _, sz := range SyntheticSizes {
+		b.Run(sz.Name, func(b *testing.B) {
+			c, err := loadSynthetic(b, sz.Sites, sz.Years, 1)
+			if err != nil {
+				b.Fatal(err)
+			}
+			m, err := BuildModel(c, BuildOptions{})
+			if err != nil {
+				b.Fatal(err)
+			}
+			b.ReportAllocs()
+			b.ResetTimer()
+			var r lp.Result
+			for i := 0; i < b.N; i++ {
+				if r, err = lp.Solve(context.Background(), m.LP, lp.Settings{}); err != nil || r.Status != lp.Optimal {
+					b.Fatalf("%s: %v %v", sz.Name, r.Status, err)
+				}
+			}
+			b.ReportMetric(float64(r.Iterations), "iters")
+			b.ReportMetric(float64(m.LP.NumRows()), "rows")
+			b.ReportMetric(float64(m.LP.NumCols()), "cols")
+		})
+	}
+}
+
 // BenchmarkSynthetic measures the generator itself on the L size.
 func BenchmarkSynthetic(b *testing.B) {
 	b.ReportAllocs()
