@@ -532,16 +532,14 @@ func (f *factor) ftran(b []float64) {
 			b[f.lidx[p]] -= f.lval[p] * br
 		}
 	}
-	f.ftranU(b)
+	f.ftranU(b, f.m)
 }
 
-// ftranU is ftran after its L pass: the U pass and the eta file. It leaves
-// f.work zero.
-func (f *factor) ftranU(b []float64) { f.ftranUBelow(b, f.m) }
-
-// ftranUBelow is ftranU when the steps from below on are done already:
-// their values are in f.work and their rows of b are unchanged.
-func (f *factor) ftranUBelow(b []float64, below int) {
+// ftranU is ftran after its L pass: the U pass and the eta file. The
+// steps from below on (none when below is m) are done already: their
+// values are in f.work and their rows of b are unchanged. It leaves f.work
+// zero.
+func (f *factor) ftranU(b []float64, below int) {
 	out := f.work
 	steps := f.ucSteps
 	if below < f.m {
@@ -620,16 +618,13 @@ func (f *factor) btranFromU(d []float64) {
 	for _, st := range f.uScale {
 		w[st.row] = d[st.col] * st.inv
 	}
-	f.btranFromL(d)
+	f.btranFromL(d, f.m)
 }
 
 // btranFromL is btran after the Uᵀ pass (its result in f.work): the Lᵀ
-// pass, then the result moves to d. It leaves f.work zero.
-func (f *factor) btranFromL(d []float64) { f.btranFromLBelow(d, f.m) }
-
-// btranFromLBelow is btranFromL when the steps from below on are done
-// already.
-func (f *factor) btranFromLBelow(d []float64, below int) {
+// pass, then the result moves to d. The steps from below on (none when
+// below is m) are done already. It leaves f.work zero.
+func (f *factor) btranFromL(d []float64, below int) {
 	w := f.work
 	steps := f.ltSteps
 	if below < f.m {

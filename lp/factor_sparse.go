@@ -205,7 +205,7 @@ func (f *factor) ftranSparse(b []float64, nz []int) []int {
 		if len(touched) > limit {
 			// Too many steps: finish densely below k.
 			sc.stack, sc.touched, sc.steps = heap[:0], touched[:0], done[:0]
-			f.ftranUBelow(b, k+1)
+			f.ftranU(b, k+1)
 			return nil
 		}
 		v := b[f.pivRow[k]]
@@ -315,7 +315,7 @@ func (f *factor) btranSparse(d []float64, nz []int) []int {
 		if len(touched) > limit {
 			// Too many steps: finish densely below k.
 			sc.stack, sc.touched = heap[:0], touched[:0]
-			f.btranFromLBelow(d, k+1)
+			f.btranFromL(d, k+1)
 			return nil
 		}
 		r := f.pivRow[k]
