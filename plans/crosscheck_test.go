@@ -173,6 +173,18 @@ func eachRelaxed(t *testing.T, cases []synthCase, f func(t *testing.T, c *Case, 
 // LP relaxation, failing the test on any error.
 func relaxSynthetic(t testing.TB, sites, years int, seed int64) (*Case, *Model, lp.Result) {
 	t.Helper()
+	c, m := modelSynthetic(t, sites, years, seed)
+	relax, err := lp.Solve(context.Background(), m.LP, lp.Settings{})
+	if err != nil || relax.Status != lp.Optimal {
+		t.Fatalf("%d sites, %d years, seed %d: relaxation %v %v", sites, years, seed, relax.Status, err)
+	}
+	return c, m, relax
+}
+
+// modelSynthetic builds the model of the synthetic case of that size and
+// seed.
+func modelSynthetic(t testing.TB, sites, years int, seed int64) (*Case, *Model) {
+	t.Helper()
 	c, err := loadSynthetic(t, sites, years, seed)
 	if err != nil {
 		t.Fatal(err)
@@ -181,9 +193,5 @@ func relaxSynthetic(t testing.TB, sites, years int, seed int64) (*Case, *Model, 
 	if err != nil {
 		t.Fatal(err)
 	}
-	relax, err := lp.Solve(context.Background(), m.LP, lp.Settings{})
-	if err != nil || relax.Status != lp.Optimal {
-		t.Fatalf("%d sites, %d years, seed %d: relaxation %v %v", sites, years, seed, relax.Status, err)
-	}
-	return c, m, relax
+	return c, m
 }

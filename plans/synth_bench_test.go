@@ -80,17 +80,11 @@ func benchSolve(b *testing.B, sizes []SyntheticSize, opts SolveOptions) {
 func BenchmarkRelaxation(b *testing.B) {
 	for _, sz := range SyntheticSizes {
 		b.Run(sz.Name, func(b *testing.B) {
-			c, err := loadSynthetic(b, sz.Sites, sz.Years, 1)
-			if err != nil {
-				b.Fatal(err)
-			}
-			m, err := BuildModel(c, BuildOptions{})
-			if err != nil {
-				b.Fatal(err)
-			}
+			_, m := modelSynthetic(b, sz.Sites, sz.Years, 1)
 			b.ReportAllocs()
 			b.ResetTimer()
 			var r lp.Result
+			var err error
 			for i := 0; i < b.N; i++ {
 				if r, err = lp.Solve(context.Background(), m.LP, lp.Settings{}); err != nil || r.Status != lp.Optimal {
 					b.Fatalf("%s: %v %v", sz.Name, r.Status, err)
