@@ -130,6 +130,13 @@ type Result struct {
 	ReducedCost []float64
 	Basis       Basis
 	Iterations  int
+	// ObjectiveIsBound, for a limit status (IterationLimit, TimeLimit,
+	// Cancelled), says that the solve stopped in the dual simplex on the
+	// true (unperturbed) costs with a dual feasible basis: Objective is
+	// then that basis' dual objective, a bound on the optimum (no feasible
+	// point is better, within the tolerances). Branch-and-bound keeps it
+	// when a limit stops a re-solve after cuts.
+	ObjectiveIsBound bool
 	// Ray is a certificate when one was found (it may be nil). For
 	// Infeasible it is y over the rows such that, for every x within the
 	// column bounds and every s within the row bounds, yᵀA·x − yᵀs < 0:

@@ -379,6 +379,7 @@ func (s *Solver) checkLimits(lim *limits) Status {
 // run is the solve driver.
 func (s *Solver) run(ctx context.Context) Status {
 	s.iterations = 0
+	s.limitBound = false
 	s.resizeScratch()
 	lim := &limits{ctx: ctx, maxIter: s.set.MaxIterations}
 	if s.set.TimeLimit > 0 {
@@ -423,6 +424,16 @@ func (s *Solver) run(ctx context.Context) Status {
 			}
 		}
 		st := s.dualSimplex(lim, s.set.HasCutoff)
+		switch st {
+		case IterationLimit, TimeLimit, Cancelled:
+			// The dual objective bounds the optimum only on the true
+			// costs: a perturbed solve gets them back if its basis stays
+			// dual feasible under them.
+			if s.perturbed {
+				s.unperturb(dtol)
+			}
+			s.limitBound = !s.perturbed && s.maxDualInfeasibility() <= dtol
+		}
 		if st != Optimal {
 			// An Infeasible status comes with a checked certificate that
 			// does not depend on the costs, perturbed or not.
@@ -517,6 +528,31 @@ func (s *Solver) perturb() {
 			s.work[j] += delta
 		}
 	}
+}
+
+// unperturb restores the true costs when the basis stays dual feasible
+// under them, up to flips of boxed columns to their other bound (which it
+// makes, recomputing the primal values), and reports whether it did;
+// otherwise the perturbed costs and their duals stay. Cost: one or two
+// recomputations of the duals.
+func (s *Solver) unperturb(tol float64) bool {
+	s.savedWork = append(s.savedWork[:0], s.work...)
+	copy(s.work, s.cost)
+	s.computeDuals()
+	for v, st := range s.stat {
+		if st == Basic || st == Fixed || !s.dualInfeasible(v, tol) {
+			continue
+		}
+		if (s.d[v] > 0 && !math.IsInf(s.lo[v], -1)) || (s.d[v] < 0 && !math.IsInf(s.up[v], 1)) {
+			continue // a flip mends it
+		}
+		copy(s.work, s.savedWork)
+		s.computeDuals()
+		return false
+	}
+	s.flipToDualFeasible(tol)
+	s.perturbed = false
+	return true
 }
 
 // perturbNonbasic perturbs the working costs of the nonbasic columns in the

@@ -69,11 +69,15 @@ type Solver struct {
 	d    []float64   // reduced costs (scaled, minimisation), 0 for basics
 	dse  []float64   // dual steepest-edge weights per position
 
-	fac      *factor
-	facValid bool
-	shape    int // incremented whenever rows are added or removed
+	fac       *factor
+	facValid  bool
+	savedWork []float64 // scratch of unperturb
+	shape     int       // incremented whenever rows are added or removed
 
 	iterations int // in the current solve
+	// limitBound: the solve stopped at a limit in the dual simplex on the
+	// true costs with a dual feasible basis (Result.ObjectiveIsBound).
+	limitBound bool
 	ray        []float64
 	warm       bool // the basis comes from an earlier solve: no perturbation
 	perturbed  bool // the working costs differ from the true costs
@@ -570,7 +574,7 @@ func (s *Solver) Solve(ctx context.Context) Result {
 
 // result assembles a Result in model units.
 func (s *Solver) result(st Status) Result {
-	r := Result{Status: st, Iterations: s.iterations, Basis: s.Basis()}
+	r := Result{Status: st, Iterations: s.iterations, Basis: s.Basis(), ObjectiveIsBound: s.limitBound}
 	if st == Unbounded || st == Infeasible {
 		r.Ray = s.ray
 	}

@@ -503,3 +503,120 @@ func ones(n int) []float64 {
 	}
 	return v
 }
+
+// assignmentLP returns the LP relaxation of an n×n assignment problem with
+// random integer costs in [10, 50): column i·n+j assigns row i to column
+// j, and each side is assigned exactly once.
+func assignmentLP(rng *rand.Rand, n int) *Model {
+	m := NewModel("assignment")
+	for k := 0; k < n*n; k++ {
+		m.AddCol("", float64(10+rng.Intn(40)), 0, Inf)
+	}
+	for side := 0; side < 2; side++ {
+		for a := 0; a < n; a++ {
+			idx := make([]int, n)
+			for b := range idx {
+				idx[b] = a*n + b
+				if side == 1 {
+					idx[b] = b*n + a
+				}
+			}
+			m.AddRow("", 1, 1, idx, ones(n))
+		}
+	}
+	return m
+}
+
+// TestLimitBound stops warm re-solves at iteration limits after a row that
+// cuts off the optimum was added, and checks the bound they report: the
+// dual simplex keeps a dual feasible basis, so the objective of every
+// stopped iterate lies between the old optimum and the new one (weak
+// duality: a dual feasible point bounds every feasible point), and it
+// never falls as the limit grows. The row forbids every cell of the old
+// assignment.
+func TestLimitBound(t *testing.T) {
+	for seed := int64(1); seed <= 5; seed++ {
+		rng := rand.New(rand.NewSource(seed))
+		const n = 30
+		m := assignmentLP(rng, n)
+		sv, err := NewSolver(m, Settings{})
+		if err != nil {
+			t.Fatal(err)
+		}
+		r0 := sv.Solve(context.Background())
+		solveOK(t, m, r0)
+		var cut Row
+		for j, x := range r0.X {
+			if x > 0.5 {
+				cut.Index = append(cut.Index, j)
+				cut.Value = append(cut.Value, 1)
+			}
+		}
+		cut.Lower, cut.Upper = -Inf, 0
+		cut.Name = "forbid"
+		child := m.Clone()
+		child.AddRow(cut.Name, cut.Lower, cut.Upper, cut.Index, cut.Value)
+		final, _ := Solve(context.Background(), child, Settings{})
+		if final.Status != Optimal || final.Objective <= r0.Objective+0.5 {
+			t.Fatalf("seed %d: the cut row leaves %v at %v (old optimum %v)", seed, final.Status, final.Objective, r0.Objective)
+		}
+		sv.AddRows([]Row{cut})
+		state := sv.SaveState()
+		prev, bounds := r0.Objective, 0
+		for limit := 1; ; limit++ {
+			sv.RestoreState(state)
+			sv.SetSettings(Settings{MaxIterations: limit})
+			r := sv.Solve(context.Background())
+			if r.Status == Optimal {
+				if math.Abs(r.Objective-final.Objective) > 1e-6 {
+					t.Fatalf("seed %d: warm optimum %v, cold %v", seed, r.Objective, final.Objective)
+				}
+				break
+			}
+			if r.Status != IterationLimit {
+				t.Fatalf("seed %d, limit %d: status %v", seed, limit, r.Status)
+			}
+			if !r.ObjectiveIsBound {
+				continue
+			}
+			bounds++
+			tol := 1e-6 * (1 + math.Abs(final.Objective))
+			if r.Objective > final.Objective+tol || r.Objective < prev-tol {
+				t.Fatalf("seed %d, limit %d: bound %v outside [%v, %v]", seed, limit, r.Objective, prev, final.Objective)
+			}
+			prev = r.Objective
+		}
+		if bounds == 0 {
+			t.Fatalf("seed %d: no stopped re-solve reported a bound", seed)
+		}
+		t.Logf("seed %d: %d stopped re-solves bounded the optimum, from %v to %v (optimum %v)", seed, bounds, r0.Objective, prev, final.Objective)
+		// A cold solve perturbs its costs. Stopped at a limit, it reports
+		// a bound only after getting the true costs back on a basis that
+		// stays dual feasible (unperturb); under perturbed costs its dual
+		// objective bounds another problem and must not be reported.
+		restored := 0
+		for limit := 1; limit < 200; limit += 7 {
+			cold, err := NewSolver(child, Settings{MaxIterations: limit})
+			if err != nil {
+				t.Fatal(err)
+			}
+			r := cold.Solve(context.Background())
+			if r.Status == Optimal {
+				break
+			}
+			switch {
+			case cold.perturbed && r.ObjectiveIsBound:
+				t.Fatalf("seed %d, cold solve stopped at %d iterations: objective %v reported as a bound under perturbed costs", seed, limit, r.Objective)
+			case r.ObjectiveIsBound:
+				restored++
+				if tol := 1e-6 * (1 + math.Abs(final.Objective)); r.Objective > final.Objective+tol {
+					t.Fatalf("seed %d, cold solve stopped at %d iterations: bound %v above the optimum %v", seed, limit, r.Objective, final.Objective)
+				}
+			}
+		}
+		if restored == 0 {
+			t.Fatalf("seed %d: no cold solve stopped at a limit reported a bound", seed)
+		}
+		t.Logf("seed %d: %d cold solves stopped at a limit got their true costs back and reported a bound", seed, restored)
+	}
+}
