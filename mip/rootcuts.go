@@ -122,6 +122,12 @@ func (s *search) rootCuts(r lp.Result) lp.Result {
 		// may stop with a false ObjectiveCutoff on the repaired basis.
 		r = s.lpSolve(inf, 0)
 		if r.Status != lp.Optimal {
+			if r.ObjectiveIsBound {
+				// A limit stopped the re-solve on a dual feasible basis:
+				// its objective still bounds the optimum with these cuts.
+				s.rootBound = math.Max(s.rootBound, p.roundBound(r.Objective))
+				s.curBound = s.rootBound
+			}
 			return r
 		}
 		// Every round's optimum is a valid bound: keep it, in case a
