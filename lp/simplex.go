@@ -530,12 +530,12 @@ func (s *Solver) perturb() {
 	}
 }
 
-// unperturb restores the true costs when the basis stays dual feasible
-// under them, up to flips of boxed columns to their other bound (which it
-// makes, recomputing the primal values), and reports whether it did;
-// otherwise the perturbed costs and their duals stay. Cost: one or two
+// unperturb restores the true costs (clearing s.perturbed) when the basis
+// stays dual feasible under them, up to flips of boxed columns to their
+// other bound (which it makes, recomputing the primal values); otherwise
+// the perturbed costs and their duals stay. Cost: one or two
 // recomputations of the duals.
-func (s *Solver) unperturb(tol float64) bool {
+func (s *Solver) unperturb(tol float64) {
 	s.savedWork = append(s.savedWork[:0], s.work...)
 	copy(s.work, s.cost)
 	s.computeDuals()
@@ -548,11 +548,10 @@ func (s *Solver) unperturb(tol float64) bool {
 		}
 		copy(s.work, s.savedWork)
 		s.computeDuals()
-		return false
+		return
 	}
 	s.flipToDualFeasible(tol)
 	s.perturbed = false
-	return true
 }
 
 // perturbNonbasic perturbs the working costs of the nonbasic columns in the
