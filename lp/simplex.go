@@ -316,23 +316,32 @@ func (s *Solver) flipToDualFeasible(tol float64) (stillInfeasible bool) {
 		if st == Basic || st == Fixed || !s.dualInfeasible(v, tol) {
 			continue
 		}
-		lo, up := s.lo[v], s.up[v]
-		switch {
-		case s.d[v] > 0 && !math.IsInf(lo, -1):
-			s.stat[v] = AtLower
-		case s.d[v] < 0 && !math.IsInf(up, 1):
-			s.stat[v] = AtUpper
-		default:
+		st, ok := s.flipStatus(v)
+		if !ok {
 			stillInfeasible = true
 			continue
 		}
-		s.x[v] = s.boundValue(v, s.stat[v])
+		s.stat[v] = st
+		s.x[v] = s.boundValue(v, st)
 		moved = true
 	}
 	if moved {
 		s.computePrimal()
 	}
 	return stillInfeasible
+}
+
+// flipStatus returns the bound status at which nonbasic v's reduced cost
+// has the right sign, and false when the bound it needs is infinite (no
+// flip mends v).
+func (s *Solver) flipStatus(v int) (VarStatus, bool) {
+	switch {
+	case s.d[v] > 0 && !math.IsInf(s.lo[v], -1):
+		return AtLower, true
+	case s.d[v] < 0 && !math.IsInf(s.up[v], 1):
+		return AtUpper, true
+	}
+	return 0, false
 }
 
 func (s *Solver) primalTol() float64 {
@@ -543,7 +552,7 @@ func (s *Solver) unperturb(tol float64) {
 		if st == Basic || st == Fixed || !s.dualInfeasible(v, tol) {
 			continue
 		}
-		if (s.d[v] > 0 && !math.IsInf(s.lo[v], -1)) || (s.d[v] < 0 && !math.IsInf(s.up[v], 1)) {
+		if _, ok := s.flipStatus(v); ok {
 			continue // a flip mends it
 		}
 		copy(s.work, s.savedWork)
