@@ -38,7 +38,10 @@
 // cost change the primal simplex continues from the old, primal feasible
 // basis. Infeasibility and unboundedness are reported only with a
 // certificate (Result.Ray) that the solver has checked. Long runs of degenerate pivots in an unperturbed solve
-// switch the perturbation on. The basis is factorised as sparse LU (singletons
+// switch the perturbation on. A solve stopped at a limit in the dual
+// simplex takes the true costs back when its basis stays dual feasible
+// under them, and then reports its objective as a bound on the optimum
+// (Result.ObjectiveIsBound). The basis is factorised as sparse LU (singletons
 // first, then Markowitz pivoting with threshold 0.1) with product-form
 // updates and a refactorisation every 100 updates, when the updates hold
 // more nonzeros than the factors, or when the pivot seen from the row and
