@@ -78,6 +78,7 @@ func (s *Solver) resizeScratch() {
 	s.rho = resize(s.rho, s.m)
 	s.tau = resize(s.tau, s.m)
 	s.alphaCol = resize(s.alphaCol, s.m)
+	s.primalRHS = resize(s.primalRHS, s.m)
 	s.alphaRow = resize(s.alphaRow, nm)
 	if cap(s.rowMark) >= nm {
 		s.rowMark = s.rowMark[:nm]
@@ -241,10 +242,8 @@ func (s *Solver) boundValue(v int, st VarStatus) float64 {
 // computePrimal sets the basic values from the nonbasic ones:
 // B·x_B = −N·x_N.
 func (s *Solver) computePrimal() {
-	rhs := s.alphaCol
-	for i := range rhs {
-		rhs[i] = 0
-	}
+	rhs := s.primalRHS
+	clear(rhs)
 	for v, st := range s.stat {
 		if st == Basic {
 			continue
@@ -753,6 +752,11 @@ func (s *Solver) dualSimplex(lim *limits, useCutoff bool) Status {
 	pinf := s.pinf
 	dirty := true
 	degenerate := 0
+	// The positions where rho, alpha and tau may be nonzero after their
+	// last solves (nil: anywhere). Each iteration zeroes only those: three
+	// dense clears of m values cost more than the sparse solves on large
+	// models.
+	var rhoWas, alphaWas, tauWas []int
 	for {
 		if degenerate > stallIterations && !s.perturbed && !s.set.NoPerturbation {
 			// A long run of degenerate pivots: perturb the costs of the
@@ -816,12 +820,11 @@ func (s *Solver) dualSimplex(lim *limits, useCutoff bool) Status {
 		}
 		delta := s.x[leave] - target
 
-		for i := range rho {
-			rho[i] = 0
-		}
+		zeroAt(rho, rhoWas)
 		rho[r] = 1
 		s.unitNZ[0] = r
 		rhoNZ := s.keepNZ(&s.rhoNZ, s.fac.btranSparse(rho, s.unitNZ[:]))
+		rhoWas = rhoNZ
 		s.pivotRowSparse(rho, rhoNZ)
 		// Bound-flipping ratio test with Harris tolerances.
 		usedTol := pivotTol
@@ -845,14 +848,13 @@ func (s *Solver) dualSimplex(lim *limits, useCutoff bool) Status {
 			return st
 		}
 		// Entering column.
-		for i := range alpha {
-			alpha[i] = 0
-		}
+		zeroAt(alpha, alphaWas)
 		idx, val := s.column(q)
 		for k, i := range idx {
 			alpha[i] = val[k]
 		}
 		alphaNZ := s.keepNZ(&s.alphaNZ, s.fac.ftranSparse(alpha, idx))
+		alphaWas = alphaNZ
 		arq := alpha[r]
 		if math.Abs(arq-row[q]) > pivotMismatchTol*(1+math.Abs(arq)) && s.fac.numUpdates() > 0 {
 			if !s.refactor() {
@@ -873,15 +875,8 @@ func (s *Solver) dualSimplex(lim *limits, useCutoff bool) Status {
 			return NumericalTrouble
 		}
 		if len(flips) > 0 {
-			flipNZ, dObj := s.applyFlips(flips)
-			if flipNZ == nil {
-				dirty = true
-			} else {
-				for _, p := range flipNZ {
-					s.setInfeasibility(p, ptol)
-				}
-				obj += dObj
-			}
+			obj += s.applyFlips(flips, ptol)
+			tauWas = nil // applyFlips works in tau
 			delta = s.x[leave] - target
 		}
 		// Dual step.
@@ -934,7 +929,7 @@ func (s *Solver) dualSimplex(lim *limits, useCutoff bool) Status {
 		// Dual steepest-edge weights: w_p = ‖e_pᵀB⁻¹‖².
 		wr := 0.0
 		if rhoNZ != nil {
-			clear(tau)
+			zeroAt(tau, tauWas)
 			for _, i := range rhoNZ {
 				wr += rho[i] * rho[i]
 				tau[i] = rho[i]
@@ -945,7 +940,11 @@ func (s *Solver) dualSimplex(lim *limits, useCutoff bool) Status {
 			}
 			copy(tau, rho)
 		}
-		s.fac.ftranSparse(tau, rhoNZ)
+		tauWas = nil
+		if nz := s.fac.ftranSparse(tau, rhoNZ); nz != nil {
+			s.tauNZ = append(s.tauNZ[:0], nz...)
+			tauWas = s.tauNZ
+		}
 		updateDSE := func(p int) {
 			if p == r || alpha[p] == 0 {
 				return
@@ -1012,6 +1011,18 @@ func (s *Solver) setInfeasibility(p int, tol float64) {
 		s.infAt[last] = k
 		s.infList = s.infList[:len(s.infList)-1]
 		s.infAt[p] = -1
+	}
+}
+
+// zeroAt sets v to zero at the listed positions, or everywhere when the
+// list is nil.
+func zeroAt(v []float64, nz []int) {
+	if nz == nil {
+		clear(v)
+		return
+	}
+	for _, i := range nz {
+		v[i] = 0
 	}
 }
 
@@ -1155,11 +1166,14 @@ func (s *Solver) farkasRay(rho []float64, sgn float64) []float64 {
 	return y
 }
 
-// applyFlips moves the listed nonbasic variables to their other bound and
-// updates the basic values: Δx_B = −B⁻¹·Σ a_j·Δx_j. It returns the basis
-// positions whose value may have changed (nil: any) and the change of the
-// working objective.
-func (s *Solver) applyFlips(flips []int) (nz []int, dObj float64) {
+// applyFlips moves the listed nonbasic variables to their other bound,
+// updates the basic values, Δx_B = −B⁻¹·Σ a_j·Δx_j, and the primal
+// infeasibilities (tolerance tol) of the positions that moved. It returns
+// the change of the working objective. A dense solve (many flips) updates
+// only its nonzero positions too: recomputing every infeasibility after
+// each one cost the 50-site relaxation three passes over the rows in most
+// of its flipping iterations.
+func (s *Solver) applyFlips(flips []int, tol float64) (dObj float64) {
 	col := s.tau
 	clear(col)
 	rows := s.flipRows[:0]
@@ -1188,20 +1202,25 @@ func (s *Solver) applyFlips(flips []int) (nz []int, dObj float64) {
 		mark[i] = false
 	}
 	s.flipRows = rows
-	nz = s.fac.ftranSparse(col, rows)
-	if nz == nil {
-		for p, v := range s.head {
-			s.x[v] -= col[p]
-			dObj -= s.work[v] * col[p]
-		}
-		return nil, dObj
-	}
-	for _, p := range nz {
+	move := func(p int) {
 		v := s.head[p]
 		s.x[v] -= col[p]
 		dObj -= s.work[v] * col[p]
+		s.setInfeasibility(p, tol)
 	}
-	return s.keepNZ(&s.flipNZ, nz), dObj
+	nz := s.fac.ftranSparse(col, rows)
+	if nz == nil {
+		for p, c := range col {
+			if c != 0 {
+				move(p)
+			}
+		}
+		return dObj
+	}
+	for _, p := range nz {
+		move(p)
+	}
+	return dObj
 }
 
 // nzMarkFor returns s.nzMark sized to the rows, all false.

@@ -84,6 +84,8 @@ type Solver struct {
 
 	// scratch
 	rho, alphaRow, alphaCol, tau []float64
+	primalRHS                    []float64 // scratch of computePrimal
+	tauNZ                        []int     // positions of tau that may be nonzero after the DSE solve
 	devex                        []float64 // primal pricing weights
 	rowNZ                        []int     // variables with a nonzero in alphaRow
 	rhoNZ, alphaNZ               []int     // rows of rho, positions of alphaCol that may be nonzero (sorted)
@@ -92,7 +94,7 @@ type Solver struct {
 	pinf                         []float64 // primal infeasibility per basis position (dual simplex)
 	infList                      []int     // positions p with pinf[p] > 0, in no particular order
 	infAt                        []int     // index of p in infList, or −1
-	flipRows, flipNZ             []int     // scratch for applyFlips
+	flipRows                     []int     // scratch for applyFlips
 	lu                           luScratch // work space of the factorisations
 	rowMark                      []bool
 	rowDirty                     bool // alphaRow must be cleared in full
