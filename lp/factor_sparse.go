@@ -75,36 +75,41 @@ type stepGraph struct {
 // the four step graphs of the sparse solves (the first passes walk gL and
 // gUt; the second passes, driven by the values, read the steps of their
 // entries from gU and gLt), and the scratch space.
-// Called by transpose; nothing for bases under hyperMinRows rows. Cost
-// O(m + nonzeros of L and U).
-func (f *factor) initSparse() {
+// Called by transpose, with the factor old whose arrays it may take over;
+// nothing for bases under hyperMinRows rows. Cost O(m + nonzeros of L and
+// U).
+func (f *factor) initSparse(old *factor) {
 	m := f.m
 	if m < hyperMinRows {
 		return
 	}
-	f.stepOfRow = make([]int, m)
-	f.stepOfCol = make([]int, m)
+	f.stepOfRow = reuse(old.stepOfRow, m)[:m]
+	f.stepOfCol = reuse(old.stepOfCol, m)[:m]
 	for k := range f.pivRow {
 		f.stepOfRow[f.pivRow[k]] = k
 		f.stepOfCol[f.pivCol[k]] = k
 	}
-	mapped := func(idx, of []int) []int {
-		out := make([]int, len(idx))
+	mapped := func(idx, of, into []int) []int {
+		out := reuse(into, len(idx))[:len(idx)]
 		for p, i := range idx {
 			out[p] = of[i]
 		}
 		return out
 	}
 	// ftran, L pass: step k updates the rows of its L column.
-	f.gL = stepGraph{ptr: f.lstart, adj: mapped(f.lidx, f.stepOfRow)}
+	f.gL = stepGraph{ptr: f.lstart, adj: mapped(f.lidx, f.stepOfRow, old.gL.adj)}
 	// ftran, U pass: step k updates the rows of earlier steps in its U column.
-	f.gU = stepGraph{ptr: f.ucStart, adj: mapped(f.ucRow, f.stepOfRow)}
+	f.gU = stepGraph{ptr: f.ucStart, adj: mapped(f.ucRow, f.stepOfRow, old.gU.adj)}
 	// btran, Uᵀ pass: step k updates the positions of U row k.
-	f.gUt = stepGraph{ptr: f.ustart, adj: mapped(f.uidx, f.stepOfCol)}
+	f.gUt = stepGraph{ptr: f.ustart, adj: mapped(f.uidx, f.stepOfCol, old.gUt.adj)}
 	// btran, Lᵀ pass: row pivRow[k] updates the pivot rows of the steps
 	// whose multipliers touch it.
-	f.gLt = stepGraph{ptr: f.ltStart, adj: mapped(f.ltRow, f.stepOfRow), byRow: true}
-	f.sc = &sparseScratch{mark: make([]uint32, m)}
+	f.gLt = stepGraph{ptr: f.ltStart, adj: mapped(f.ltRow, f.stepOfRow, old.gLt.adj), byRow: true}
+	if old.sc != nil && len(old.sc.mark) == m {
+		f.sc = old.sc // its marks are older than its generation
+	} else {
+		f.sc = &sparseScratch{mark: make([]uint32, m)}
+	}
 }
 
 // reach lists in f.sc.steps the steps reachable in g from the start steps,

@@ -87,6 +87,9 @@ func (s *Solver) resizeScratch() {
 	}
 	s.rowDirty = true
 	s.work = resize(s.work, nm)
+	for i := len(s.rowIndex); i < s.m; i++ {
+		s.rowIndex = append(s.rowIndex, i)
+	}
 }
 
 // column returns variable v's column of [A' | −I].
@@ -95,7 +98,8 @@ func (s *Solver) column(v int) ([]int, []float64) {
 		a, b := s.csc.Start[v], s.csc.Start[v+1]
 		return s.csc.Index[a:b], s.csc.Value[a:b]
 	}
-	return []int{v - s.n}, minusOne
+	i := v - s.n
+	return s.rowIndex[i : i+1 : i+1], minusOne
 }
 
 var minusOne = []float64{-1}
@@ -105,6 +109,10 @@ var minusOne = []float64{-1}
 func (s *Solver) ensureFactor() bool {
 	if s.facValid {
 		return true
+	}
+	if s.fac != nil && !s.fac.shared {
+		s.lu.spare = s.fac // about to be replaced: its arrays serve the new factor
+		s.fac = nil
 	}
 	for attempt := 0; attempt < 4; attempt++ {
 		f, bad, free := factorizeWith(&s.lu, s.m, func(p int) ([]int, []float64) { return s.column(s.head[p]) })

@@ -95,6 +95,7 @@ type Solver struct {
 	infList                      []int     // positions p with pinf[p] > 0, in no particular order
 	infAt                        []int     // index of p in infList, or −1
 	flipRows                     []int     // scratch for applyFlips
+	rowIndex                     []int     // rowIndex[i] = i: the index lists of the slack columns
 	lu                           luScratch // work space of the factorisations
 	rowMark                      []bool
 	rowDirty                     bool // alphaRow must be cleared in full
@@ -515,6 +516,7 @@ func (s *Solver) SaveState() *State {
 		shape:    s.shape,
 	}
 	if s.facValid {
+		s.fac.shared = true // the State refers to its arrays: never recycle them
 		f := *s.fac
 		st.fac = &f
 	}

@@ -121,6 +121,59 @@ func TestSaveRestoreState(t *testing.T) {
 	}
 }
 
+// TestRestoreAfterRefactors saves a state, then solves branches large
+// enough that the solver factorises again (a new factorisation takes over
+// the arrays of the one it replaces, unless a State refers to them), and
+// restores after each: the original optimum must come back with no pivots.
+// It fails when the saved factorisation is recycled (tried).
+func TestRestoreAfterRefactors(t *testing.T) {
+	m := readSample(t, "brandy")
+	sv, err := NewSolver(m, Settings{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	r0 := sv.Solve(context.Background())
+	solveOK(t, m, r0)
+	var inner []int
+	for j, x := range r0.X {
+		if x-m.ColLower[j] > 1e-3 && m.ColUpper[j]-x > 1e-3 {
+			inner = append(inner, j)
+		}
+	}
+	st := sv.SaveState()
+	branchIters := 0
+	for k := 0; k < 4; k++ {
+		// Move a different half of the interior columns to a
+		// bound each time: far from the saved basis.
+		child := m.Clone()
+		for q, j := range inner {
+			if q%4 == k || q%4 == (k+1)%4 {
+				lo := m.ColLower[j]
+				if math.IsInf(lo, -1) {
+					lo = math.Floor(r0.X[j])
+				}
+				child.ColLower[j], child.ColUpper[j] = lo, lo
+				sv.SetColBounds(j, lo, lo)
+			}
+		}
+		r := sv.Solve(context.Background())
+		branchIters += r.Iterations
+		if r.Status == Optimal {
+			solveOK(t, child, r)
+		}
+		sv.RestoreState(st)
+		back := sv.Solve(context.Background())
+		solveOK(t, m, back)
+		if back.Iterations != 0 || !close(back.Objective, r0.Objective, 1e-9) {
+			t.Fatalf("branch %d: after restore %d iterations, objective %v; want 0 and %v", k, back.Iterations, back.Objective, r0.Objective)
+		}
+	}
+	t.Logf("%d iterations in the branches", branchIters)
+	if branchIters < 2*freshUpdates {
+		t.Fatalf("the branches took %d iterations in all: too few to be sure a factorisation was replaced", branchIters)
+	}
+}
+
 // TestAddRemoveRows adds a cut that removes the optimum, checks the warm
 // re-solve against a cold solve of the extended model, then removes the cut.
 func TestAddRemoveRows(t *testing.T) {
