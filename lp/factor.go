@@ -465,12 +465,12 @@ func factorizeWith(sc *luScratch, m int, col columnFunc) (f *factor, badCols, fr
 }
 
 // reuse returns v emptied when its capacity holds n elements, else a new
-// empty slice of capacity n.
+// empty slice with room for a quarter more (as resize).
 func reuse[T any](v []T, n int) []T {
 	if cap(v) >= n {
 		return v[:0]
 	}
-	return make([]T, 0, n)
+	return make([]T, 0, n+n/4)
 }
 
 // zeroed returns v (or a new slice, when its capacity is short) with

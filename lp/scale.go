@@ -139,12 +139,14 @@ func scaleSparse(a *Sparse, majorScale, minorScale []float64) *Sparse {
 	return out
 }
 
-// resize returns v with length n, keeping its first elements.
+// resize returns v with length n, keeping its first elements. A new array
+// has a quarter more room: the work spaces of successive factorisations
+// grow by small steps as the basis fills.
 func resize[T any](v []T, n int) []T {
 	if cap(v) >= n {
 		return v[:n]
 	}
-	w := make([]T, n)
+	w := make([]T, n, n+n/4)
 	copy(w, v)
 	return w
 }
