@@ -117,10 +117,20 @@ func (s *search) rootCuts(r lp.Result) lp.Result {
 			s.rows = append(s.rows, lpRowInfo{idx: c.idx, val: c.val, lower: c.lower, upper: c.upper, intSlack: c.kind == "cover"})
 			s.nCuts++
 		}
+		before := s.lps.NumRows()
 		s.lps.AddRows(rows)
 		// No cutoff right after a change of rows: lp (version of 2026-12)
 		// may stop with a false ObjectiveCutoff on the repaired basis.
 		r = s.lpSolve(inf, 0)
+		if r.Status == lp.NumericalTrouble {
+			// Cuts are optional: when this round's rows leave the LP
+			// without a trustworthy answer (dense Gomory rows piled up
+			// over many rounds can), take them out of the LP and the
+			// pool, stop cutting, and go on from the last round's LP.
+			s.dropRound(before)
+			r = s.lpSolve(inf, 0)
+			break
+		}
 		if r.Status != lp.Optimal {
 			if r.ObjectiveIsBound {
 				// A limit stopped the re-solve on a dual feasible basis:
@@ -195,6 +205,32 @@ func (s *search) ageCuts(final bool) {
 	}
 	// Removing rows costs a rebuild of the LP: wait until enough are old.
 	if len(drop) == 0 || (!final && len(drop) < minCutsToAgeOut && 10*len(drop) < s.lps.NumRows()) {
+		return
+	}
+	s.removeCutRows(drop)
+}
+
+// dropRound removes the cuts in LP rows from first on (the last round's)
+// from the LP and from the pool.
+func (s *search) dropRound(first int) {
+	var drop []int
+	kept := s.pool[:0]
+	for _, c := range s.pool {
+		if c.lpRow >= first {
+			drop = append(drop, c.lpRow)
+			continue
+		}
+		kept = append(kept, c)
+	}
+	clear(s.pool[len(kept):])
+	s.pool = kept
+	s.removeCutRows(drop)
+}
+
+// removeCutRows removes the listed LP rows, which hold cuts, and renumbers
+// the cuts' rows and s.rows to match.
+func (s *search) removeCutRows(drop []int) {
+	if len(drop) == 0 {
 		return
 	}
 	sort.Ints(drop)
