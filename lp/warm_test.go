@@ -88,13 +88,7 @@ func TestWarmStartBoundChange(t *testing.T) {
 // ways, restore; after restoring, the original optimum comes back with no
 // pivots.
 func TestSaveRestoreState(t *testing.T) {
-	m := readSample(t, "brandy")
-	sv, err := NewSolver(m, Settings{})
-	if err != nil {
-		t.Fatal(err)
-	}
-	r0 := sv.Solve(context.Background())
-	solveOK(t, m, r0)
+	m, sv, r0 := solvedSample(t, "brandy")
 	j := interiorColumn(m, r0)
 	st := sv.SaveState()
 	for _, up := range []bool{false, true} {
@@ -114,6 +108,27 @@ func TestSaveRestoreState(t *testing.T) {
 		}
 		sv.RestoreState(st)
 	}
+	wantRestored(t, m, sv, r0)
+}
+
+// solvedSample reads the sample LP name and solves it from scratch with a
+// new solver, which it returns with the model and the (checked) optimum.
+func solvedSample(t *testing.T, name string) (*Model, *Solver, Result) {
+	t.Helper()
+	m := readSample(t, name)
+	sv, err := NewSolver(m, Settings{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	r0 := sv.Solve(context.Background())
+	solveOK(t, m, r0)
+	return m, sv, r0
+}
+
+// wantRestored solves again after a RestoreState: the saved optimum r0 of
+// m must come back with no pivots.
+func wantRestored(t *testing.T, m *Model, sv *Solver, r0 Result) {
+	t.Helper()
 	r := sv.Solve(context.Background())
 	solveOK(t, m, r)
 	if r.Iterations != 0 || !close(r.Objective, r0.Objective, 1e-9) {
@@ -127,13 +142,7 @@ func TestSaveRestoreState(t *testing.T) {
 // restores after each: the original optimum must come back with no pivots.
 // It fails when the saved factorisation is recycled (tried).
 func TestRestoreAfterRefactors(t *testing.T) {
-	m := readSample(t, "brandy")
-	sv, err := NewSolver(m, Settings{})
-	if err != nil {
-		t.Fatal(err)
-	}
-	r0 := sv.Solve(context.Background())
-	solveOK(t, m, r0)
+	m, sv, r0 := solvedSample(t, "brandy")
 	var inner []int
 	for j, x := range r0.X {
 		if x-m.ColLower[j] > 1e-3 && m.ColUpper[j]-x > 1e-3 {
@@ -162,11 +171,7 @@ func TestRestoreAfterRefactors(t *testing.T) {
 			solveOK(t, child, r)
 		}
 		sv.RestoreState(st)
-		back := sv.Solve(context.Background())
-		solveOK(t, m, back)
-		if back.Iterations != 0 || !close(back.Objective, r0.Objective, 1e-9) {
-			t.Fatalf("branch %d: after restore %d iterations, objective %v; want 0 and %v", k, back.Iterations, back.Objective, r0.Objective)
-		}
+		wantRestored(t, m, sv, r0)
 	}
 	t.Logf("%d iterations in the branches", branchIters)
 	if branchIters < 2*freshUpdates {
