@@ -36,13 +36,7 @@ func solveOK(t *testing.T, m *Model, r Result) {
 func TestWarmStartBoundChange(t *testing.T) {
 	for _, name := range []string{"afiro", "brandy", "e226", "finnis"} {
 		t.Run(name, func(t *testing.T) {
-			m := readSample(t, name)
-			sv, err := NewSolver(m, Settings{})
-			if err != nil {
-				t.Fatal(err)
-			}
-			r0 := sv.Solve(context.Background())
-			solveOK(t, m, r0)
+			m, sv, r0 := solvedSample(t, name)
 			j := interiorColumn(m, r0)
 			if j < 0 {
 				t.Fatal("no interior column")
@@ -184,13 +178,7 @@ func TestRestoreAfterRefactors(t *testing.T) {
 func TestAddRemoveRows(t *testing.T) {
 	for _, name := range []string{"afiro", "e226"} {
 		t.Run(name, func(t *testing.T) {
-			m := readSample(t, name)
-			sv, err := NewSolver(m, Settings{})
-			if err != nil {
-				t.Fatal(err)
-			}
-			r0 := sv.Solve(context.Background())
-			solveOK(t, m, r0)
+			m, sv, r0 := solvedSample(t, name)
 			// Cut: the objective's own row, c·x ≥ optimum + 1% (minimisation).
 			var idx []int
 			var val []float64
@@ -345,13 +333,7 @@ func TestTableauRow(t *testing.T) {
 // TestObjectiveCutoff stops a warm re-solve whose optimum is worse than the
 // cutoff.
 func TestObjectiveCutoff(t *testing.T) {
-	m := readSample(t, "afiro")
-	sv, err := NewSolver(m, Settings{})
-	if err != nil {
-		t.Fatal(err)
-	}
-	r0 := sv.Solve(context.Background())
-	solveOK(t, m, r0)
+	m, sv, r0 := solvedSample(t, "afiro")
 	j := interiorColumn(m, r0)
 	child := m.Clone()
 	child.ColUpper[j] = m.ColLower[j]
