@@ -133,6 +133,8 @@ type luScratch struct {
 	rowVal                           [][]float64
 	rowCount, idxStore               []int
 	valStore                         []float64
+	colStart, colStore               []int // the basis by columns, read once
+	colVal                           []float64
 	rowDone, colDone, exact          []bool
 	head, next, prev, inBucket, mark []int
 	rowSingles, stepOf               []int
@@ -158,22 +160,30 @@ func factorizeWith(sc *luScratch, m int, col columnFunc) (f *factor, badCols, fr
 	rowVal := resize(sc.rowVal, m)
 	colRows := resize(sc.colRows, m)
 	sc.rowIdx, sc.rowVal, sc.colRows = rowIdx, rowVal, colRows
-	// Carve the rows and columns out of shared arrays, each with exactly
-	// its length as capacity: only rows and columns that fill in grow.
+	// Read each basis column once, into one array by columns, counting
+	// the entries of each row; then carve the rows out of shared arrays,
+	// each with exactly its length as capacity (only rows and columns that
+	// fill in grow), and fill them from the column array in order.
 	rowCount := resize(sc.rowCount, m)
 	clear(rowCount)
 	sc.rowCount = rowCount
-	nnz := 0
+	colStart := resize(sc.colStart, m+1)
+	colStore, colVal := sc.colStore[:0], sc.colVal[:0]
 	for p := 0; p < m; p++ {
+		colStart[p] = len(colStore)
 		idx, val := col(p)
 		for k, i := range idx {
-			if val[k] != 0 {
+			if v := val[k]; v != 0 {
 				rowCount[i]++
-				nnz++
+				colStore = append(colStore, i)
+				colVal = append(colVal, v)
 			}
 		}
 	}
-	idxStore := resize(sc.idxStore, 2*nnz)
+	nnz := len(colStore)
+	colStart[m] = nnz
+	sc.colStart, sc.colStore, sc.colVal = colStart, colStore, colVal
+	idxStore := resize(sc.idxStore, nnz)
 	valStore := resize(sc.valStore, nnz)
 	sc.idxStore, sc.valStore = idxStore, valStore
 	at := 0
@@ -182,21 +192,14 @@ func factorizeWith(sc *luScratch, m int, col columnFunc) (f *factor, badCols, fr
 		rowVal[i] = valStore[at : at : at+c]
 		at += c
 	}
-	colStore := idxStore[nnz:]
-	at = 0
 	for p := 0; p < m; p++ {
-		idx, val := col(p)
-		start := at
-		for k, i := range idx {
-			if val[k] == 0 {
-				continue
-			}
+		a, b := colStart[p], colStart[p+1]
+		for q := a; q < b; q++ {
+			i := colStore[q]
 			rowIdx[i] = append(rowIdx[i], p)
-			rowVal[i] = append(rowVal[i], val[k])
-			colStore[at] = i
-			at++
+			rowVal[i] = append(rowVal[i], colVal[q])
 		}
-		colRows[p] = colStore[start:at:at]
+		colRows[p] = colStore[a:b:b]
 	}
 	rowDone := resize(sc.rowDone, m)
 	colDone := resize(sc.colDone, m)
