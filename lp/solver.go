@@ -84,7 +84,7 @@ type Solver struct {
 
 	// scratch
 	rho, alphaRow, alphaCol, tau []float64
-	primalRHS                    []float64 // scratch of computePrimal
+	primalRHS                    []float64 // scratch of computePrimal (not alphaCol: the dual simplex tracks alphaCol's nonzeros across refactorisations)
 	tauNZ                        []int     // positions of tau that may be nonzero after the DSE solve
 	devex                        []float64 // primal pricing weights
 	rowNZ                        []int     // variables with a nonzero in alphaRow

@@ -110,13 +110,21 @@ func TestSaveRestoreState(t *testing.T) {
 func solvedSample(t *testing.T, name string) (*Model, *Solver, Result) {
 	t.Helper()
 	m := readSample(t, name)
+	sv, r0 := solved(t, m)
+	return m, sv, r0
+}
+
+// solved solves m from scratch with a new solver, which it returns with
+// the (checked) optimum.
+func solved(t *testing.T, m *Model) (*Solver, Result) {
+	t.Helper()
 	sv, err := NewSolver(m, Settings{})
 	if err != nil {
 		t.Fatal(err)
 	}
 	r0 := sv.Solve(context.Background())
 	solveOK(t, m, r0)
-	return m, sv, r0
+	return sv, r0
 }
 
 // wantRestored solves again after a RestoreState: the saved optimum r0 of
@@ -248,12 +256,7 @@ func without(n, drop int) []int {
 
 // TestSetObjective changes the costs and re-solves from the old basis.
 func TestSetObjective(t *testing.T) {
-	m := readSample(t, "brandy")
-	sv, err := NewSolver(m, Settings{})
-	if err != nil {
-		t.Fatal(err)
-	}
-	solveOK(t, m, sv.Solve(context.Background()))
+	m, sv, _ := solvedSample(t, "brandy")
 	c := append([]float64(nil), m.Obj...)
 	for j := range c {
 		c[j] *= 1 + 0.1*math.Sin(float64(j))
@@ -276,13 +279,7 @@ func TestSetObjective(t *testing.T) {
 // its basic variable and 0 at the other basic variables, and the point
 // found satisfies it.
 func TestTableauRow(t *testing.T) {
-	m := readSample(t, "afiro")
-	sv, err := NewSolver(m, Settings{})
-	if err != nil {
-		t.Fatal(err)
-	}
-	r := sv.Solve(context.Background())
-	solveOK(t, m, r)
+	m, sv, r := solvedSample(t, "afiro")
 	n, rows := m.NumCols(), m.NumRows()
 	z := append(append([]float64(nil), r.X...), r.RowActivity...)
 	out := make([]float64, n+rows)
@@ -374,13 +371,7 @@ func TestLimits(t *testing.T) {
 func TestSlackBasisWarm(t *testing.T) {
 	for _, tc := range netlibCases {
 		t.Run(tc.name, func(t *testing.T) {
-			m := readSample(t, tc.name)
-			sv, err := NewSolver(m, Settings{})
-			if err != nil {
-				t.Fatal(err)
-			}
-			first := sv.Solve(context.Background())
-			solveOK(t, m, first)
+			m, sv, first := solvedSample(t, tc.name)
 			b := sv.Basis()
 			for j := range b.Cols {
 				b.Cols[j] = AtLower
@@ -496,12 +487,7 @@ func TestSingularBasis(t *testing.T) {
 func TestCostChanges(t *testing.T) {
 	for _, name := range []string{"brandy", "e226", "finnis", "p0548"} {
 		t.Run(name, func(t *testing.T) {
-			m := readSample(t, name)
-			sv, err := NewSolver(m, Settings{})
-			if err != nil {
-				t.Fatal(err)
-			}
-			solveOK(t, m, sv.Solve(context.Background()))
+			m, sv, _ := solvedSample(t, name)
 			rng := rand.New(rand.NewSource(1))
 			total := 0
 			for k := 0; k < 5; k++ {
@@ -579,12 +565,7 @@ func TestLimitBound(t *testing.T) {
 		rng := rand.New(rand.NewSource(seed))
 		const n = 30
 		m := assignmentLP(rng, n)
-		sv, err := NewSolver(m, Settings{})
-		if err != nil {
-			t.Fatal(err)
-		}
-		r0 := sv.Solve(context.Background())
-		solveOK(t, m, r0)
+		sv, r0 := solved(t, m)
 		var cut Row
 		for j, x := range r0.X {
 			if x > 0.5 {
