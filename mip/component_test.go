@@ -285,3 +285,66 @@ func TestGomoryCutsValid(t *testing.T) {
 		t.Errorf("only %d cuts derived; the test exercises too little", cuts)
 	}
 }
+
+// TestGomoryDensityCap: on one knapsack row the Gomory cut of the
+// fractional item's tableau row reaches every item (the row's slack, an
+// integral activity, expands into all of them), so its length is the
+// item count. Below maxGomoryNonzeros items the cut is derived; above it
+// the cut is dropped.
+func TestGomoryDensityCap(t *testing.T) {
+	for _, n := range []int{maxGomoryNonzeros / 2, 2 * maxGomoryNonzeros} {
+		m := lp.NewModel("knapsack")
+		m.Sense = lp.Maximize
+		cols := make([]int, n)
+		vals := make([]float64, n)
+		sum := 0.0
+		for j := 0; j < n; j++ {
+			w := float64(2 + j%7)
+			cols[j] = m.AddIntCol(fmt.Sprintf("x%d", j), w+float64(j%5), 0, 1)
+			vals[j] = w
+			sum += w
+		}
+		m.AddRow("cap", -lp.Inf, math.Floor(sum/2)+0.5, cols, vals)
+		p, ok := newProblem(m, DefaultIntTol)
+		if !ok {
+			t.Fatalf("%d items: newProblem refused the model", n)
+		}
+		sv, err := lp.NewSolver(p.work, lp.Settings{})
+		if err != nil {
+			t.Fatal(err)
+		}
+		r := sv.Solve(nil)
+		if r.Status != lp.Optimal {
+			t.Fatalf("%d items: LP status %v", n, r.Status)
+		}
+		s := &search{p: p}
+		s.initRows()
+		basis := sv.Basis()
+		buf := make([]float64, p.n+sv.NumRows())
+		derived, longest := 0, 0
+		for pos, v := range sv.BasicVars() {
+			if v >= p.n || !p.isInt[v] {
+				continue
+			}
+			f := r.X[v] - math.Floor(r.X[v])
+			if f < minGomoryFrac || f > 1-minGomoryFrac {
+				continue
+			}
+			clear(buf)
+			basic, value := sv.TableauRow(pos, buf)
+			if c := gomoryFromRow(p, buf, basic, value, basis, p.lower, p.upper, s.rows); c != nil {
+				derived++
+				longest = max(longest, len(c.idx))
+			}
+		}
+		if n < maxGomoryNonzeros && derived == 0 {
+			t.Errorf("%d items: no Gomory cut derived from the fractional item's row", n)
+		}
+		if longest > maxGomoryNonzeros {
+			t.Errorf("%d items: a Gomory cut of %d nonzeros passed the cap of %d", n, longest, maxGomoryNonzeros)
+		}
+		if n > maxGomoryNonzeros && derived != 0 {
+			t.Errorf("%d items: %d Gomory cuts derived; each reaches every item, so the cap should drop them", n, derived)
+		}
+	}
+}
