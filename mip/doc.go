@@ -26,7 +26,8 @@
 //     against the caller's untouched model.
 //   - Root: activity-based bound propagation, the LP relaxation, rounds of
 //     sequentially lifted knapsack cover cuts on the rows and Gomory
-//     mixed-integer cuts on tableau rows, plus the caller's own cuts
+//     mixed-integer cuts on tableau rows (at most maxGomoryNonzeros
+//     nonzeros: denser rows slow every later iteration), plus the caller's own cuts
 //     (Settings.Separate), with a small pool that ages slack cuts out of
 //     the LP; reduced-cost fixing of the global domain whenever
 //     the incumbent improves; rounding and diving heuristics (a rounding
