@@ -43,7 +43,8 @@ const moneyScale = 1000
 //	slots         Σ_i slots_i·y[o,last] ≤ slots(l)            one per link with a slot limit
 //	gating        y[o,τ] ≤ max·b[l,τ′] on candidate links     one per order year of their items
 //	tiers         Σ_k z = 1; list spend and unit count split  per vendor-year: 1 + G + 1 + 2·(tiers+1)
-//	              by tier; threshold·z_k ≤ part_k ≤ max·z_k
+//	              by tier; threshold·z_k ≤ part_k ≤ max·z_k (z_k fixed
+//	              at 0 where the discounted threshold exceeds the budget)
 //	budget        capex of year τ ≤ cap; Σ_τ capex ≤ cumulative cap  one per capped year (+1)
 //	one vendor    Σ_v w[g,v] ≤ 1; y[o,last] ≤ max·w[g,vendor(o)]     per one-vendor group: 1 + its options
 //	cut-set       MIR roundings of site, linked-pair and ball cuts ≤ 6·(3·|sites| + |links|)·T
@@ -638,6 +639,11 @@ func (m *Model) addPurchases() {
 				m.LP.AddRow(fmt.Sprintf("nmin_%s_%d", name, k), 0, lp.Inf, []int{vy.count[k], vy.choice[k]}, []float64{1, -tr.Threshold})
 			}
 		}
+		minPrice := math.Inf(1)
+		for _, p := range buys {
+			minPrice = math.Min(minPrice, p.price)
+		}
+		m.fixUnreachableTiers(&vy, tau, minPrice)
 		m.tiers = append(m.tiers, vy)
 	}
 
@@ -764,6 +770,31 @@ func (m *Model) addElastic() {
 			s := m.LP.AddCol("e"+name, limitWeight, 0, lp.Inf)
 			m.LP.SetCoef(i, s, -1)
 			m.elastic = append(m.elastic, elasticSlack{col: s, kind: InfeasibleLink, name: name[len("slots_"):], year: -1, perUnit: 1})
+		}
+	}
+}
+
+// fixUnreachableTiers fixes at 0 the choice of each tier of vy that the
+// capex budget of order year tau, or the cumulative cap, can never pay
+// for: a spend tier whose threshold, less its discount, is above the
+// limit, or a unit tier whose threshold in units of the vendor's cheapest
+// item of that year (minPrice, list), less its discount, is. The integer
+// points are the same; the relaxation is tighter, because it would
+// otherwise take the tier at z = spend/threshold and so earn its discount
+// on any spend.
+func (m *Model) fixUnreachableTiers(vy *vendorYear, tau int, minPrice float64) {
+	b := m.Case.Budget
+	limit := b.Cumulative
+	if yc, ok := b.YearCap(tau); ok {
+		limit = math.Min(limit, yc)
+	}
+	for k, tr := range m.Case.Vendors[vy.vendor].Tiers {
+		least := tr.Threshold // the tier's least list spend
+		if tr.Basis == TierByUnits {
+			least = tr.Threshold * minPrice
+		}
+		if (1-tr.Discount)*least > limit*(1+1e-9) {
+			m.LP.ColUpper[vy.choice[k+1]] = 0
 		}
 	}
 }

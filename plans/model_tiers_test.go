@@ -1,0 +1,85 @@
+package plans
+
+import (
+	"context"
+	"math"
+	"testing"
+
+	"netstage/lp"
+	"netstage/mip"
+)
+
+// TestUnreachableTiersFixed: with a yearly budget of 300,000 the synthetic
+// spend-tier vendor's 10 % tier from 600,000 (540,000 after its discount)
+// can never apply, while its 5 % tier from 250,000 (237,500) can; the
+// model fixes the first tier's choice at 0 in every order year and leaves
+// the second free. The unit-tier vendor's 12-unit tier is fixed in the
+// first order years: 12 of its cheapest modules (36,245 list in year 1,
+// eroding 15 % a year), less 12 %, cost 383,000 in year 1 and 325,000 in
+// year 2. The fix must not change the optimum — checked against
+// the same model with the fixed choices freed again, both solved to a gap
+// of 1e-9 — and must tighten the LP relaxation, which otherwise earns the
+// 10 % on any spend.
+func TestUnreachableTiersFixed(t *testing.T) {
+	c := loadSyntheticWith(t, 6, 4, 3, "")
+	for i := range c.Budget.Yearly {
+		c.Budget.Yearly[i] = 300000
+	}
+	m, err := BuildModel(c, BuildOptions{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	free := m.LP.Clone()
+	fixed, open, unitsFixed := 0, 0, 0
+	for _, vy := range m.tiers {
+		for k, tr := range c.Vendors[vy.vendor].Tiers {
+			j := vy.choice[k+1]
+			up := m.LP.ColUpper[j]
+			if tr.Basis == TierBySpend {
+				reach := (1 - tr.Discount) * tr.Threshold
+				if reach > 300000 && up != 0 {
+					t.Errorf("%s %d: tier from %v (%v after discount) is above the budget but its choice is free", c.Vendors[vy.vendor].ID, c.Year(vy.year), tr.Threshold, reach)
+				}
+				if reach <= 300000 && up != 1 {
+					t.Errorf("%s %d: tier from %v (%v after discount) fits the budget but its choice is fixed", c.Vendors[vy.vendor].ID, c.Year(vy.year), tr.Threshold, reach)
+				}
+			}
+			if up == 0 {
+				fixed++
+				if tr.Basis == TierByUnits {
+					unitsFixed++
+				}
+				free.ColUpper[j] = 1
+			} else {
+				open++
+			}
+		}
+	}
+	if unitsFixed == 0 {
+		t.Errorf("no unit tier fixed: the synthetic vendor's 12-unit tier costs more than the budget in year 1")
+	}
+	if fixed == 0 || open == 0 {
+		t.Fatalf("test input: %d tier choices fixed and %d free; want some of each", fixed, open)
+	}
+	relax := func(lm *lp.Model) float64 {
+		r, err := lp.Solve(context.Background(), lm, lp.Settings{})
+		if err != nil || r.Status != lp.Optimal {
+			t.Fatalf("relaxation: %v %v", r.Status, err)
+		}
+		return r.Objective
+	}
+	// The model minimises −NPV: a tighter relaxation has a larger optimum.
+	if rf, ro := relax(m.LP), relax(free); rf <= ro+1e-6*math.Abs(ro) {
+		t.Errorf("relaxation with the fixed tiers %v, without %v: want it tighter", rf, ro)
+	}
+	solve := func(lm *lp.Model) float64 {
+		r, err := mip.Solve(context.Background(), lm, mip.Settings{RelGap: 1e-9})
+		if err != nil || r.Status != mip.Optimal {
+			t.Fatalf("solve: %v %v", r.Status, err)
+		}
+		return r.Objective
+	}
+	if a, b := solve(m.LP), solve(free); math.Abs(a-b) > 1e-6*math.Max(1, math.Abs(b)) {
+		t.Errorf("optimum with the fixed tiers %v, with them free %v: want equal", a, b)
+	}
+}
