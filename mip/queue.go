@@ -1,10 +1,6 @@
 package mip
 
-import (
-	"container/heap"
-
-	"netstage/lp"
-)
+import "container/heap"
 
 // boundChange sets column col to [lo, up].
 type boundChange struct {
@@ -22,9 +18,9 @@ type node struct {
 	depth    int
 	parent   *node
 	delta    []boundChange
-	basis    *lp.Basis // warm start (the parent's final basis)
-	bound    float64   // lower bound on the subproblem's optimum
-	estimate float64   // estimated optimum of the best solution below
+	basis    *packedBasis // warm start (the parent's final basis)
+	bound    float64      // lower bound on the subproblem's optimum
+	estimate float64      // estimated optimum of the best solution below
 	// branching that created the node, for pseudocost updates
 	branchVar  int // −1 for the root
 	branchUp   bool

@@ -133,8 +133,7 @@ func (s *search) run(starts [][]float64) Result {
 	s.progress(false)
 
 	root := &node{id: s.nextID(), branchVar: -1, bound: s.rootBound, estimate: s.rootBound, solved: true}
-	b := s.lps.Basis()
-	root.basis = &b
+	root.basis = packBasis(s.lps.Basis())
 	s.curBound = inf
 	s.treeSearch(root)
 	return s.finish()

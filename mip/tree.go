@@ -97,7 +97,7 @@ func (s *search) processNode(nd *node, warm bool) (kids []*node, ok bool) {
 	}
 	s.syncBounds()
 	if !warm && nd.basis != nil {
-		_ = s.lps.SetBasis(s.padBasis(*nd.basis))
+		_ = s.lps.SetBasis(s.padBasis(nd.basis.unpack()))
 	}
 	first := true
 	rowsAdded := false
@@ -396,13 +396,13 @@ func (s *search) makeChildren(nd *node, r lp.Result, bound float64, br branchCho
 	}
 	est -= math.Min(gd, gu)
 	base := s.deltaSinceLoad(1)
-	b := r.Basis
-	down := &node{id: s.nextID(), depth: nd.depth + 1, parent: nd, basis: &b, branchVar: j, branchUp: false,
+	b := packBasis(r.Basis)
+	down := &node{id: s.nextID(), depth: nd.depth + 1, parent: nd, basis: b, branchVar: j, branchUp: false,
 		branchDist: f, parentObj: r.Objective}
 	down.delta = append(append([]boundChange(nil), base...), boundChange{j, s.lo[j], math.Floor(x)})
 	down.bound = math.Max(bound, s.p.roundBound(br.downBound))
 	down.estimate = est + gd
-	up := &node{id: s.nextID(), depth: nd.depth + 1, parent: nd, basis: &b, branchVar: j, branchUp: true,
+	up := &node{id: s.nextID(), depth: nd.depth + 1, parent: nd, basis: b, branchVar: j, branchUp: true,
 		branchDist: 1 - f, parentObj: r.Objective}
 	up.delta = append(base, boundChange{j, math.Ceil(x), s.up[j]})
 	up.bound = math.Max(bound, s.p.roundBound(br.upBound))
