@@ -639,11 +639,13 @@ func (m *Model) addPurchases() {
 				m.LP.AddRow(fmt.Sprintf("nmin_%s_%d", name, k), 0, lp.Inf, []int{vy.count[k], vy.choice[k]}, []float64{1, -tr.Threshold})
 			}
 		}
-		minPrice := math.Inf(1)
-		for _, p := range buys {
-			minPrice = math.Min(minPrice, p.price)
+		if !m.opts.elastic { // there the budgets give, so no tier is out of reach
+			minPrice := math.Inf(1)
+			for _, p := range buys {
+				minPrice = math.Min(minPrice, p.price)
+			}
+			m.fixUnreachableTiers(&vy, tau, minPrice)
 		}
-		m.fixUnreachableTiers(&vy, tau, minPrice)
 		m.tiers = append(m.tiers, vy)
 	}
 
@@ -781,7 +783,7 @@ func (m *Model) addElastic() {
 // item of that year (minPrice, list), less its discount, is. The integer
 // points are the same; the relaxation is tighter, because it would
 // otherwise take the tier at z = spend/threshold and so earn its discount
-// on any spend.
+// on any spend. Not for the elastic model, whose budgets may be exceeded.
 func (m *Model) fixUnreachableTiers(vy *vendorYear, tau int, minPrice float64) {
 	b := m.Case.Budget
 	limit := b.Cumulative

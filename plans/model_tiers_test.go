@@ -58,6 +58,19 @@ func TestUnreachableTiersFixed(t *testing.T) {
 	if unitsFixed == 0 {
 		t.Errorf("no unit tier fixed: the synthetic vendor's 12-unit tier costs more than the budget in year 1")
 	}
+	// The elastic model (infeasibility explanation) lets budgets give, so
+	// it must keep every tier within reach.
+	em, err := BuildModel(c, BuildOptions{elastic: true})
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, vy := range em.tiers {
+		for _, j := range vy.choice {
+			if em.LP.ColUpper[j] != 1 {
+				t.Errorf("elastic model: tier choice %s fixed at %v; its budget may give", em.LP.ColName[j], em.LP.ColUpper[j])
+			}
+		}
+	}
 	if fixed == 0 || open == 0 {
 		t.Fatalf("test input: %d tier choices fixed and %d free; want some of each", fixed, open)
 	}
