@@ -13,13 +13,15 @@ import (
 // spend-tier vendor's 10 % tier from 600,000 (540,000 after its discount)
 // can never apply, while its 5 % tier from 250,000 (237,500) can; the
 // model fixes the first tier's choice at 0 in every order year and leaves
-// the second free. The unit-tier vendor's 12-unit tier is fixed in the
-// first order years: 12 of its cheapest modules (36,245 list in year 1,
-// eroding 15 % a year), less 12 %, cost 383,000 in year 1 and 325,000 in
-// year 2. The fix must not change the optimum — checked against
-// the same model with the fixed choices freed again, both solved to a gap
-// of 1e-9 — and must tighten the LP relaxation, which otherwise earns the
-// 10 % on any spend.
+// the second free. The unit-tier vendor's cheapest module is beta-100g on
+// the shortest link it fits (186.3 km): 36,245 + 72/km, 49,659 in year 1,
+// eroding 15 % a year. Its 12-unit tier, less 12 %, needs 524,395 in year
+// 1 and still 322,044 in year 4, so it is fixed in every year; its 6-unit
+// tier, less 7 %, needs 277,095 in year 1 and less later, so it stays
+// free. The fix must not change the optimum — checked against the same
+// model with the fixed choices freed again, both solved to a gap of 1e-9 —
+// and must tighten the LP relaxation, which otherwise earns the 10 % on
+// any spend.
 func TestUnreachableTiersFixed(t *testing.T) {
 	c := loadSyntheticWith(t, 6, 4, 3, "")
 	for i := range c.Budget.Yearly {
@@ -35,6 +37,12 @@ func TestUnreachableTiersFixed(t *testing.T) {
 		for k, tr := range c.Vendors[vy.vendor].Tiers {
 			j := vy.choice[k+1]
 			up := m.LP.ColUpper[j]
+			if tr.Basis == TierByUnits {
+				// By hand, above: 12 units never fit, 6 always do.
+				if want := tr.Threshold == 12; (up == 0) != want {
+					t.Errorf("%s %d: %v-unit tier fixed = %v, want %v", c.Vendors[vy.vendor].ID, c.Year(vy.year), tr.Threshold, up == 0, want)
+				}
+			}
 			if tr.Basis == TierBySpend {
 				reach := (1 - tr.Discount) * tr.Threshold
 				if reach > 300000 && up != 0 {
@@ -56,7 +64,7 @@ func TestUnreachableTiersFixed(t *testing.T) {
 		}
 	}
 	if unitsFixed == 0 {
-		t.Errorf("no unit tier fixed: the synthetic vendor's 12-unit tier costs more than the budget in year 1")
+		t.Errorf("no unit tier fixed: the synthetic vendor's 12-unit tier costs more than the budget in every year")
 	}
 	// The elastic model (infeasibility explanation) lets budgets give, so
 	// it must keep every tier within reach.
