@@ -37,9 +37,12 @@ func packBasis(b lp.Basis) *packedBasis {
 	return pb
 }
 
-// unpack returns the basis pb holds.
-func (pb *packedBasis) unpack() lp.Basis {
-	b := lp.Basis{Cols: make([]lp.VarStatus, pb.nCols), Rows: make([]lp.VarStatus, pb.nRows)}
+// unpack returns the basis pb holds, for an LP of m rows: rows added
+// since it was packed (pool cuts that entered the LP later) get basic
+// slacks. (Rows leave the LP only at the root, before any node is
+// created, so m is not less than the packed count.)
+func (pb *packedBasis) unpack(m int) lp.Basis {
+	b := lp.Basis{Cols: make([]lp.VarStatus, pb.nCols), Rows: make([]lp.VarStatus, max(m, pb.nRows))}
 	n := pb.nCols + pb.nRows
 	set := func(k int, v byte) {
 		if k < pb.nCols {
@@ -53,5 +56,5 @@ func (pb *packedBasis) unpack() lp.Basis {
 		set(3*i+1, v/5%5)
 		set(3*i+2, v/25)
 	}
-	return b
+	return b // rows past the packed ones stay at the zero status, Basic
 }

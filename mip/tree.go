@@ -97,7 +97,7 @@ func (s *search) processNode(nd *node, warm bool) (kids []*node, ok bool) {
 	}
 	s.syncBounds()
 	if !warm && nd.basis != nil {
-		_ = s.lps.SetBasis(s.padBasis(nd.basis.unpack()))
+		_ = s.lps.SetBasis(nd.basis.unpack(s.lps.NumRows()))
 	}
 	first := true
 	rowsAdded := false
@@ -482,21 +482,6 @@ func (s *search) dive(x0 []float64) {
 // iterations plus strongOffset.
 func (s *search) strongAllowed() bool {
 	return float64(s.sbIters) < strongShare*float64(s.nodeLPIters)+strongOffset
-}
-
-// padBasis extends a basis saved before pool cuts entered the LP: the new
-// rows' slacks are basic.
-func (s *search) padBasis(b lp.Basis) lp.Basis {
-	m := s.lps.NumRows()
-	if len(b.Rows) >= m {
-		return b
-	}
-	rows := make([]lp.VarStatus, m)
-	copy(rows, b.Rows)
-	for i := len(b.Rows); i < m; i++ {
-		rows[i] = lp.Basic
-	}
-	return lp.Basis{Cols: b.Cols, Rows: rows}
 }
 
 // poolToLP adds the pool's cover cuts (globally valid) that the node's LP
