@@ -59,8 +59,9 @@
 // that violates rows has its integer values fixed and its continuous
 // columns re-optimised by LP. Settings.Improve hands each new incumbent to
 // the caller's own local search (with the basis of the LP that completed
-// it, as a warm start) at the same call points as Settings.Heuristic, and
-// its answer is checked the same way. Settings.Progress receives the
+// it, as a warm start) at the same call points as Settings.Heuristic; the
+// local search runs on a goroutine of its own until the next call point,
+// where its answer is taken and checked the same way. Settings.Progress receives the
 // incumbent, bound, gap, nodes and elapsed time.
 //
 // The search is deterministic: the same model, settings and seed give the

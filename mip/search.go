@@ -1,6 +1,7 @@
 package mip
 
 import (
+	"context"
 	"math"
 	"time"
 
@@ -157,6 +158,7 @@ func (s *search) nextID() int { s.ids++; return s.ids }
 
 // finish turns the search state into a Result.
 func (s *search) finish() Result {
+	s.joinImprove(s.stopped == TimeLimit || s.stopped == Cancelled)
 	if s.stopped == Finished || s.stopped == LPFailure {
 		if s.queue.Len() == 0 {
 			if s.incX != nil {
@@ -197,6 +199,7 @@ func (s *search) afterRootFailure(r lp.Result) Result {
 	switch r.Status {
 	case lp.ObjectiveCutoff, lp.Infeasible:
 		// Valid cuts and the cutoff exclude every better point.
+		s.joinImprove(false)
 		s.curBound = inf
 		if s.incX != nil {
 			s.notePruned(s.pruneLimit())
@@ -439,22 +442,63 @@ func (s *search) complete(y []float64) ([]float64, *lp.Basis, bool) {
 	return z, &r.Basis, true
 }
 
-// callHeuristic asks the caller's Heuristic for candidates, then its
-// Improve for a better point than the incumbent when the incumbent changed
-// since Improve last saw it.
+// callHeuristic asks the caller's Heuristic for candidates, takes the
+// answer of the Improve started at the last call point (waiting for it),
+// and starts Improve again when the incumbent changed since Improve last
+// saw it.
 func (s *search) callHeuristic(x []float64) {
 	if s.set.Heuristic != nil {
 		for _, c := range s.set.Heuristic(append([]float64(nil), x...)) {
 			s.tryCandidate(c)
 		}
 	}
-	if s.set.Improve == nil || s.incX == nil || s.incObj == s.improvedObj {
+	s.joinImprove(false)
+	if s.set.Improve == nil || s.incX == nil || s.incObj == s.improvedObj || s.pastTime() {
 		return
 	}
-	// The point Improve returns, once the incumbent, is offered again at the
-	// next call point: a caller that stopped early can go on from it.
+	// The point Improve returns, once the incumbent, is offered again at
+	// once: a caller that stopped early can go on from it.
 	s.improvedObj = s.incObj
-	if y := s.set.Improve(append([]float64(nil), s.incX...), s.incBasis); y != nil {
+	ctx, stop := context.WithCancel(s.ctx)
+	answer := make(chan []float64, 1)
+	inc, basis := append([]float64(nil), s.incX...), s.incBasis
+	go func() { answer <- s.set.Improve(ctx, inc, basis) }()
+	s.improving, s.stopImprove = answer, stop
+}
+
+// joinImprove waits for the running Improve, if any, and tries its answer.
+// With stop its context is cancelled first (the search is ending at a time
+// limit or by cancellation), and so it is when the time limit passes
+// while the search waits.
+//
+// Improve runs beside the search between two call points (on large models
+// the root cut rounds, on others a stretch of nodes), but its answer is
+// taken only at the next call point or at the end, so the search's path
+// does not depend on how long Improve takes.
+func (s *search) joinImprove(stop bool) {
+	if s.improving == nil {
+		return
+	}
+	if stop {
+		s.stopImprove()
+	}
+	var y []float64
+	if s.deadline.IsZero() {
+		y = <-s.improving
+	} else {
+		// The time limit holds while the search waits.
+		wait := time.NewTimer(time.Until(s.deadline))
+		select {
+		case y = <-s.improving:
+		case <-wait.C:
+			s.stopImprove()
+			y = <-s.improving
+		}
+		wait.Stop()
+	}
+	s.stopImprove()
+	s.improving, s.stopImprove = nil, nil
+	if y != nil {
 		s.tryCandidate(y)
 	}
 }

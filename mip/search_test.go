@@ -418,7 +418,7 @@ func TestImproveCallback(t *testing.T) {
 	}
 	var got [][]float64
 	var bases []*lp.Basis
-	set.Improve = func(inc []float64, basis *lp.Basis) []float64 {
+	set.Improve = func(_ context.Context, inc []float64, basis *lp.Basis) []float64 {
 		got, bases = append(got, inc), append(bases, basis)
 		return []float64{1, 0, 1, 1} // 5 + 3 + 0.1: the optimum
 	}
@@ -435,7 +435,7 @@ func TestImproveCallback(t *testing.T) {
 	if math.Abs(r.Objective-8.1) > 1e-9 {
 		t.Fatalf("with the callback: objective %v, want 8.1", r.Objective)
 	}
-	set.Improve = func(inc []float64, basis *lp.Basis) []float64 {
+	set.Improve = func(_ context.Context, inc []float64, basis *lp.Basis) []float64 {
 		return []float64{1, 1, 1, 1} // weight 6 > 4.5
 	}
 	bad, err := Solve(context.Background(), m, set)
@@ -444,6 +444,105 @@ func TestImproveCallback(t *testing.T) {
 	}
 	if math.Abs(bad.Objective-3.05) > 1e-9 {
 		t.Fatalf("with an infeasible improvement: objective %v, want 3.05", bad.Objective)
+	}
+}
+
+// greedyAdd returns a copy of x (a 0/1 point of a hardKnapsack model) with
+// every item that still fits added, in column order, or nil when none fits.
+func greedyAdd(m *lp.Model, x []float64) []float64 {
+	y := append([]float64(nil), x...)
+	_, load := m.Evaluate(y)
+	cols := m.Columns()
+	added := false
+	for j := range y {
+		if y[j] > 0.5 {
+			continue
+		}
+		fits := true
+		for k := cols.Start[j]; k < cols.Start[j+1]; k++ {
+			if i := cols.Index[k]; load[i]+cols.Value[k] > m.RowUpper[i] {
+				fits = false
+			}
+		}
+		if !fits {
+			continue
+		}
+		y[j], added = 1, true
+		for k := cols.Start[j]; k < cols.Start[j+1]; k++ {
+			load[cols.Index[k]] += cols.Value[k]
+		}
+	}
+	if !added {
+		return nil
+	}
+	return y
+}
+
+// TestImproveTimingIndependent checks that the search takes Improve's
+// answer at fixed points, whatever the time Improve takes: with answers
+// that arrive at once and answers that arrive 30 ms late (Improve runs
+// beside the search), the search takes the same path and ends with the
+// same point.
+func TestImproveTimingIndependent(t *testing.T) {
+	m := hardKnapsack(40, 5, 3)
+	m.Columns() // built here, not by the Improve goroutines
+	run := func(delay time.Duration) (Result, int, int) {
+		calls, gains := 0, 0
+		set := Settings{NodeLimit: 300, RelGap: 1e-9}
+		set.Improve = func(_ context.Context, inc []float64, _ *lp.Basis) []float64 {
+			calls++
+			time.Sleep(delay)
+			y := greedyAdd(m, inc)
+			if y != nil {
+				gains++
+			}
+			return y
+		}
+		r, err := Solve(context.Background(), m, set)
+		if err != nil {
+			t.Fatal(err)
+		}
+		checkIncumbent(t, m, r)
+		return r, calls, gains
+	}
+	quick, calls, gains := run(0)
+	if gains == 0 {
+		t.Fatalf("Improve improved none of its %d incumbents: the test shows nothing", calls)
+	}
+	late, lateCalls, _ := run(30 * time.Millisecond)
+	if late.Nodes != quick.Nodes || late.LPIterations != quick.LPIterations || late.Objective != quick.Objective || lateCalls != calls {
+		t.Errorf("late answers: %d nodes, %d iterations, objective %v, %d calls; at once: %d, %d, %v, %d",
+			late.Nodes, late.LPIterations, late.Objective, lateCalls, quick.Nodes, quick.LPIterations, quick.Objective, calls)
+	}
+}
+
+// TestImproveStoppedAtTimeLimit checks that a search stopped by its time
+// limit cancels the context of a running Improve and returns: here
+// Improve answers only once its context ends.
+func TestImproveStoppedAtTimeLimit(t *testing.T) {
+	m := hardKnapsack(80, 10, 7)
+	limit := 200 * time.Millisecond
+	var ended []bool
+	set := Settings{TimeLimit: limit, RelGap: 1e-9}
+	set.Improve = func(ctx context.Context, inc []float64, _ *lp.Basis) []float64 {
+		<-ctx.Done()
+		ended = append(ended, ctx.Err() != nil)
+		return nil
+	}
+	start := time.Now()
+	r, err := Solve(context.Background(), m, set)
+	took := time.Since(start)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if took > limit+time.Second {
+		t.Errorf("search took %v with a time limit of %v", took, limit)
+	}
+	if r.Status != Feasible || r.Stopped != TimeLimit {
+		t.Errorf("status %v stopped %v, want feasible at the time limit", r.Status, r.Stopped)
+	}
+	if len(ended) != 1 || !ended[0] {
+		t.Errorf("Improve calls ended %v, want one, ended by its context", ended)
 	}
 }
 

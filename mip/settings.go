@@ -1,6 +1,7 @@
 package mip
 
 import (
+	"context"
 	"fmt"
 	"time"
 
@@ -153,16 +154,22 @@ type Settings struct {
 	// HeuristicFreq is the node interval for Heuristic (0: DefaultHeuristicFreq).
 	HeuristicFreq int
 	// Improve, when set, lets the caller improve the incumbent: at each
-	// Heuristic call point, when the incumbent has changed since the last
-	// call of Improve, it gets the incumbent (model columns) and returns a
-	// better point, or nil. The point is checked like a Heuristic candidate;
-	// when it becomes the incumbent, Improve gets it at the next call point
-	// (a caller that stopped short can go on; one that finished should
-	// answer nil at once).
+	// Heuristic call point, when the incumbent has changed since Improve
+	// last got it, Improve is started with the incumbent (model columns)
+	// and returns a better point, or nil. It runs on its own goroutine,
+	// beside the search, and its answer is taken at the next call point
+	// (the search waits for it there) or when the search ends: the path
+	// does not depend on how long it takes. The answer is checked like a
+	// Heuristic candidate; when it becomes the incumbent, Improve gets it
+	// again at once (a caller that stopped short can go on; one that
+	// finished should answer nil at once). One Improve runs at a time, but
+	// beside the other callbacks (Heuristic, Separate, Progress): state it
+	// shares with them must be safe for that. ctx is cancelled when the search stops at its time limit or is
+	// cancelled; an answer found by then is still taken.
 	// basis, when not nil, is an optimal basis of the model's LP with the
 	// integer columns fixed at the incumbent's values (a warm start for
 	// the caller's own LPs).
-	Improve func(incumbent []float64, basis *lp.Basis) []float64
+	Improve func(ctx context.Context, incumbent []float64, basis *lp.Basis) []float64
 
 	// Separate, when set, lets the caller add cutting planes it knows from
 	// the model's structure. It is called in each round of root cuts with

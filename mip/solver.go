@@ -104,6 +104,10 @@ type search struct {
 	incObj   float64 // its internal objective; +Inf when none
 	// improvedObj is incObj when Settings.Improve last saw the incumbent.
 	improvedObj float64
+	// improving receives the answer of the running Improve (nil: none
+	// running); stopImprove cancels its context.
+	improving   chan []float64
+	stopImprove context.CancelFunc
 
 	prunedMin float64 // least bound of nodes pruned by the gap rule or lost to LP failure
 	lpLost    bool    // some subproblem was given up after LP failure
@@ -150,6 +154,11 @@ func newSearch(ctx context.Context, m *lp.Model, set Settings) *search {
 }
 
 func (s *search) elapsed() time.Duration { return time.Since(s.started) }
+
+// pastTime reports whether the search is cancelled or past its time limit.
+func (s *search) pastTime() bool {
+	return s.ctx.Err() != nil || (!s.deadline.IsZero() && time.Now().After(s.deadline))
+}
 
 // limitReached checks time, nodes and cancellation, and records why.
 func (s *search) limitReached() bool {
@@ -241,6 +250,9 @@ func (s *search) syncBounds() {
 
 // result assembles the caller's Result.
 func (s *search) result(status Status) Result {
+	// Every path joins Improve before it decides the status; this only
+	// makes sure no Improve outlives the search.
+	s.joinImprove(true)
 	p := s.p
 	r := Result{Status: status, Stopped: s.stopped, Nodes: s.nodes, LPIterations: s.iters, Time: s.elapsed(), Cuts: s.nCuts}
 	if status == Infeasible {

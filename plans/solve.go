@@ -132,7 +132,7 @@ func Solve(ctx context.Context, c *Case, opts SolveOptions) (*Result, error) {
 	waitBaseline := sync.OnceValue(func() baselineRun { return <-baseDone })
 	var im *improver
 	if !opts.NoHeuristic && !opts.NoImprove {
-		im = m.newImprover(searchCtx, time.Time{})
+		im = m.newImprover(time.Time{})
 		set.Improve = im.improve
 	}
 	set.LateStart = func() []float64 {

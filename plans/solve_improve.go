@@ -42,7 +42,6 @@ const (
 // with the current NPV as cutoff.
 type improver struct {
 	m        *Model
-	ctx      context.Context
 	deadline time.Time // zero: none
 	sv       *lp.Solver
 	intCols  []int   // the model's integer columns
@@ -55,10 +54,10 @@ type improver struct {
 	settled []float64
 }
 
-// newImprover returns an improver for m that stops at ctx's end or at
-// deadline (zero: none).
-func (m *Model) newImprover(ctx context.Context, deadline time.Time) *improver {
-	im := &improver{m: m, ctx: ctx, deadline: deadline, byLink: m.optionsByLink(), cols: make([][]int, len(m.options))}
+// newImprover returns an improver for m that stops at deadline (zero:
+// none) or at the end of the context of its call.
+func (m *Model) newImprover(deadline time.Time) *improver {
+	im := &improver{m: m, deadline: deadline, byLink: m.optionsByLink(), cols: make([][]int, len(m.options))}
 	for oi := range m.options {
 		im.cols[oi] = m.options[oi].orderCols()
 	}
@@ -91,7 +90,7 @@ type unitMove struct {
 // it finds one, else nil. It makes passes over the ranked moves, keeping
 // every move that improves the NPV as it goes, and ranks again after a
 // pass that kept one.
-func (im *improver) improve(x []float64, basis *lp.Basis) []float64 {
+func (im *improver) improve(ctx context.Context, x []float64, basis *lp.Basis) []float64 {
 	if im.isSettled(x) {
 		return nil // mip offers the point this search returned; it is done
 	}
@@ -101,7 +100,7 @@ func (im *improver) improve(x []float64, basis *lp.Basis) []float64 {
 		stop = start.Add(time.Duration(improveShare * float64(time.Until(im.deadline))))
 	}
 	over := func() bool {
-		return im.ctx.Err() != nil || (!stop.IsZero() && time.Now().After(stop))
+		return ctx.Err() != nil || (!stop.IsZero() && time.Now().After(stop))
 	}
 	set := lp.Settings{}
 	if !stop.IsZero() {
@@ -127,7 +126,7 @@ func (im *improver) improve(x []float64, basis *lp.Basis) []float64 {
 	y := append([]float64(nil), x...)
 	im.fix(y)
 	im.sv.SetSettings(set)
-	r := im.sv.Solve(im.ctx)
+	r := im.sv.Solve(ctx)
 	if r.Status != lp.Optimal {
 		return nil
 	}
@@ -181,7 +180,7 @@ func (im *improver) improve(x []float64, basis *lp.Basis) []float64 {
 			trials++
 			im.fix(z)
 			im.sv.SetSettings(set)
-			t := im.sv.Solve(im.ctx)
+			t := im.sv.Solve(ctx)
 			if t.Status == lp.Optimal && t.Objective < best.Objective-tol {
 				y, z = z, y
 				best, accepted, improved = t, true, true

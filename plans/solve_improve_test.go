@@ -39,8 +39,8 @@ func TestImprovePlan(t *testing.T) {
 		if from.Status != lp.Optimal {
 			t.Skipf("the rounded-up plan has no feasible routing (%v)", from.Status)
 		}
-		im := m.newImprover(context.Background(), time.Time{})
-		z := im.improve(start[0], nil)
+		im := m.newImprover(time.Time{})
+		z := im.improve(context.Background(), start[0], nil)
 		if z == nil {
 			t.Logf("no improving move from −NPV %.2f", from.Objective)
 			return
@@ -52,7 +52,7 @@ func TestImprovePlan(t *testing.T) {
 		if !im.isSettled(z) {
 			t.Error("the returned point is not marked settled")
 		}
-		if again := im.improve(z, nil); again != nil {
+		if again := im.improve(context.Background(), z, nil); again != nil {
 			t.Error("offered its own result again, the search improved it")
 		}
 		if v, integral := m.LP.MaxViolation(z, 1e-9); v > 1e-6 || !integral {
