@@ -133,6 +133,34 @@ func (s *Solver) ensureFactor() bool {
 	return false
 }
 
+// newRowWeights sets the dual steepest-edge weights of the slacks of rows
+// added since the last solve (dseDue) to their exact values ‖e_pᵀB⁻¹‖²,
+// one btran each. The slack of a new row i is basic, and row p of B⁻¹ is
+// (−a_B·B_old⁻¹, e_i): its norm grows with the row's coefficients on
+// basic columns, where the weight 1 that AddRows gives would make the
+// pricing take every new row first. The old positions' weights stay
+// exact (their rows of B⁻¹ only gain zeros).
+func (s *Solver) newRowWeights() {
+	if len(s.dseDue) == 0 {
+		return
+	}
+	rho := make([]float64, s.m)
+	for _, p := range s.dseDue {
+		if p >= s.m || s.head[p] != s.n+p {
+			continue // the factorisation put another column there
+		}
+		rho[p] = 1
+		s.fac.btran(rho)
+		w := 0.0
+		for i, v := range rho {
+			w += v * v
+			rho[i] = 0
+		}
+		s.dse[p] = w
+	}
+	s.dseDue = s.dseDue[:0]
+}
+
 // refactor rebuilds the factorisation and recomputes primal and dual values.
 func (s *Solver) refactor() bool {
 	s.facValid = false
@@ -410,6 +438,7 @@ func (s *Solver) run(ctx context.Context) Status {
 	if !s.ensureFactor() {
 		return NumericalTrouble
 	}
+	s.newRowWeights()
 	copy(s.work, s.cost)
 	s.perturbed = false
 	if !s.warm && !s.set.NoPerturbation {

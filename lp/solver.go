@@ -68,6 +68,9 @@ type Solver struct {
 	y    []float64   // row duals (scaled, minimisation)
 	d    []float64   // reduced costs (scaled, minimisation), 0 for basics
 	dse  []float64   // dual steepest-edge weights per position
+	// dseDue lists the positions of the slacks of rows added since the
+	// last solve, whose weights the next solve computes exactly.
+	dseDue []int
 
 	fac       *factor
 	facValid  bool
@@ -247,6 +250,7 @@ func (s *Solver) AddRows(rows []Row) {
 		s.stat = append(s.stat, Basic)
 		s.head = append(s.head, v)
 		s.dse = append(s.dse, 1)
+		s.dseDue = append(s.dseDue, i)
 	}
 	s.resizeScratch()
 	s.facValid = false
@@ -259,6 +263,7 @@ func (s *Solver) AddRows(rows []Row) {
 // the basis nonsingular) and becomes nonbasic at its nearest bound. It
 // panics on an index out of range.
 func (s *Solver) RemoveRows(idx []int) {
+	s.dseDue = s.dseDue[:0]
 	del := make([]bool, s.m)
 	some := false
 	for _, i := range idx {
@@ -434,6 +439,7 @@ func (s *Solver) SetBasis(b Basis) error {
 	copy(s.stat, b.Cols)
 	copy(s.stat[s.n:], b.Rows)
 	s.head = head
+	s.dseDue = s.dseDue[:0]
 	for p := range s.dse {
 		s.dse[p] = 1
 	}
