@@ -184,20 +184,24 @@ func TestRestoreAfterRefactors(t *testing.T) {
 
 // TestAddRemoveRows adds a cut that removes the optimum, checks the warm
 // re-solve against a cold solve of the extended model, then removes the cut.
-// TestNewRowWeights checks the dual steepest-edge weights of the slacks
-// of added rows: after AddRows the next solve sets each to ‖e_pᵀB⁻¹‖²,
-// here checked against the row of a dense inverse of the basis (gonum)
-// on afiro with a cut on the objective.
-func TestNewRowWeights(t *testing.T) {
-	m, sv, _ := solvedSample(t, "afiro")
-	var idx []int
-	var val []float64
+// objectiveRow returns the objective's nonzeros as a row.
+func objectiveRow(m *Model) (idx []int, val []float64) {
 	for j, c := range m.Obj {
 		if c != 0 {
 			idx = append(idx, j)
 			val = append(val, c)
 		}
 	}
+	return idx, val
+}
+
+// TestNewRowWeights checks the dual steepest-edge weights of the slacks
+// of added rows: after AddRows the next solve sets each to ‖e_pᵀB⁻¹‖²,
+// here checked against the row of a dense inverse of the basis (gonum)
+// on afiro with a cut on the objective.
+func TestNewRowWeights(t *testing.T) {
+	m, sv, _ := solvedSample(t, "afiro")
+	idx, val := objectiveRow(m)
 	sv.AddRows([]Row{{Name: "cut", Lower: 0, Upper: math.Inf(1), Index: idx, Value: val}})
 	p := sv.NumRows() - 1
 	if !sv.ensureFactor() {
@@ -232,14 +236,7 @@ func TestAddRemoveRows(t *testing.T) {
 		t.Run(name, func(t *testing.T) {
 			m, sv, r0 := solvedSample(t, name)
 			// Cut: the objective's own row, c·x ≥ optimum + 1% (minimisation).
-			var idx []int
-			var val []float64
-			for j, c := range m.Obj {
-				if c != 0 {
-					idx = append(idx, j)
-					val = append(val, c)
-				}
-			}
+			idx, val := objectiveRow(m)
 			cx := r0.Objective - m.Constant
 			bound := cx + 0.01*math.Abs(cx) + 0.01
 			sv.AddRows([]Row{{Name: "cut", Lower: bound, Upper: math.Inf(1), Index: idx, Value: val}})
