@@ -61,8 +61,9 @@
 // the caller's own local search (with the basis of the LP that completed
 // it, as a warm start) at the same call points as Settings.Heuristic; the
 // local search runs on a goroutine of its own until the next call point,
-// where its answer is taken and checked the same way. Settings.Progress receives the
-// incumbent, bound, gap, nodes and elapsed time.
+// where its answer is taken and checked the same way (so its timing does
+// not change the path). Settings.Progress receives the incumbent, bound,
+// gap, nodes and elapsed time.
 //
 // The search is deterministic: the same model, settings and seed give the
 // same path and the same answer (a time limit, by nature, may stop it at a
