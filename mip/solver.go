@@ -155,22 +155,28 @@ func newSearch(ctx context.Context, m *lp.Model, set Settings) *search {
 
 func (s *search) elapsed() time.Duration { return time.Since(s.started) }
 
-// pastTime reports whether the search is cancelled or past its time limit.
-func (s *search) pastTime() bool {
-	return s.ctx.Err() != nil || (!s.deadline.IsZero() && time.Now().After(s.deadline))
+// timeStop returns Cancelled when the search's context has ended,
+// TimeLimit when it is past its time limit, and Finished otherwise.
+func (s *search) timeStop() StopReason {
+	switch {
+	case s.ctx.Err() != nil:
+		return Cancelled
+	case !s.deadline.IsZero() && time.Now().After(s.deadline):
+		return TimeLimit
+	}
+	return Finished
 }
+
+// pastTime reports whether the search is cancelled or past its time limit.
+func (s *search) pastTime() bool { return s.timeStop() != Finished }
 
 // limitReached checks time, nodes and cancellation, and records why.
 func (s *search) limitReached() bool {
 	if s.stopped != Finished && s.stopped != LPFailure {
 		return true
 	}
-	if s.ctx.Err() != nil {
-		s.stopped = Cancelled
-		return true
-	}
-	if !s.deadline.IsZero() && time.Now().After(s.deadline) {
-		s.stopped = TimeLimit
+	if r := s.timeStop(); r != Finished {
+		s.stopped = r
 		return true
 	}
 	if s.set.NodeLimit > 0 && s.nodes >= s.set.NodeLimit {
