@@ -51,6 +51,9 @@ func (s *search) run(starts [][]float64) Result {
 		return s.result(Limit)
 	}
 	s.lps = lps
+	if s.startBasis != nil {
+		_ = lps.SetBasis(*s.startBasis)
+	}
 	n := p.n
 	s.glo = append([]float64(nil), p.lower...)
 	s.gup = append([]float64(nil), p.upper...)
@@ -81,6 +84,7 @@ func (s *search) run(starts [][]float64) Result {
 	// Root LP.
 	r := s.lpSolve(inf, 0)
 	s.lpSolved = r.Status == lp.Optimal
+	s.rootIters = s.iters
 	s.nodes = 1
 	s.lateStart()
 	switch r.Status {
@@ -443,9 +447,10 @@ func (s *search) complete(y []float64) ([]float64, *lp.Basis, bool) {
 }
 
 // callHeuristic asks the caller's Heuristic for candidates, takes the
-// answer of the Improve started at the last call point (waiting for it),
-// and starts Improve again when the incumbent changed since Improve last
-// saw it.
+// answer of the helper goroutine started at the last call point (waiting
+// for it), and starts a new one when there is work for it: Improve, when
+// the incumbent changed since Improve last saw it, then the sub-MIP of the
+// incumbent and x (rins.go), when prepareRINS offers one.
 func (s *search) callHeuristic(x []float64) {
 	if s.set.Heuristic != nil {
 		for _, c := range s.set.Heuristic(append([]float64(nil), x...)) {
@@ -453,17 +458,48 @@ func (s *search) callHeuristic(x []float64) {
 		}
 	}
 	s.joinImprove(false)
-	if s.set.Improve == nil || s.incX == nil || s.incObj == s.improvedObj || s.pastTime() {
+	if s.incX == nil || s.pastTime() {
+		return
+	}
+	improve := s.set.Improve
+	if s.incObj == s.improvedObj {
+		improve = nil
+	}
+	job := s.prepareRINS(x)
+	if improve == nil && job == nil {
 		return
 	}
 	// The point Improve returns, once the incumbent, is offered again at
 	// once: a caller that stopped early can go on from it.
 	s.improvedObj = s.incObj
 	ctx, stop := context.WithCancel(s.ctx)
-	answer := make(chan []float64, 1)
+	answer := make(chan helperAnswer, 1)
 	inc, basis := append([]float64(nil), s.incX...), s.incBasis
-	go func() { answer <- s.set.Improve(ctx, inc, basis) }()
+	set, deadline := s.set, s.deadline
+	go func() {
+		var out helperAnswer
+		if improve != nil {
+			if y := improve(ctx, inc, basis); y != nil {
+				out.points = append(out.points, y)
+			}
+		}
+		if job != nil && ctx.Err() == nil {
+			y, its := runRINS(ctx, job, set, deadline)
+			out.rinsIters = its
+			if y != nil {
+				out.points = append(out.points, y)
+			}
+		}
+		answer <- out
+	}()
 	s.improving, s.stopImprove = answer, stop
+}
+
+// helperAnswer is what the goroutine started at a call point hands back:
+// the points of Improve and of the sub-MIP, and the sub-MIP's iterations.
+type helperAnswer struct {
+	points    [][]float64
+	rinsIters int
 }
 
 // joinImprove waits for the running Improve, if any, and tries its answer.
@@ -482,7 +518,7 @@ func (s *search) joinImprove(stop bool) {
 	if stop {
 		s.stopImprove()
 	}
-	var y []float64
+	var y helperAnswer
 	if s.deadline.IsZero() {
 		y = <-s.improving
 	} else {
@@ -498,8 +534,9 @@ func (s *search) joinImprove(stop bool) {
 	}
 	s.stopImprove()
 	s.improving, s.stopImprove = nil, nil
-	if y != nil {
-		s.tryCandidate(y)
+	s.rinsIters += y.rinsIters
+	for _, c := range y.points {
+		s.tryCandidate(c)
 	}
 }
 

@@ -183,10 +183,13 @@ type Settings struct {
 
 	// NoCuts turns off root cutting planes; NoStrongBranching turns off
 	// strong branching (pseudocosts alone); NoHeuristics turns off the
-	// built-in rounding and diving. For experiments and cross-checks.
+	// built-in rounding, diving and sub-MIPs. For experiments and
+	// cross-checks.
 	NoCuts            bool
 	NoStrongBranching bool
 	NoHeuristics      bool
+	// NoRINS turns off the sub-MIP heuristic (rins.go).
+	NoRINS bool
 }
 
 func (s Settings) withDefaults() Settings {

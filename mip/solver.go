@@ -106,8 +106,17 @@ type search struct {
 	improvedObj float64
 	// improving receives the answer of the running Improve (nil: none
 	// running); stopImprove cancels its context.
-	improving   chan []float64
+	improving   chan helperAnswer
 	stopImprove context.CancelFunc
+	// rinsDone holds the keys of the sub-MIPs searched (rins.go) and
+	// rinsIters the simplex iterations they took; rootIters is the first
+	// root LP's. For a sub-MIP, startBasis is the basis its root LP starts
+	// from and iterLimit its work limit (0: none).
+	rinsDone   map[uint64]bool
+	rinsIters  int
+	rootIters  int
+	startBasis *lp.Basis
+	iterLimit  int
 
 	prunedMin float64 // least bound of nodes pruned by the gap rule or lost to LP failure
 	lpLost    bool    // some subproblem was given up after LP failure
@@ -179,7 +188,7 @@ func (s *search) limitReached() bool {
 		s.stopped = r
 		return true
 	}
-	if s.set.NodeLimit > 0 && s.nodes >= s.set.NodeLimit {
+	if (s.set.NodeLimit > 0 && s.nodes >= s.set.NodeLimit) || (s.iterLimit > 0 && s.iters >= s.iterLimit) {
 		s.stopped = NodeLimit
 		return true
 	}

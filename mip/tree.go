@@ -177,7 +177,7 @@ func (s *search) processNode(nd *node, warm bool) (kids []*node, ok bool) {
 				s.dive(r.X)
 			}
 		}
-		if (s.set.Heuristic != nil || s.set.Improve != nil) && (s.nodes <= earlyHeuristicNodes || s.nodes%s.set.HeuristicFreq == 0) {
+		if (s.set.Heuristic != nil || s.set.Improve != nil || s.rinsOn()) && (s.nodes <= earlyHeuristicNodes || s.nodes%s.set.HeuristicFreq == 0) {
 			s.callHeuristic(r.X)
 		}
 		if bound >= s.pruneLimit() {
