@@ -196,8 +196,10 @@ func (s *Solver) pivotRow(rho []float64, row []float64) {
 // variables and lists in s.rowNZ the variables whose entry may be nonzero,
 // touching only the rows where ρ is nonzero and their entries. Entries
 // outside the list are zero. rhoNZ lists the rows where ρ may be nonzero
-// (nil: anywhere).
-func (s *Solver) pivotRowSparse(rho []float64, rhoNZ []int) {
+// (nil: anywhere). With nonbasicOnly the entries of basic columns are left
+// out (they stay zero), read from the partitioned copy s.part, which must
+// be up to date.
+func (s *Solver) pivotRowSparse(rho []float64, rhoNZ []int, nonbasicOnly bool) {
 	row, mark := s.alphaRow, s.rowMark
 	if s.rowDirty {
 		for v := range row {
@@ -213,18 +215,22 @@ func (s *Solver) pivotRowSparse(rho []float64, rhoNZ []int) {
 	}
 	nz := s.rowNZ[:0]
 	n := s.n
+	idx, val, ends := s.csr.Index, s.csr.Value, s.csr.Start[1:]
+	if nonbasicOnly {
+		idx, val, ends = s.part.idx, s.part.val, s.part.end
+	}
 	add := func(i int, r float64) {
 		v := n + i
 		row[v] = -r
 		mark[v] = true
 		nz = append(nz, v)
-		for p := s.csr.Start[i]; p < s.csr.Start[i+1]; p++ {
-			j := s.csr.Index[p]
+		for p := s.csr.Start[i]; p < ends[i]; p++ {
+			j := idx[p]
 			if !mark[j] {
 				mark[j] = true
 				nz = append(nz, j)
 			}
-			row[j] += r * s.csr.Value[p]
+			row[j] += r * val[p]
 		}
 	}
 	if rhoNZ != nil {
@@ -815,6 +821,11 @@ func (s *Solver) dualSimplex(lim *limits, useCutoff bool) Status {
 			dirty = true
 		}
 		if dirty {
+			// New solve or new factorisation (which may have replaced
+			// dependent columns): the statuses may have changed.
+			s.syncPartition()
+		}
+		if dirty {
 			s.infList = s.infList[:0]
 			for p := range pinf {
 				pinf[p] = 0
@@ -862,7 +873,7 @@ func (s *Solver) dualSimplex(lim *limits, useCutoff bool) Status {
 		s.unitNZ[0] = r
 		rhoNZ := s.keepNZ(&s.rhoNZ, s.fac.btranSparse(rho, s.unitNZ[:]))
 		rhoWas = rhoNZ
-		s.pivotRowSparse(rho, rhoNZ)
+		s.pivotRowSparse(rho, rhoNZ, true)
 		// Bound-flipping ratio test with Harris tolerances.
 		usedTol := pivotTol
 		q, flips, st := s.dualRatioTest(sgn, math.Abs(delta), row, usedTol)
@@ -1011,6 +1022,8 @@ func (s *Solver) dualSimplex(lim *limits, useCutoff bool) Status {
 		default:
 			s.stat[leave] = AtUpper
 		}
+		s.partitionEnter(q)
+		s.partitionLeave(leave)
 		s.fac.updateSparse(r, alpha, alphaNZ)
 		s.setInfeasibility(r, ptol)
 		s.iterations++
@@ -1372,7 +1385,7 @@ func (s *Solver) primalSimplex(lim *limits) Status {
 		}
 		rho[r] = 1
 		s.fac.btran(rho)
-		s.pivotRowSparse(rho, nil)
+		s.pivotRowSparse(rho, nil, false)
 		if math.Abs(arq-row[q]) > pivotMismatchTol*(1+math.Abs(arq)) && s.fac.numUpdates() > 0 {
 			if !s.refactor() {
 				return NumericalTrouble

@@ -103,7 +103,10 @@ type Solver struct {
 	rowMark                      []bool
 	rowDirty                     bool // alphaRow must be cleared in full
 	cands                        []ratioCandidate
-	flips                        []int
+	// part is the row-wise copy of A partitioned into nonbasic and basic
+	// entries (partition.go), kept by the dual simplex.
+	part  rowPartition
+	flips []int
 }
 
 // State is a saved iterate of a Solver (bounds and basis), for strong
