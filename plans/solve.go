@@ -91,7 +91,7 @@ func Solve(ctx context.Context, c *Case, opts SolveOptions) (*Result, error) {
 			Integers: countTrue(m.LP.Integer),
 		},
 	}
-	set := mip.Settings{TimeLimit: opts.TimeLimit, RelGap: opts.Gap, NodeLimit: opts.NodeLimit}
+	set := mip.Settings{TimeLimit: opts.TimeLimit, RelGap: opts.Gap, NodeLimit: opts.NodeLimit, NoRINS: opts.NoRINS}
 	if opts.Progress != nil {
 		set.Progress = func(p mip.Progress) {
 			opts.Progress(Progress{

@@ -27,6 +27,8 @@ type SolveOptions struct {
 	// NoImprove turns off the local search on the incumbent's unit counts
 	// (solve_improve.go).
 	NoImprove bool
+	// NoRINS turns off the search's sub-MIP heuristic (mip/rins.go).
+	NoRINS bool
 	// NoSeparation keeps the model's cut-set rows but does not separate
 	// further ones at the root (for measuring what separation buys).
 	NoSeparation bool
