@@ -25,7 +25,9 @@ const (
 	// rinsNodes is the node limit of one sub-search.
 	rinsNodes = 500
 	// The sub-searches together may use rinsIterShare of the search's own
-	// simplex iterations, plus as many as its first root LP took: a work
+	// simplex iterations, plus as many as it took up to the end of its
+	// first root LP (on large models the first sub-search runs beside the
+	// root cut rounds, which leave the second core idle): a work
 	// budget, not a time share, so that the search's path does not depend
 	// on the machine. The search waits for a sub-search at its next call
 	// point; on two cores the budget keeps that wait short.
@@ -45,10 +47,12 @@ type rinsJob struct {
 }
 
 // prepareRINS returns the sub-MIP of the incumbent and the LP point x (in
-// the columns of the search's LP), or nil when there is no incumbent, too
-// few columns agree, or the same columns agree at the same values as in the
-// last sub-MIP. The model is the LP's (its cuts included, valid for every
-// integer point) with the global domain, not the node's.
+// the columns of the search's LP), or nil when there is no incumbent, the
+// iteration budget is spent, too few columns agree, or the same columns
+// agreed at the same values for an earlier sub-MIP. The model is the LP's
+// (its cuts included, valid for every integer point) with the global
+// domain, not the node's. Cost O(columns) when it refuses, O(nonzeros)
+// when it accepts.
 func (s *search) prepareRINS(x []float64) *rinsJob {
 	p := s.p
 	if !s.rinsOn() || s.incX == nil || p.nInt == 0 || len(x) != p.n {
@@ -58,24 +62,18 @@ func (s *search) prepareRINS(x []float64) *rinsJob {
 	if budget < rinsMinIters {
 		return nil
 	}
-	m := s.lps.Model().Clone()
+	agree := func(j int) bool { return p.isInt[j] && math.Abs(x[j]-s.incX[j]) <= s.set.IntTol }
 	h := fnv.New64a()
 	var buf [8]byte
 	fixed := 0
 	for j := 0; j < p.n; j++ {
-		m.ColLower[j], m.ColUpper[j] = s.glo[j], s.gup[j]
-		if !p.isInt[j] {
+		if !agree(j) {
 			continue
 		}
-		v := s.incX[j]
-		if math.Abs(x[j]-v) > s.set.IntTol {
-			continue
-		}
-		m.ColLower[j], m.ColUpper[j] = v, v
 		fixed++
 		put64(buf[:], uint64(j))
 		h.Write(buf[:])
-		put64(buf[:], math.Float64bits(v))
+		put64(buf[:], math.Float64bits(s.incX[j]))
 		h.Write(buf[:])
 	}
 	if float64(fixed) < rinsMinFixed*float64(p.nInt) || fixed == p.nInt {
@@ -89,6 +87,13 @@ func (s *search) prepareRINS(x []float64) *rinsJob {
 		s.rinsDone = map[uint64]bool{}
 	}
 	s.rinsDone[key] = true
+	m := s.lps.Model().Clone()
+	for j := 0; j < p.n; j++ {
+		m.ColLower[j], m.ColUpper[j] = s.glo[j], s.gup[j]
+		if agree(j) {
+			m.ColLower[j], m.ColUpper[j] = s.incX[j], s.incX[j]
+		}
+	}
 	return &rinsJob{model: m, basis: s.lps.Basis(), start: append([]float64(nil), s.incX...), iterLimit: budget}
 }
 

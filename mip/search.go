@@ -502,15 +502,15 @@ type helperAnswer struct {
 	rinsIters int
 }
 
-// joinImprove waits for the running Improve, if any, and tries its answer.
-// With stop its context is cancelled first (the search is ending at a time
-// limit or by cancellation), and so it is when the time limit passes
-// while the search waits.
+// joinImprove waits for the helper goroutine (Improve, then the sub-MIP),
+// if one runs, and tries its answers. With stop its context is cancelled
+// first (the search is ending at a time limit or by cancellation), and so
+// it is when the time limit passes while the search waits.
 //
-// Improve runs beside the search between two call points (on large models
-// the root cut rounds, on others a stretch of nodes), but its answer is
-// taken only at the next call point or at the end, so the search's path
-// does not depend on how long Improve takes.
+// The helper runs beside the search between two call points (on large
+// models the root cut rounds, on others a stretch of nodes), but its
+// answers are taken only at the next call point or at the end, so the
+// search's path does not depend on how long it takes.
 func (s *search) joinImprove(stop bool) {
 	if s.improving == nil {
 		return
