@@ -34,7 +34,10 @@
 // while that keeps the leaving variable infeasible (bound flipping, "long
 // step"), then picks the largest pivot within Harris' tolerance; the primal
 // ratio test is Harris' two-pass test. Leaving rows are priced by dual
-// steepest edge, entering columns of the primal simplex by Devex. After a
+// steepest edge, entering columns of the primal simplex by Devex. The dual
+// simplex forms its pivot row from a row-wise copy of A that lists each
+// row's nonbasic entries first (partition.go), so basic columns cost
+// nothing there. After a
 // cost change the primal simplex continues from the old, primal feasible
 // basis. Infeasibility and unboundedness are reported only with a
 // certificate (Result.Ray) that the solver has checked. Long runs of degenerate pivots in an unperturbed solve
