@@ -41,11 +41,7 @@ func (s *Solver) syncPartition() {
 	}
 	for j := 0; j < s.n; j++ {
 		if b := s.stat[j] == Basic; b != pt.basic[j] {
-			if b {
-				s.partitionEnter(j)
-			} else {
-				s.partitionLeave(j)
-			}
+			s.partitionMove(j, b)
 		}
 	}
 }
@@ -82,55 +78,61 @@ func (s *Solver) buildPartition() {
 	}
 }
 
-// partitionEnter moves the entries of column j, which has become basic,
-// to the basic part of their rows. Cost O(entries of j · row length).
-func (s *Solver) partitionEnter(j int) {
+// partitionMove moves the entries of column j, whose status has become
+// basic or nonbasic as basic says, to that part of their rows: to the end
+// of the nonbasic part and across the boundary, or from the basic part to
+// their place in the nonbasic part's column order. Cost O(entries of j ·
+// row length).
+func (s *Solver) partitionMove(j int, basic bool) {
 	if j >= s.n {
 		return
 	}
 	pt := &s.part
-	pt.basic[j] = true
+	pt.basic[j] = basic
 	rows, _ := s.column(j)
 	for _, i := range rows {
 		lo, end := s.csr.Start[i], pt.end[i]
-		p, found := slices.BinarySearch(pt.idx[lo:end], j)
-		if !found {
-			panic("lp: partition lost a nonbasic entry")
+		if basic {
+			pt.toBasic(lo, end, j)
+			pt.end[i] = end - 1
+		} else {
+			pt.toNonbasic(lo, end, s.csr.Start[i+1], j)
+			pt.end[i] = end + 1
 		}
-		p += lo
-		v := pt.val[p]
-		copy(pt.idx[p:end-1], pt.idx[p+1:end])
-		copy(pt.val[p:end-1], pt.val[p+1:end])
-		pt.idx[end-1], pt.val[end-1] = j, v
-		pt.end[i] = end - 1
 	}
 }
 
-// partitionLeave moves the entries of column j, which has left the basis,
-// to their places among the nonbasic entries of their rows.
-func (s *Solver) partitionLeave(j int) {
-	if j >= s.n {
-		return
+// toBasic moves column j's entry, among the nonbasic entries lo…end−1 of
+// its row, to position end−1, the first of the basic part once end is
+// lowered.
+func (pt *rowPartition) toBasic(lo, end, j int) {
+	p, found := slices.BinarySearch(pt.idx[lo:end], j)
+	if !found {
+		panic("lp: partition lost a nonbasic entry")
 	}
-	pt := &s.part
-	pt.basic[j] = false
-	rows, _ := s.column(j)
-	for _, i := range rows {
-		lo, end, hi := s.csr.Start[i], pt.end[i], s.csr.Start[i+1]
-		b := end
-		for b < hi && pt.idx[b] != j {
-			b++
-		}
-		if b == hi {
-			panic("lp: partition lost a basic entry")
-		}
-		v := pt.val[b]
-		pt.idx[b], pt.val[b] = pt.idx[end], pt.val[end]
-		p, _ := slices.BinarySearch(pt.idx[lo:end], j)
-		p += lo
-		copy(pt.idx[p+1:end+1], pt.idx[p:end])
-		copy(pt.val[p+1:end+1], pt.val[p:end])
-		pt.idx[p], pt.val[p] = j, v
-		pt.end[i] = end + 1
+	p += lo
+	v := pt.val[p]
+	copy(pt.idx[p:end-1], pt.idx[p+1:end])
+	copy(pt.val[p:end-1], pt.val[p+1:end])
+	pt.idx[end-1], pt.val[end-1] = j, v
+}
+
+// toNonbasic moves column j's entry, among the basic entries end…hi−1 of
+// its row, to its place in the nonbasic entries lo…end, which end+1 then
+// closes.
+func (pt *rowPartition) toNonbasic(lo, end, hi, j int) {
+	b := end
+	for b < hi && pt.idx[b] != j {
+		b++
 	}
+	if b == hi {
+		panic("lp: partition lost a basic entry")
+	}
+	v := pt.val[b]
+	pt.idx[b], pt.val[b] = pt.idx[end], pt.val[end]
+	p, _ := slices.BinarySearch(pt.idx[lo:end], j)
+	p += lo
+	copy(pt.idx[p+1:end+1], pt.idx[p:end])
+	copy(pt.val[p+1:end+1], pt.val[p:end])
+	pt.idx[p], pt.val[p] = j, v
 }

@@ -1022,8 +1022,8 @@ func (s *Solver) dualSimplex(lim *limits, useCutoff bool) Status {
 		default:
 			s.stat[leave] = AtUpper
 		}
-		s.partitionEnter(q)
-		s.partitionLeave(leave)
+		s.partitionMove(q, true)
+		s.partitionMove(leave, false)
 		s.fac.updateSparse(r, alpha, alphaNZ)
 		s.setInfeasibility(r, ptol)
 		s.iterations++
