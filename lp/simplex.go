@@ -824,8 +824,6 @@ func (s *Solver) dualSimplex(lim *limits, useCutoff bool) Status {
 			// New solve or new factorisation (which may have replaced
 			// dependent columns): the statuses may have changed.
 			s.syncPartition()
-		}
-		if dirty {
 			s.infList = s.infList[:0]
 			for p := range pinf {
 				pinf[p] = 0

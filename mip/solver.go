@@ -104,14 +104,17 @@ type search struct {
 	incObj   float64 // its internal objective; +Inf when none
 	// improvedObj is incObj when Settings.Improve last saw the incumbent.
 	improvedObj float64
-	// improving receives the answer of the running Improve (nil: none
-	// running); stopImprove cancels its context.
+	// improving receives the answers of the running helper goroutine
+	// (Improve, then the sub-MIP; nil: none running); stopImprove cancels
+	// its context.
 	improving   chan helperAnswer
 	stopImprove context.CancelFunc
 	// rinsDone holds the keys of the sub-MIPs searched (rins.go) and
-	// rinsIters the simplex iterations they took; rootIters is the first
-	// root LP's. For a sub-MIP, startBasis is the basis its root LP starts
-	// from and iterLimit its work limit (0: none).
+	// rinsIters the simplex iterations they took; rootIters counts the
+	// search's iterations up to the end of its first root LP. For a
+	// sub-MIP, startBasis is the basis its root LP starts from and
+	// iterLimit its work limit (0: none; reached, the search stops as at
+	// its node limit).
 	rinsDone   map[uint64]bool
 	rinsIters  int
 	rootIters  int
