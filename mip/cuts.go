@@ -85,21 +85,29 @@ func (c *cut) row(name string) lp.Row {
 // key identifies a cut (exact coefficients), against duplicates: a 64-bit
 // FNV-1a hash of indices, coefficient bits and sides.
 func (c *cut) key() uint64 {
-	h := uint64(14695981039346656037)
-	mix := func(v uint64) {
-		for k := 0; k < 8; k++ {
-			h ^= v & 0xff
-			h *= 1099511628211
-			v >>= 8
-		}
-	}
+	h := newFNV()
 	for k, j := range c.idx {
-		mix(uint64(j))
-		mix(math.Float64bits(c.val[k]))
+		h.mix(uint64(j))
+		h.mix(math.Float64bits(c.val[k]))
 	}
-	mix(math.Float64bits(c.lower))
-	mix(math.Float64bits(c.upper))
-	return h
+	h.mix(math.Float64bits(c.lower))
+	h.mix(math.Float64bits(c.upper))
+	return uint64(h)
+}
+
+// fnvHash is a 64-bit FNV-1a hash fed eight bytes at a time (least
+// significant first), for the keys of cuts and of sub-MIPs.
+type fnvHash uint64
+
+func newFNV() fnvHash { return 14695981039346656037 }
+
+// mix feeds the eight bytes of v to the hash.
+func (h *fnvHash) mix(v uint64) {
+	for k := 0; k < 8; k++ {
+		*h ^= fnvHash(v & 0xff)
+		*h *= 1099511628211
+		v >>= 8
+	}
 }
 
 // numericallySafe reports whether the cut's coefficients have a moderate

@@ -2,7 +2,6 @@ package mip
 
 import (
 	"context"
-	"hash/fnv"
 	"math"
 	"time"
 
@@ -63,23 +62,20 @@ func (s *search) prepareRINS(x []float64) *rinsJob {
 		return nil
 	}
 	agree := func(j int) bool { return p.isInt[j] && math.Abs(x[j]-s.incX[j]) <= s.set.IntTol }
-	h := fnv.New64a()
-	var buf [8]byte
+	h := newFNV()
 	fixed := 0
 	for j := 0; j < p.n; j++ {
 		if !agree(j) {
 			continue
 		}
 		fixed++
-		put64(buf[:], uint64(j))
-		h.Write(buf[:])
-		put64(buf[:], math.Float64bits(s.incX[j]))
-		h.Write(buf[:])
+		h.mix(uint64(j))
+		h.mix(math.Float64bits(s.incX[j]))
 	}
 	if float64(fixed) < rinsMinFixed*float64(p.nInt) || fixed == p.nInt {
 		return nil
 	}
-	key := h.Sum64()
+	key := uint64(h)
 	if s.rinsDone[key] {
 		return nil
 	}
@@ -99,12 +95,6 @@ func (s *search) prepareRINS(x []float64) *rinsJob {
 
 // rinsOn reports whether the settings allow the sub-MIP heuristic.
 func (s *search) rinsOn() bool { return !s.set.NoRINS && !s.set.NoHeuristics }
-
-func put64(b []byte, v uint64) {
-	for i := range 8 {
-		b[i] = byte(v >> (8 * i))
-	}
-}
 
 // runRINS searches the sub-MIP of job until its node or iteration limit,
 // the deadline (zero: none) or the end of ctx. It returns a point better

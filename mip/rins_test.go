@@ -12,8 +12,9 @@ import (
 // the sub-MIP must fix exactly the columns where the root LP agrees with
 // that start, and its answer must be the optimum of that neighbourhood,
 // found here by enumeration (bruteForce), and feasible in the full model.
-// A second request for the same neighbourhood, one beyond the iteration
-// budget, and one where too few columns agree are refused.
+// Through a call point, the answer becomes the incumbent. A second request
+// for the same neighbourhood, one beyond the iteration budget, and one
+// where too few columns agree are refused.
 func TestRINS(t *testing.T) {
 	const n = 20
 	m := hardKnapsack(n, 2, 7)
@@ -65,6 +66,15 @@ func TestRINS(t *testing.T) {
 	if s.prepareRINS(x) != nil {
 		t.Error("the same neighbourhood was offered twice")
 	}
+	// Through the search: a call point starts the sub-MIP on the helper
+	// goroutine, and the next join takes its point as the incumbent and
+	// counts its iterations against the budget.
+	s.rinsDone = nil
+	s.callHeuristic(x)
+	s.joinHelper(false)
+	if s.rinsIters != its || math.Abs(s.incObj-want) > 1e-6 {
+		t.Errorf("after a call point and its join: incumbent %v, sub-MIP iterations %d; want %v and %d", s.incObj, s.rinsIters, want, its)
+	}
 	// Another point, so the neighbourhood is new: refused for budget
 	// while the sub-MIPs have spent it, then for too few fixed columns.
 	other := append([]float64(nil), x...)
@@ -75,6 +85,7 @@ func TestRINS(t *testing.T) {
 		}
 	}
 	s.rinsIters = s.rootIters + s.iters
+	s.rinsDone = nil
 	if s.prepareRINS(other) != nil {
 		t.Error("a sub-MIP beyond the iteration budget was offered")
 	}

@@ -162,7 +162,7 @@ func (s *search) nextID() int { s.ids++; return s.ids }
 
 // finish turns the search state into a Result.
 func (s *search) finish() Result {
-	s.joinImprove(s.stopped == TimeLimit || s.stopped == Cancelled)
+	s.joinHelper(s.stopped == TimeLimit || s.stopped == Cancelled)
 	if s.stopped == Finished || s.stopped == LPFailure {
 		if s.queue.Len() == 0 {
 			if s.incX != nil {
@@ -203,7 +203,7 @@ func (s *search) afterRootFailure(r lp.Result) Result {
 	switch r.Status {
 	case lp.ObjectiveCutoff, lp.Infeasible:
 		// Valid cuts and the cutoff exclude every better point.
-		s.joinImprove(false)
+		s.joinHelper(false)
 		s.curBound = inf
 		if s.incX != nil {
 			s.notePruned(s.pruneLimit())
@@ -457,7 +457,7 @@ func (s *search) callHeuristic(x []float64) {
 			s.tryCandidate(c)
 		}
 	}
-	s.joinImprove(false)
+	s.joinHelper(false)
 	if s.incX == nil || s.pastTime() {
 		return
 	}
@@ -492,7 +492,7 @@ func (s *search) callHeuristic(x []float64) {
 		}
 		answer <- out
 	}()
-	s.improving, s.stopImprove = answer, stop
+	s.helper, s.stopHelper = answer, stop
 }
 
 // helperAnswer is what the goroutine started at a call point hands back:
@@ -502,7 +502,7 @@ type helperAnswer struct {
 	rinsIters int
 }
 
-// joinImprove waits for the helper goroutine (Improve, then the sub-MIP),
+// joinHelper waits for the helper goroutine (Improve, then the sub-MIP),
 // if one runs, and tries its answers. With stop its context is cancelled
 // first (the search is ending at a time limit or by cancellation), and so
 // it is when the time limit passes while the search waits.
@@ -511,29 +511,29 @@ type helperAnswer struct {
 // models the root cut rounds, on others a stretch of nodes), but its
 // answers are taken only at the next call point or at the end, so the
 // search's path does not depend on how long it takes.
-func (s *search) joinImprove(stop bool) {
-	if s.improving == nil {
+func (s *search) joinHelper(stop bool) {
+	if s.helper == nil {
 		return
 	}
 	if stop {
-		s.stopImprove()
+		s.stopHelper()
 	}
 	var y helperAnswer
 	if s.deadline.IsZero() {
-		y = <-s.improving
+		y = <-s.helper
 	} else {
 		// The time limit holds while the search waits.
 		wait := time.NewTimer(time.Until(s.deadline))
 		select {
-		case y = <-s.improving:
+		case y = <-s.helper:
 		case <-wait.C:
-			s.stopImprove()
-			y = <-s.improving
+			s.stopHelper()
+			y = <-s.helper
 		}
 		wait.Stop()
 	}
-	s.stopImprove()
-	s.improving, s.stopImprove = nil, nil
+	s.stopHelper()
+	s.helper, s.stopHelper = nil, nil
 	s.rinsIters += y.rinsIters
 	for _, c := range y.points {
 		s.tryCandidate(c)

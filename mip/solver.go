@@ -104,11 +104,11 @@ type search struct {
 	incObj   float64 // its internal objective; +Inf when none
 	// improvedObj is incObj when Settings.Improve last saw the incumbent.
 	improvedObj float64
-	// improving receives the answers of the running helper goroutine
-	// (Improve, then the sub-MIP; nil: none running); stopImprove cancels
+	// helper receives the answers of the running helper goroutine
+	// (Improve, then the sub-MIP; nil: none running); stopHelper cancels
 	// its context.
-	improving   chan helperAnswer
-	stopImprove context.CancelFunc
+	helper     chan helperAnswer
+	stopHelper context.CancelFunc
 	// rinsDone holds the keys of the sub-MIPs searched (rins.go) and
 	// rinsIters the simplex iterations they took; rootIters counts the
 	// search's iterations up to the end of its first root LP. For a
@@ -270,7 +270,7 @@ func (s *search) syncBounds() {
 func (s *search) result(status Status) Result {
 	// Every path joins Improve before it decides the status; this only
 	// makes sure no Improve outlives the search.
-	s.joinImprove(true)
+	s.joinHelper(true)
 	p := s.p
 	r := Result{Status: status, Stopped: s.stopped, Nodes: s.nodes, LPIterations: s.iters, Time: s.elapsed(), Cuts: s.nCuts}
 	if status == Infeasible {
