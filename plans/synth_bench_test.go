@@ -2,6 +2,7 @@ package plans
 
 import (
 	"context"
+	"fmt"
 	"testing"
 	"time"
 
@@ -32,6 +33,23 @@ func BenchmarkSolve(b *testing.B) {
 // go test -run '^$' -bench SolveNodes -benchtime 1x ./plans
 func BenchmarkSolveNodes(b *testing.B) {
 	benchSolve(b, SyntheticSizes[:2], SolveOptions{Gap: benchGap, NodeLimit: benchNodes})
+}
+
+// BenchmarkSolveHorizon solves the synthetic 10-site case of seed 1 over
+// 3, 5, 7 and 10 years, to gap 1e-4 or 60 s: the length of the horizon,
+// more than the number of sites, is what makes these cases hard. Measured
+// on 2026-12-03: over 3, 5 and 7 years it proves optimality in 0.07 s, 1.1 s
+// (the S case) and 38 s (4,709 nodes); over 10 years it stops at 1.03 %
+// after 60 s, and at 0.75 % after 600 s alone, when CBC 2.10.8 had 0.63 %
+// after 518 s on the exported MPS. (50 sites over 3 years proves in 23 s;
+// over 5 years it stops at 0.60 % after 180 s.)
+// Run: go test -run '^$' -bench SolveHorizon -benchtime 1x ./plans
+func BenchmarkSolveHorizon(b *testing.B) {
+	var sizes []SyntheticSize
+	for _, years := range []int{3, 5, 7, 10} {
+		sizes = append(sizes, SyntheticSize{fmt.Sprintf("10x%d", years), 10, years})
+	}
+	benchSolve(b, sizes, SolveOptions{Gap: benchGap, TimeLimit: benchTimeLimit})
 }
 
 // benchNodes is the node limit of BenchmarkSolveNodes.
