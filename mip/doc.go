@@ -40,8 +40,9 @@
 //   - Nodes: each node LP is warm-started from its parent's basis by the
 //     dual simplex, with the incumbent (minus the allowed gap) as objective
 //     cutoff; bounds are propagated on rows and on the objective cutoff,
-//     reduced costs fix columns inside the subtree, and a few pool cover
-//     cuts that the node's LP point violates re-enter the LP. Each node stores
+//     reduced costs fix columns inside the subtree, and pool cuts (covers
+//     and the caller's, not Gomory's) that the node's LP point violates
+//     re-enter the LP, up to a hundred over the tree. Each node stores
 //     only its own bound changes, chained to its parent's.
 //   - Branching: reliability branching — pseudocosts with the product score,
 //     strong branching with an iteration cap on columns whose pseudocosts

@@ -398,6 +398,55 @@ func TestSeparateCallback(t *testing.T) {
 	}
 }
 
+// TestPoolToLP: at a node, the pool's cover cuts and the caller's cuts
+// that the LP point violates re-enter the LP; Gomory cuts, cuts already in
+// the LP and cuts the point satisfies stay out, and nothing enters once
+// maxTreeCuts have. The model is the odd cycle of TestSeparateCallback
+// after a root-only search; the pool gets the clique row x+y+z ≤ 1 (valid
+// at every integer point) as each kind, and the point is its LP optimum,
+// every column at 0.5, which breaks the clique row by 0.5.
+func TestPoolToLP(t *testing.T) {
+	m := lp.NewModel("triangle")
+	m.Sense = lp.Maximize
+	x := m.AddIntCol("x", 1, 0, 1)
+	y := m.AddIntCol("y", 1.1, 0, 1)
+	z := m.AddIntCol("z", 1.2, 0, 1)
+	for _, p := range [][2]int{{x, y}, {y, z}, {x, z}} {
+		m.AddRow("pair", -lp.Inf, 1, p[:], []float64{1, 1})
+	}
+	set := Settings{NoHeuristics: true, NoCuts: true, NoStrongBranching: true, NodeLimit: 1}.withDefaults()
+	s := newSearch(context.Background(), m, set)
+	s.run(nil)
+	clique := func(kind string) *cut {
+		return &cut{idx: []int{x, y, z}, val: []float64{1, 1, 1}, lower: math.Inf(-1), upper: 1, kind: kind, lpRow: -1}
+	}
+	slack := &cut{idx: []int{x}, val: []float64{1}, lower: math.Inf(-1), upper: 1, kind: "caller", lpRow: -1}
+	gomory, cover, caller := clique("gomory"), clique("cover"), clique("caller")
+	s.pool = []*cut{gomory, slack, cover, caller}
+	rows := s.lps.NumRows()
+	pt := []float64{0.5, 0.5, 0.5}
+	if !s.poolToLP(pt) {
+		t.Fatal("no pool cut entered the LP")
+	}
+	if cover.lpRow != rows || caller.lpRow != rows+1 || s.lps.NumRows() != rows+2 || len(s.rows) != rows+2 {
+		t.Errorf("cover in row %d, caller's cut in row %d, LP rows %d, row infos %d; want %d, %d, %d, %d",
+			cover.lpRow, caller.lpRow, s.lps.NumRows(), len(s.rows), rows, rows+1, rows+2, rows+2)
+	}
+	if gomory.lpRow != -1 || slack.lpRow != -1 {
+		t.Errorf("the Gomory cut (row %d) or the satisfied cut (row %d) entered the LP", gomory.lpRow, slack.lpRow)
+	}
+	if s.poolToLP(pt) {
+		t.Error("cuts entered twice")
+	}
+	again := clique("caller")
+	again.val = []float64{1, 1, 2} // another row, broken at pt
+	s.pool = append(s.pool, again)
+	s.treeCuts = maxTreeCuts
+	if s.poolToLP(pt) || again.lpRow != -1 {
+		t.Errorf("a cut entered past maxTreeCuts (row %d)", again.lpRow)
+	}
+}
+
 // TestImproveCallback checks the plumbing of Settings.Improve on a small
 // knapsack whose root LP is fractional: with the node limit at the root and
 // the built-in heuristics and cuts off, the search keeps its start point
