@@ -489,8 +489,8 @@ func (s *search) strongAllowed() bool {
 // over the whole tree, and reports whether it added any. The caller's
 // cuts are mostly ones the root rounds aged out of the LP; back where a
 // node's LP point needs them, they took the synthetic 10-site 7-year case
-// of seed 1 from 4,709 to 1,862 nodes and that of seed 2 from 11,245 to
-// 3,569 (BenchmarkSolveHorizon). Gomory cuts stay out: on the planning
+// of seed 1 (in BenchmarkSolveHorizon) from 4,709 to 1,862 nodes and that
+// of seed 2 from 11,245 to 3,569. Gomory cuts stay out: on the planning
 // models they slowed the node LPs more than they pruned.
 func (s *search) poolToLP(x []float64) bool {
 	if s.treeCuts >= maxTreeCuts {
@@ -498,7 +498,7 @@ func (s *search) poolToLP(x []float64) bool {
 	}
 	var rows []lp.Row
 	for _, c := range s.pool {
-		if c.lpRow >= 0 || c.kind == "gomory" || c.efficacy(x) <= minEfficacy {
+		if c.lpRow >= 0 || (c.kind != "cover" && c.kind != "caller") || c.efficacy(x) <= minEfficacy {
 			continue
 		}
 		c.lpRow = s.lps.NumRows() + len(rows)

@@ -41,10 +41,11 @@ func BenchmarkSolveNodes(b *testing.B) {
 // on 2026-12-03: over 3, 5 and 7 years it proves optimality in 0.06 s, 1.0 s
 // (the S case) and 30 s (1,862 nodes; 38 s and 4,709 nodes before the
 // caller's cuts could re-enter the LP in the tree); over 10 years it stops
-// at 0.94 % after 60 s (1.03 % before), and stopped at 0.75 % after 600 s
-// alone, when CBC 2.10.8 had 0.63 % after 518 s on the exported MPS and
-// HiGHS (npm highs, 600 s) a best plan 0.17 % below ours. (50 sites over 3
-// years proves in 23 s; over 5 years it stops at 0.60 % after 180 s.)
+// at 0.94 % after 60 s (1.03 % before) and 0.70 % after 300 s (before:
+// 0.75 % after 600 s). On its exported MPS, CBC 2.10.8 had 0.63 % after
+// 518 s, and HiGHS (npm highs) stopped at 600 s with a plan 0.17 % below
+// our best then. (50 sites over 3 years proves in 23 s; over 5 years it
+// stops at 0.60 % after 180 s.)
 // Run: go test -run '^$' -bench SolveHorizon -benchtime 1x ./plans
 func BenchmarkSolveHorizon(b *testing.B) {
 	var sizes []SyntheticSize
