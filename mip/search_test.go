@@ -350,14 +350,7 @@ func TestSmallCases(t *testing.T) {
 // break a pair row). With that row from the callback the root bound is the
 // optimum.
 func TestSeparateCallback(t *testing.T) {
-	m := lp.NewModel("triangle")
-	m.Sense = lp.Maximize
-	x := m.AddIntCol("x", 1, 0, 1)
-	y := m.AddIntCol("y", 1.1, 0, 1)
-	z := m.AddIntCol("z", 1.2, 0, 1)
-	for _, p := range [][2]int{{x, y}, {y, z}, {x, z}} {
-		m.AddRow("pair", -lp.Inf, 1, p[:], []float64{1, 1})
-	}
+	m, x, y, z := oddCycle()
 	set := Settings{NoHeuristics: true, NoStrongBranching: true}
 	plain, err := Solve(context.Background(), m, set)
 	if err != nil {
@@ -406,14 +399,7 @@ func TestSeparateCallback(t *testing.T) {
 // at every integer point) as each kind, and the point is its LP optimum,
 // every column at 0.5, which breaks the clique row by 0.5.
 func TestPoolToLP(t *testing.T) {
-	m := lp.NewModel("triangle")
-	m.Sense = lp.Maximize
-	x := m.AddIntCol("x", 1, 0, 1)
-	y := m.AddIntCol("y", 1.1, 0, 1)
-	z := m.AddIntCol("z", 1.2, 0, 1)
-	for _, p := range [][2]int{{x, y}, {y, z}, {x, z}} {
-		m.AddRow("pair", -lp.Inf, 1, p[:], []float64{1, 1})
-	}
+	m, x, y, z := oddCycle()
 	set := Settings{NoHeuristics: true, NoCuts: true, NoStrongBranching: true, NodeLimit: 1}.withDefaults()
 	s := newSearch(context.Background(), m, set)
 	s.run(nil)
@@ -445,6 +431,21 @@ func TestPoolToLP(t *testing.T) {
 	if s.poolToLP(pt) || again.lpRow != -1 {
 		t.Errorf("a cut entered past maxTreeCuts (row %d)", again.lpRow)
 	}
+}
+
+// oddCycle returns the model max x + 1.1y + 1.2z with x+y, y+z, x+z ≤ 1
+// over binaries, and its columns x, y, z: its LP optimum is 1.65 (every
+// column at 0.5), its integer optimum 1.2.
+func oddCycle() (m *lp.Model, x, y, z int) {
+	m = lp.NewModel("triangle")
+	m.Sense = lp.Maximize
+	x = m.AddIntCol("x", 1, 0, 1)
+	y = m.AddIntCol("y", 1.1, 0, 1)
+	z = m.AddIntCol("z", 1.2, 0, 1)
+	for _, p := range [][2]int{{x, y}, {y, z}, {x, z}} {
+		m.AddRow("pair", -lp.Inf, 1, p[:], []float64{1, 1})
+	}
+	return m, x, y, z
 }
 
 // TestImproveCallback checks the plumbing of Settings.Improve on a small
