@@ -26,7 +26,7 @@ const (
 	maxDiveDepth      = 200
 	diveEvery         = 200  // nodes between two dives
 	repairEvery       = 10   // nodes between two roundings repaired by LP
-	maxTreeCuts       = 100  // pool cuts that may re-enter the LP in the tree (20 and 40 pruned less on the 10-site 7-year cases; 300 and 1000 no more)
+	maxTreeCuts       = 100  // pool cuts that may re-enter the LP in the tree (40 pruned less on the 10-site 7-year cases, 300 and 1000 no more; 300 helped M at 600 s and hurt the 10-year case at 300 s)
 	diveIterFactor    = 4    // a dive's LP iteration cap, in mean iterations per node
 	maxNodeResolves   = 20   // re-solves of one node after strong branching fixes a column
 	strongShare       = 0.5  // strong-branching iterations allowed per node LP iteration …
