@@ -283,7 +283,8 @@ func randomMIP(rng *rand.Rand) *lp.Model {
 
 // TestRandomAgainstBruteForce compares the search with enumeration on tiny
 // random MIPs (fixed seeds), cycling through setting variants so that cuts,
-// strong branching and heuristics are each on and off somewhere.
+// strong branching and heuristics are each on and off somewhere, and
+// giving every third case random branching priorities.
 func TestRandomAgainstBruteForce(t *testing.T) {
 	count := 1000
 	if testing.Short() {
@@ -303,6 +304,13 @@ func TestRandomAgainstBruteForce(t *testing.T) {
 		tally[want]++
 		set := variants[seed%len(variants)]
 		set.Seed = int64(seed)
+		if seed%3 == 0 {
+			// Branching priorities change the tree, never the answer.
+			set.Priority = make([]int, m.NumCols())
+			for j := range set.Priority {
+				set.Priority[j] = rng.Intn(3)
+			}
+		}
 		r, err := Solve(context.Background(), m, set)
 		if err != nil {
 			t.Fatalf("seed %d: %v", seed, err)

@@ -48,7 +48,8 @@
 //     strong branching with an iteration cap on columns whose pseudocosts
 //     have fewer than 4 observations (common practice is about 8; 4 was
 //     faster on our benchmarks); strong branching may spend at most half
-//     the node LP iterations plus an offset.
+//     the node LP iterations plus an offset. Settings.Priority restricts
+//     the choice to the fractional columns of the highest priority.
 //   - Node selection: depth-first plunging into the preferred child while it
 //     stays promising, then best estimate, with a best-bound node taken
 //     every few picks so that the bound rises.

@@ -109,6 +109,7 @@ func runRINS(ctx context.Context, job *rinsJob, parent Settings, deadline time.T
 		Seed:              parent.Seed,
 		NoRINS:            true,
 		NoStrongBranching: parent.NoStrongBranching,
+		Priority:          parent.Priority, // the sub-MIP keeps the columns
 	}
 	if !deadline.IsZero() {
 		left := time.Until(deadline)

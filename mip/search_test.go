@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"math"
 	"math/rand"
+	"slices"
 	"testing"
 	"time"
 
@@ -267,6 +268,32 @@ func TestBadInput(t *testing.T) {
 	}
 	if _, err := Solve(context.Background(), nil, Settings{}); err == nil {
 		t.Error("nil model: no error")
+	}
+	if _, err := Solve(context.Background(), m2, Settings{Priority: []int{1, 0}}); err == nil {
+		t.Error("priorities of the wrong length: no error")
+	}
+}
+
+// TestTopPriority checks the branching candidates that priorities leave:
+// the fractional columns of the highest priority among the fractional
+// ones, in order, and all of them without priorities or when all tie.
+func TestTopPriority(t *testing.T) {
+	s := &search{p: &problem{n: 6}}
+	frac := []int{0, 2, 3, 5}
+	if got := s.topPriority(frac); !slices.Equal(got, frac) {
+		t.Errorf("no priorities: %v, want %v", got, frac)
+	}
+	s.set.Priority = []int{0, 9, 1, 0, 0, 1} // column 1, the highest, is not fractional
+	if got, want := s.topPriority(frac), []int{2, 5}; !slices.Equal(got, want) {
+		t.Errorf("priorities %v: %v, want %v", s.set.Priority, got, want)
+	}
+	s.set.Priority = []int{2, 0, 2, 2, 0, 2}
+	if got := s.topPriority(frac); !slices.Equal(got, frac) {
+		t.Errorf("tied priorities: %v, want %v", got, frac)
+	}
+	s.set.Priority = []int{1, 1, 1}
+	if got := s.topPriority(frac); !slices.Equal(got, frac) {
+		t.Errorf("priorities of the wrong length: %v, want them ignored", got)
 	}
 }
 

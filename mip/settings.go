@@ -190,6 +190,16 @@ type Settings struct {
 	NoHeuristics      bool
 	// NoRINS turns off the sub-MIP heuristic (rins.go).
 	NoRINS bool
+
+	// Priority, when set (one value per column), orders the integer
+	// columns for branching: a node branches on a fractional column of the
+	// highest priority among its fractional columns, chosen as usual
+	// among those; columns of lower priority wait until every column above
+	// them is integral at the node. nil: all columns alike. A caller sets
+	// it for columns that switch others' terms on, such as the choice of
+	// a discount tier, whose fractional values the LP exploits and whose
+	// branches settle much of the rest.
+	Priority []int
 }
 
 func (s Settings) withDefaults() Settings {

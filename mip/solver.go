@@ -47,6 +47,9 @@ func NewSolver(m *lp.Model, s Settings) (*Solver, error) {
 	if s.Start != nil && len(s.Start) != n {
 		return nil, errors.New("mip: start solution has the wrong length")
 	}
+	if s.Priority != nil && len(s.Priority) != n {
+		return nil, errors.New("mip: branching priorities have the wrong length")
+	}
 	// Validate through lp's own checks (bounds, NaN).
 	if _, err := lp.NewSolver(m, lp.Settings{}); err != nil {
 		return nil, errors.Join(errors.New("mip: invalid model"), err)

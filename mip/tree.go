@@ -208,7 +208,7 @@ func (s *search) processNode(nd *node, warm bool) (kids []*node, ok bool) {
 		s.tryCandidate(r.X)
 		return nil, true
 	}
-	br := branchChoice{col: frac[0], downGain: math.NaN(), upGain: math.NaN(), downBound: math.Inf(-1), upBound: math.Inf(-1)}
+	br := branchChoice{col: s.topPriority(frac)[0], downGain: math.NaN(), upGain: math.NaN(), downBound: math.Inf(-1), upBound: math.Inf(-1)}
 	return s.makeChildren(nd, r, math.Max(p.roundBound(r.Objective), nd.bound), br), true
 }
 
@@ -260,6 +260,7 @@ type branchChoice struct {
 // pseudocosts have too few observations.
 func (s *search) chooseBranch(r lp.Result, frac []int, bound float64) branchChoice {
 	x := r.X
+	frac = s.topPriority(frac)
 	type cand struct {
 		j     int
 		f     float64
@@ -365,6 +366,31 @@ func (s *search) chooseBranch(r lp.Result, frac []int, bound float64) branchChoi
 		s.lps.RestoreState(state)
 	}
 	return best
+}
+
+// topPriority returns the columns of frac (fractional integer columns, in
+// column order) whose Settings.Priority is the highest among them, in
+// the same order: frac itself when no priorities are set (or the slice
+// has the wrong length, which NewSolver refuses) or all are equal.
+func (s *search) topPriority(frac []int) []int {
+	pr := s.set.Priority
+	if len(pr) != s.p.n || len(frac) == 0 {
+		return frac
+	}
+	top := pr[frac[0]]
+	for _, j := range frac {
+		top = max(top, pr[j])
+	}
+	var out []int
+	for _, j := range frac {
+		if pr[j] == top {
+			out = append(out, j)
+		}
+	}
+	if len(out) == len(frac) {
+		return frac
+	}
+	return out
 }
 
 // usable reports whether a limited LP solve gives an objective worth using

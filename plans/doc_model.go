@@ -25,7 +25,8 @@
 //     of purchases sharing book life and in-service year, with
 //     threshold·z ≤ part ≤ largest spend·z — the disaggregated
 //     (convex-hull) form, so discounted capex, depreciation and salvage
-//     stay exact;
+//     stay exact; the search branches on these binaries before the
+//     others (branchPriority);
 //   - one budget row per capped year, one for the cumulative cap;
 //   - with [case] one_vendor, per group of links that must share a vendor
 //     (a class, or the network) and having items of several vendors: one

@@ -776,6 +776,23 @@ func (m *Model) addElastic() {
 	}
 }
 
+// branchPriority returns the branching priorities of the model's columns
+// (mip Settings.Priority): 1 for the tier choices z, 0 for the rest. The
+// relaxation takes a tier at a fractional z and so earns its discount on
+// any spend, which no plan below the threshold gets; branching on z first
+// removes that gain where the plan does not reach the tier. On the
+// synthetic 10-site 7-year cases of seeds 1 to 8 it took the nodes to
+// proof from 8,032 to 3,749 in all (seed 2: 3,569 to 1,363).
+func (m *Model) branchPriority() []int {
+	pr := make([]int, m.LP.NumCols())
+	for _, vy := range m.tiers {
+		for _, j := range vy.choice {
+			pr[j] = 1
+		}
+	}
+	return pr
+}
+
 // fixUnreachableTiers fixes at 0 the choice of each tier of vy that the
 // capex budget of order year tau, or the cumulative cap, can never pay
 // for: a spend tier whose threshold, less its discount, is above the

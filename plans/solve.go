@@ -92,6 +92,9 @@ func Solve(ctx context.Context, c *Case, opts SolveOptions) (*Result, error) {
 		},
 	}
 	set := mip.Settings{TimeLimit: opts.TimeLimit, RelGap: opts.Gap, NodeLimit: opts.NodeLimit, NoRINS: opts.NoRINS}
+	if len(m.tiers) > 0 {
+		set.Priority = m.branchPriority()
+	}
 	if opts.Progress != nil {
 		set.Progress = func(p mip.Progress) {
 			opts.Progress(Progress{
