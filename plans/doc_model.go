@@ -23,7 +23,8 @@
 //   - per vendor with volume tiers and order year: one binary per tier
 //     (and "no discount"), and the list spend split by tier and by group
 //     of purchases sharing book life and in-service year, with
-//     threshold·z ≤ part ≤ largest spend·z — the disaggregated
+//     threshold·z ≤ part ≤ max·z, max the least of the largest spend
+//     and what the year's budget pays at the discount — the disaggregated
 //     (convex-hull) form, so discounted capex, depreciation and salvage
 //     stay exact; the search branches on these binaries before the
 //     others (branchPriority);

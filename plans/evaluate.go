@@ -5,7 +5,6 @@ import (
 	"fmt"
 	"time"
 
-	"netstage/lp"
 	"netstage/mip"
 )
 
@@ -28,14 +27,9 @@ import (
 // in, more units than the link allows) is an error.
 func Evaluate(ctx context.Context, c *Case, plan []PlanRow) (*Result, error) {
 	start := time.Now()
-	m, err := BuildModel(c, BuildOptions{NoCutSets: true})
+	m, err := BuildModel(c, BuildOptions{NoCutSets: true, freeBudgets: true})
 	if err != nil {
 		return nil, err
-	}
-	for _, r := range append(m.budgetRow, m.cumRow) { // m is this call's own
-		if r >= 0 {
-			m.LP.RowLower[r], m.LP.RowUpper[r] = -lp.Inf, lp.Inf
-		}
 	}
 	if err := m.fixPlan(plan); err != nil {
 		return nil, err

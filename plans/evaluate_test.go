@@ -71,6 +71,34 @@ func TestEvaluateBudgetNotEnforced(t *testing.T) {
 	}
 }
 
+// TestEvaluateKeepsTierAboveBudget: the plan of the reached-tier case of
+// TestVolumeTierChangesVendor (two units of Y at 10 % off, 18,900 in
+// all) keeps its discount when valued under a budget of 15,000, which
+// could not pay for it: budgets are not enforced there, so the model's
+// rows and fixings that rest on them (tier spend caps, unreachable
+// tiers) must not apply either.
+func TestEvaluateKeepsTierAboveBudget(t *testing.T) {
+	c := newCase(1, fpRate, "A", "B")
+	c.testLink("L", "A", "B", 100, 10, 1)
+	c.testDemand("A", "B", 30, 0, 200)
+	c.testVendor("X")
+	c.testVendor("Y", Tier{Basis: TierByUnits, Threshold: 2, Discount: 0.10})
+	c.testItem(testItem{id: "MX", vendor: "X", gbps: fpGbps, capex: 10000, life: fpLife, maxUnits: 2})
+	c.testItem(testItem{id: "MY", vendor: "Y", gbps: fpGbps, capex: 10500, life: fpLife, maxUnits: 2})
+	res := solveExact(t, c)
+	if len(res.Plan) != 1 || res.Plan[0].Item != "MY" || res.Plan[0].Units != 2 {
+		t.Fatalf("test input: plan %+v, want two units of MY", res.Plan)
+	}
+	c.Budget.Yearly[0] = 15000
+	ev, err := Evaluate(context.Background(), c, res.Plan)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if ev.Status != StatusOptimal || !near(*ev.Objective, *res.Objective, 1e-9) || !near(ev.TotalCapex, 18900, 1e-9) {
+		t.Errorf("under a budget of 15,000: status %s, NPV %v, capex %v; want the plan's %.4f and 18,900", ev.Status, ev.Objective, ev.TotalCapex, *res.Objective)
+	}
+}
+
 // TestEvaluateRejectsUnofferedRows: a row the case cannot order is an
 // error, not a silent drop.
 func TestEvaluateRejectsUnofferedRows(t *testing.T) {
