@@ -195,7 +195,8 @@ type Settings struct {
 	// columns for branching: a node branches on a fractional column of the
 	// highest priority among its fractional columns, chosen as usual
 	// among those; columns of lower priority wait until every column above
-	// them is integral at the node. nil: all columns alike. A caller sets
+	// them is integral at the node. nil: all columns alike (NewSolver
+	// refuses a slice of another length). A caller sets
 	// it for columns that switch others' terms on, such as the choice of
 	// a discount tier, whose fractional values the LP exploits and whose
 	// branches settle much of the rest.
