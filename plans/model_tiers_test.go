@@ -151,7 +151,8 @@ func TestTierChoicesBranchedFirst(t *testing.T) {
 }
 
 // spendCap is the row of the model capping the list spend of one tier
-// choice (smax_…): its choice column and that column's coefficient.
+// choice (smax_…), the choice's column, that column's coefficient in the
+// row (minus the cap, in thousands) and the choice's discount.
 type spendCap struct {
 	row, col int
 	coef     float64
@@ -190,6 +191,7 @@ func spendCaps(t *testing.T, m *Model) []spendCap {
 // loosenSpendCaps makes every spend cap of m ten times looser in lm (a
 // clone of m.LP).
 func loosenSpendCaps(t *testing.T, m *Model, lm *lp.Model) {
+	t.Helper()
 	for _, sc := range spendCaps(t, m) {
 		lm.SetCoef(sc.row, sc.col, 9*sc.coef)
 	}
