@@ -25,14 +25,7 @@ import (
 // and must tighten the LP relaxation, which otherwise earns the 10 % on
 // any spend.
 func TestUnreachableTiersFixed(t *testing.T) {
-	c := loadSyntheticWith(t, 6, 4, 3, "")
-	for i := range c.Budget.Yearly {
-		c.Budget.Yearly[i] = 300000
-	}
-	m, err := BuildModel(c, BuildOptions{})
-	if err != nil {
-		t.Fatal(err)
-	}
+	c, m := budgetedSynthetic(t)
 	// The spend caps (TestTierSpendCappedByBudget) rule the same tiers
 	// out of the relaxation; loosened here, the fix alone must do it.
 	free := m.LP.Clone()
@@ -103,6 +96,22 @@ func TestUnreachableTiersFixed(t *testing.T) {
 	}
 }
 
+// budgetedSynthetic builds the model of the synthetic 6-site 4-year case
+// of seed 3 with a yearly budget of 300,000 (the input of the tier tests
+// above and below).
+func budgetedSynthetic(t *testing.T) (*Case, *Model) {
+	t.Helper()
+	c := loadSyntheticWith(t, 6, 4, 3, "")
+	for i := range c.Budget.Yearly {
+		c.Budget.Yearly[i] = 300000
+	}
+	m, err := BuildModel(c, BuildOptions{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	return c, m
+}
+
 // TestTierChoicesBranchedFirst: the branching priorities mark exactly the
 // tier choices (columns z_<vendor>_<year>_<choice>, one per tier and one
 // for no discount, per vendor with tiers and order year), and they change
@@ -150,17 +159,17 @@ func TestTierChoicesBranchedFirst(t *testing.T) {
 	t.Logf("nodes with priorities %d, without %d", with.Nodes, without.Nodes)
 }
 
-// spendCap is the row of the model capping the list spend of one tier
+// capRow is the row of the model capping the list spend of one tier
 // choice (smax_…), the choice's column, that column's coefficient in the
 // row (minus the cap, in thousands) and the choice's discount.
-type spendCap struct {
+type capRow struct {
 	row, col int
 	coef     float64
 	discount float64
 }
 
 // spendCaps returns the spend cap rows of every tier choice of m.
-func spendCaps(t *testing.T, m *Model) []spendCap {
+func spendCaps(t *testing.T, m *Model) []capRow {
 	t.Helper()
 	c := m.Case
 	rowOf := map[string]int{}
@@ -168,7 +177,7 @@ func spendCaps(t *testing.T, m *Model) []spendCap {
 		rowOf[name] = i
 	}
 	rows := m.LP.Rows()
-	var out []spendCap
+	var out []capRow
 	for _, vy := range m.tiers {
 		v := &c.Vendors[vy.vendor]
 		for k, j := range vy.choice {
@@ -176,7 +185,7 @@ func spendCaps(t *testing.T, m *Model) []spendCap {
 			if !ok {
 				t.Fatalf("%s %d choice %d: no spend cap row", v.ID, c.Year(vy.year), k)
 			}
-			sc := spendCap{row: i, col: j, discount: vy.discount[k]}
+			sc := capRow{row: i, col: j, discount: vy.discount[k]}
 			for p := rows.Start[i]; p < rows.Start[i+1]; p++ {
 				if rows.Index[p] == j {
 					sc.coef = rows.Value[p]
@@ -205,14 +214,7 @@ func loosenSpendCaps(t *testing.T, m *Model, lm *lp.Model) {
 // change: checked against the same model with ten times looser caps, both
 // solved to a gap of 1e-9.
 func TestTierSpendCappedByBudget(t *testing.T) {
-	c := loadSyntheticWith(t, 6, 4, 3, "")
-	for i := range c.Budget.Yearly {
-		c.Budget.Yearly[i] = 300000
-	}
-	m, err := BuildModel(c, BuildOptions{})
-	if err != nil {
-		t.Fatal(err)
-	}
+	_, m := budgetedSynthetic(t)
 	capped := 0
 	for _, sc := range spendCaps(t, m) {
 		budgetCap := 300 / (1 - sc.discount) // thousands
