@@ -377,18 +377,26 @@ func (s *search) topPriority(frac []int) []int {
 	if len(pr) != s.p.n || len(frac) == 0 {
 		return frac
 	}
-	top := pr[frac[0]]
+	// One pass for the top priority and how many columns have it; a copy
+	// only when some column falls short (not the common case of a node
+	// with no prioritised column fractional).
+	top, n := pr[frac[0]], 0
 	for _, j := range frac {
-		top = max(top, pr[j])
+		switch {
+		case pr[j] > top:
+			top, n = pr[j], 1
+		case pr[j] == top:
+			n++
+		}
 	}
-	var out []int
+	if n == len(frac) {
+		return frac
+	}
+	out := make([]int, 0, n)
 	for _, j := range frac {
 		if pr[j] == top {
 			out = append(out, j)
 		}
-	}
-	if len(out) == len(frac) {
-		return frac
 	}
 	return out
 }
