@@ -42,8 +42,10 @@
 //     cutoff; bounds are propagated on rows and on the objective cutoff,
 //     reduced costs fix columns inside the subtree, and pool cuts (covers
 //     and the caller's, not Gomory's) that the node's LP point violates
-//     re-enter the LP, up to a hundred over the tree. Each node stores
-//     only its own bound changes, chained to its parent's.
+//     re-enter the LP, up to a hundred over the tree; at the nodes of
+//     depth 3 or less the caller's cuts are also separated anew, up to a
+//     hundred more. Each node stores only its own bound changes, chained
+//     to its parent's.
 //   - Branching: reliability branching — pseudocosts with the product score,
 //     strong branching with an iteration cap on columns whose pseudocosts
 //     have fewer than 4 observations (common practice is about 8; 4 was

@@ -89,16 +89,7 @@ func (s *search) rootCuts(r lp.Result) lp.Result {
 				}
 			}
 		}
-		// The caller's cuts.
-		if s.set.Separate != nil {
-			for _, row := range s.set.Separate(append([]float64(nil), x...)) {
-				if len(row.Index) != len(row.Value) {
-					continue
-				}
-				c := &cut{idx: row.Index, val: row.Value, lower: row.Lower, upper: row.Upper, kind: "caller"}
-				found = s.addFound(found, c, x)
-			}
-		}
+		found = s.callerCuts(found, x)
 		if len(found) == 0 {
 			break
 		}
@@ -165,6 +156,22 @@ func (s *search) rootCuts(r lp.Result) lp.Result {
 		r = s.lpSolve(inf, 0)
 	}
 	return r
+}
+
+// callerCuts appends to found the rows of Settings.Separate at x that x
+// violates enough and that are new (entering the pool as "caller" cuts).
+func (s *search) callerCuts(found []*cut, x []float64) []*cut {
+	if s.set.Separate == nil {
+		return found
+	}
+	for _, row := range s.set.Separate(append([]float64(nil), x...)) {
+		if len(row.Index) != len(row.Value) {
+			continue
+		}
+		c := &cut{idx: row.Index, val: row.Value, lower: row.Lower, upper: row.Upper, kind: "caller"}
+		found = s.addFound(found, c, x)
+	}
+	return found
 }
 
 // addFound appends c to found when it is violated enough and new.

@@ -27,6 +27,8 @@ const (
 	diveEvery         = 200  // nodes between two dives
 	repairEvery       = 10   // nodes between two roundings repaired by LP
 	maxTreeCuts       = 100  // pool cuts that may re-enter the LP in the tree (40 pruned less on the 10-site 7-year cases, 300 and 1000 no more; 300 helped M at 600 s and hurt the 10-year case at 300 s)
+	treeSeparateDepth = 3    // the caller's cuts are separated at nodes down to this depth (treeSeparate) …
+	maxTreeSeparated  = 100  // … until this many have entered the LP
 	diveIterFactor    = 4    // a dive's LP iteration cap, in mean iterations per node
 	maxNodeResolves   = 20   // re-solves of one node after strong branching fixes a column
 	strongShare       = 0.5  // strong-branching iterations allowed per node LP iteration …

@@ -673,3 +673,114 @@ func linkedKnapsack() *lp.Model {
 	m.AddRow("link", -lp.Inf, 0.5, []int{s, a}, []float64{1, -1})
 	return m
 }
+
+// TestTreeSeparate: at a node, the caller's new rows that the LP point
+// violates enter the pool and the LP, up to maxTreeSeparated over the
+// tree; rows past what the cap leaves stay in the pool, past the cap (or
+// with NoCuts) the callback is not asked. The model is the odd cycle of
+// TestSeparateCallback after a root-only search, and the point its LP
+// optimum, every column at 0.5.
+func TestTreeSeparate(t *testing.T) {
+	m, x, y, z := oddCycle()
+	set := Settings{NoHeuristics: true, NoCuts: true, NoStrongBranching: true, NodeLimit: 1}.withDefaults()
+	s := newSearch(context.Background(), m, set)
+	s.run(nil)
+	s.set.NoCuts = false
+	calls := 0
+	give := [][]float64{{1, 1, 1}} // the clique row x+y+z ≤ 1
+	s.set.Separate = func([]float64) []lp.Row {
+		calls++
+		var out []lp.Row
+		for _, v := range give {
+			out = append(out, lp.Row{Name: "row", Lower: -lp.Inf, Upper: 1, Index: []int{x, y, z}, Value: v})
+		}
+		return out
+	}
+	rows := s.lps.NumRows()
+	pt := []float64{0.5, 0.5, 0.5}
+	if !s.treeSeparate(pt) {
+		t.Fatal("the caller's row did not enter the LP")
+	}
+	last := s.pool[len(s.pool)-1]
+	if s.lps.NumRows() != rows+1 || len(s.rows) != rows+1 || s.sepCuts != 1 || last.lpRow != rows || last.kind != "caller" {
+		t.Errorf("LP rows %d, row infos %d, separated %d, the cut in row %d as %q; want %d, %d, 1, %d, caller",
+			s.lps.NumRows(), len(s.rows), s.sepCuts, last.lpRow, last.kind, rows+1, rows+1, rows)
+	}
+	if s.treeSeparate(pt) {
+		t.Error("the same row entered twice")
+	}
+	// Two new rows broken at pt, room for one: the second waits in the pool.
+	give = [][]float64{{1, 1, 2}, {2, 1, 1}}
+	s.sepCuts = maxTreeSeparated - 1
+	if !s.treeSeparate(pt) {
+		t.Fatal("no row entered with room for one")
+	}
+	waiting := s.pool[len(s.pool)-1]
+	if s.lps.NumRows() != rows+2 || s.sepCuts != maxTreeSeparated || waiting.val[0] != 2 || waiting.lpRow != -1 {
+		t.Errorf("LP rows %d, separated %d, the second row %v in LP row %d; want %d, %d, [2 1 1], −1",
+			s.lps.NumRows(), s.sepCuts, waiting.val, waiting.lpRow, rows+2, maxTreeSeparated)
+	}
+	asked := calls
+	give = [][]float64{{1, 2, 1}}
+	if s.treeSeparate(pt) || calls != asked {
+		t.Errorf("past the cap the callback was asked (%d calls, %d before)", calls, asked)
+	}
+	s.sepCuts = 0
+	s.set.NoCuts = true
+	if s.treeSeparate(pt) || calls != asked {
+		t.Errorf("with NoCuts the callback was asked (%d calls, %d before)", calls, asked)
+	}
+}
+
+// TestSeparateInTree: the search asks the caller for cuts at its first
+// nodes, not only in the root rounds, and not below treeSeparateDepth; a
+// row it gives there enters the LP. The model is a three-row 0/1 knapsack
+// (hardKnapsack) whose search takes more nodes than there are of depth 3
+// or less (15). First the callback gives nothing: after the root rounds
+// it is asked at most once per node of depth ≤ 3. Then, at tree nodes
+// only, it gives the row "objective ≤ the optimum" (the optimum found by
+// enumeration, so the row holds at every integer point): the row enters
+// the LP, the optimum stays and the search takes fewer nodes.
+func TestSeparateInTree(t *testing.T) {
+	m := hardKnapsack(16, 3, 1)
+	st, opt := bruteForce(m)
+	if st != Optimal {
+		t.Fatalf("enumeration: %v", st)
+	}
+	all := make([]int, m.NumCols())
+	for j := range all {
+		all[j] = j
+	}
+	objRow := lp.Row{Name: "objective", Lower: -lp.Inf, Upper: opt, Index: all, Value: m.Obj}
+	run := func(give bool) (r Result, s *search, rootCalls, treeCalls int) {
+		set := Settings{NoHeuristics: true, NoStrongBranching: true, RelGap: 1e-9}
+		set.Separate = func(x []float64) []lp.Row {
+			if s.rootX == nil { // set once the root rounds are over
+				rootCalls++
+				return nil
+			}
+			treeCalls++
+			if give {
+				return []lp.Row{objRow}
+			}
+			return nil
+		}
+		s = newSearch(context.Background(), m, set.withDefaults())
+		r = s.run(nil)
+		return r, s, rootCalls, treeCalls
+	}
+	plain, _, _, treeCalls := run(false)
+	if plain.Status != Optimal || math.Abs(plain.Objective-opt) > 1e-9 {
+		t.Fatalf("status %v, objective %v; want optimal, %v", plain.Status, plain.Objective, opt)
+	}
+	if treeCalls == 0 || treeCalls > 15 || plain.Nodes <= 15 {
+		t.Errorf("asked at %d tree nodes of %d; want 1 to 15 in more than 15 nodes", treeCalls, plain.Nodes)
+	}
+	r, s, _, _ := run(true)
+	if r.Status != Optimal || math.Abs(r.Objective-opt) > 1e-9 {
+		t.Fatalf("with the row: status %v, objective %v; want optimal, %v", r.Status, r.Objective, opt)
+	}
+	if s.sepCuts != 1 || r.Nodes >= plain.Nodes {
+		t.Errorf("with the row: %d rows entered at nodes, %d nodes; want 1, fewer than %d", s.sepCuts, r.Nodes, plain.Nodes)
+	}
+}

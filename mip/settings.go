@@ -173,18 +173,20 @@ type Settings struct {
 	Improve func(ctx context.Context, incumbent []float64, basis *lp.Basis) []float64
 
 	// Separate, when set, lets the caller add cutting planes it knows from
-	// the model's structure. It is called in each round of root cuts with
-	// the LP solution (model columns) and returns rows in the model's
-	// columns that every feasible integer point satisfies (the caller's
-	// promise: an invalid row cuts off solutions). Rows violated by the
-	// point enter the cut pool with the built-in cuts; the search keeps
-	// their Index and Value slices, so the callback must not reuse them.
+	// the model's structure. It is called in each round of root cuts, and
+	// once at each tree node of depth 3 or less until 100 of its cuts have
+	// entered the LP there, with the LP solution (model columns), and
+	// returns rows in the model's columns that every feasible integer
+	// point satisfies (the caller's promise: an invalid row cuts off
+	// solutions). Rows violated by the point enter the cut pool with the
+	// built-in cuts; the search keeps their Index and Value slices, so the
+	// callback must not reuse them.
 	Separate func(lpSolution []float64) []lp.Row
 
-	// NoCuts turns off root cutting planes; NoStrongBranching turns off
-	// strong branching (pseudocosts alone); NoHeuristics turns off the
-	// built-in rounding, diving and sub-MIPs. For experiments and
-	// cross-checks.
+	// NoCuts turns off cutting planes (the root rounds, and Separate in
+	// the tree); NoStrongBranching turns off strong branching (pseudocosts
+	// alone); NoHeuristics turns off the built-in rounding, diving and
+	// sub-MIPs. For experiments and cross-checks.
 	NoCuts            bool
 	NoStrongBranching bool
 	NoHeuristics      bool

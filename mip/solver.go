@@ -143,6 +143,7 @@ type search struct {
 	poolKeys map[uint64]bool
 	nCuts    int
 	treeCuts int // pool cuts put back into the LP during the tree search
+	sepCuts  int // the caller's cuts separated at tree nodes (treeSeparate)
 
 	downLocks, upLocks []int
 

@@ -101,6 +101,7 @@ func (s *search) processNode(nd *node, warm bool) (kids []*node, ok bool) {
 	}
 	first := true
 	rowsAdded := false
+	separated := false // the caller's cuts were separated at this node
 	for round := 0; round < maxNodeResolves; round++ {
 		limit := s.pruneLimit()
 		if rowsAdded {
@@ -155,6 +156,10 @@ func (s *search) processNode(nd *node, warm bool) (kids []*node, ok bool) {
 		if len(frac) > 0 && s.poolToLP(r.X) {
 			rowsAdded = true
 			continue // re-solve with the violated pool cuts
+		}
+		if len(frac) > 0 && !separated && nd.depth <= treeSeparateDepth && s.treeSeparate(r.X) {
+			separated, rowsAdded = true, true
+			continue // re-solve with the caller's new cuts
 		}
 		if len(frac) == 0 {
 			if !s.tryCandidate(r.X) && p.objective(p.snap(r.X)) < s.incObj-s.gapTol() {
@@ -527,24 +532,56 @@ func (s *search) strongAllowed() bool {
 // of seed 2 from 11,245 to 3,569. Gomory cuts stay out: on the planning
 // models they slowed the node LPs more than they pruned.
 func (s *search) poolToLP(x []float64) bool {
-	if s.treeCuts >= maxTreeCuts {
-		return false
-	}
-	var rows []lp.Row
+	var back []*cut
 	for _, c := range s.pool {
+		if s.treeCuts+len(back) >= maxTreeCuts {
+			break
+		}
 		if c.lpRow >= 0 || (c.kind != "cover" && c.kind != "caller") || c.efficacy(x) <= minEfficacy {
 			continue
 		}
-		c.lpRow = s.lps.NumRows() + len(rows)
-		rows = append(rows, c.row("pool"))
-		s.rows = append(s.rows, lpRowInfo{idx: c.idx, val: c.val, lower: c.lower, upper: c.upper, intSlack: c.kind == "cover"})
-		s.treeCuts++
-		if s.treeCuts >= maxTreeCuts {
-			break
-		}
+		back = append(back, c)
 	}
-	if len(rows) == 0 {
+	s.treeCuts += len(back)
+	return s.cutsToLP(back, "pool")
+}
+
+// treeSeparate asks Settings.Separate for cuts at the node's LP point x
+// and adds those x violates that are new, up to maxTreeSeparated over the
+// whole tree, to the pool and the LP; it reports whether it added any.
+// processNode calls it once per node down to treeSeparateDepth. The root
+// rounds separate at the root's LP points only; at the first branches
+// some columns are forced whole, the LP point moves, and so do the rows
+// the caller finds violated. Measured on the synthetic planning cases
+// (10 sites, 7 years, seeds 1 to 8, proved to 1e-4): 3,483 nodes in all
+// against 5,093 without, though seed 1 alone took 816 against 619.
+// Depth 2 took 3,710 nodes, depth 4 (cap 200) 3,942, depth 6 (cap 300)
+// 3,496; at depth 3, caps of 50 and 300 took 3,504 and 3,483.
+func (s *search) treeSeparate(x []float64) bool {
+	if s.set.NoCuts || s.sepCuts >= maxTreeSeparated {
 		return false
+	}
+	found := s.callerCuts(nil, x)
+	if len(found) > maxTreeSeparated-s.sepCuts {
+		// Past the cap they stay in the pool, from where poolToLP may
+		// take them.
+		found = found[:maxTreeSeparated-s.sepCuts]
+	}
+	s.sepCuts += len(found)
+	return s.cutsToLP(found, "sep")
+}
+
+// cutsToLP adds the cuts cs, which are in the pool but not in the LP, to
+// the LP as rows named name, and reports whether there were any.
+func (s *search) cutsToLP(cs []*cut, name string) bool {
+	if len(cs) == 0 {
+		return false
+	}
+	rows := make([]lp.Row, len(cs))
+	for k, c := range cs {
+		c.lpRow = s.lps.NumRows() + k
+		rows[k] = c.row(name)
+		s.rows = append(s.rows, lpRowInfo{idx: c.idx, val: c.val, lower: c.lower, upper: c.upper, intSlack: c.kind == "cover"})
 	}
 	s.lps.AddRows(rows)
 	return true

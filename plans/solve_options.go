@@ -22,7 +22,7 @@ type SolveOptions struct {
 	// what it buys).
 	NoHeuristic bool
 	// NoCutSets turns off the cut-set inequalities on link capacities
-	// (the model's rows and those separated at the root).
+	// (the model's rows and those separated in the search).
 	NoCutSets bool
 	// NoImprove turns off the local search on the incumbent's unit counts
 	// (solve_improve.go).
@@ -30,7 +30,7 @@ type SolveOptions struct {
 	// NoRINS turns off the search's sub-MIP heuristic (mip/rins.go).
 	NoRINS bool
 	// NoSeparation keeps the model's cut-set rows but does not separate
-	// further ones at the root (for measuring what separation buys).
+	// further ones in the search (for measuring what separation buys).
 	NoSeparation bool
 	// NoBaselineStart does not hand the do-nothing plan to the search as
 	// its first incumbent (for measuring what it buys).

@@ -38,12 +38,15 @@ func BenchmarkSolveNodes(b *testing.B) {
 // BenchmarkSolveHorizon solves the synthetic 10-site case of seed 1 over
 // 3, 5, 7 and 10 years, to gap 1e-4 or 60 s: the length of the horizon,
 // more than the number of sites, is what makes these cases hard. Measured
-// on 2026-12-03, alone on the machine: over 3, 5 and 7 years it proves
-// optimality in 0.07 s, 0.43 s (the S case, 21 nodes) and 5.3 s (619
-// nodes; the build before the tier priorities and spend caps took 15 s
-// and 1,862 nodes, and 38 s and 4,709 nodes before the caller's cuts
-// could re-enter the LP in the tree, on a slower day); over 10 years it
-// stops at 0.70 % after 60 s (0.84 % for the build before, the same day).
+// on 2026-12-03, alone on the machine, with the caller's cuts separated
+// at the first tree nodes: over 3, 5 and 7 years it proves optimality in
+// 0.08 s, 0.46 s (the S case, 9 nodes) and 6.4 s (816 nodes; 619 nodes
+// and 5.3 s without that separation, though it saves nodes on seeds 2 to
+// 8; 1,862 nodes and 15 s before the tier priorities and spend caps, and
+// 4,709 nodes before the caller's cuts could re-enter the LP in the tree,
+// on a slower day); over 10 years it stops at 0.74 % after 60 s, with a
+// lower bound than the build before (2,149,536 against 2,150,242) but a
+// plan found later (0.70 % for that build).
 // On its exported MPS, CBC 2.10.8 had 0.63 % after 518 s, and HiGHS (npm
 // highs) stopped at 600 s with a plan 0.26 % below our best now. (50
 // sites over 3 years proves in 23 s; over 5 years it stops at 0.60 %
