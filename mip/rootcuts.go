@@ -135,6 +135,9 @@ func (s *search) rootCuts(r lp.Result) lp.Result {
 		// later round is stopped by a limit.
 		s.rootBound = math.Max(s.rootBound, p.roundBound(r.Objective))
 		s.curBound = s.rootBound
+		// On large models a round takes seconds: let the caller see the
+		// bound move.
+		s.progress(false)
 		s.ageCuts(false)
 		if !s.set.NoHeuristics {
 			s.simpleRounding(r.X, true)

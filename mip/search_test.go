@@ -128,6 +128,44 @@ func TestProgressReports(t *testing.T) {
 	}
 }
 
+// TestProgressInRootRounds: each root cut round reports its bound (on
+// large models a round takes seconds, and without these reports the
+// caller saw nothing between the root LP and the first nodes). The
+// Separate callback, asked once per round, marks the rounds; with the
+// heuristics off no new incumbent causes a report, and every round after
+// the first must have been reported before the next one starts.
+func TestProgressInRootRounds(t *testing.T) {
+	m := hardKnapsack(16, 3, 1)
+	var reports []Progress
+	var atRound []int // reports so far when each round separated
+	set := Settings{NoHeuristics: true, NodeLimit: 2, ProgressInterval: time.Nanosecond}
+	set.Progress = func(p Progress) { reports = append(reports, p) }
+	set.Separate = func([]float64) []lp.Row {
+		atRound = append(atRound, len(reports))
+		return nil
+	}
+	r, err := Solve(context.Background(), m, set)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(atRound) < 3 {
+		t.Fatalf("%d root rounds; the test needs at least 3", len(atRound))
+	}
+	for k := 1; k < len(atRound); k++ {
+		if atRound[k] <= atRound[k-1] {
+			t.Errorf("no progress report between root rounds %d and %d (reports at each: %v)", k-1, k, atRound)
+		}
+	}
+	for k := 1; k < len(reports); k++ {
+		if reports[k].Bound > reports[k-1].Bound+1e-9 {
+			t.Errorf("maximisation: bound rose from %v to %v", reports[k-1].Bound, reports[k].Bound)
+		}
+	}
+	if len(reports) == 0 || reports[len(reports)-1].Bound < r.Bound-1e-9 {
+		t.Errorf("last report's bound below the result's %v: %v", r.Bound, reports)
+	}
+}
+
 func TestDeterministic(t *testing.T) {
 	name := "lseu"
 	if testing.Short() {
