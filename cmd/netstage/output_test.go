@@ -134,6 +134,13 @@ func TestWriteTextSectionsInOrder(t *testing.T) {
 	if strings.Contains(buf.String(), "0.25 s") {
 		t.Errorf("hideEffort still prints the solve time")
 	}
+	root := handResult()
+	root.Stats.Nodes = 1
+	buf.Reset()
+	writeText(&buf, root, textOptions{})
+	if !strings.Contains(buf.String(), "(4 integer), 1 node, 40 simplex") {
+		t.Errorf("a search of one node is not reported as such:\n%s", buf.String())
+	}
 }
 
 func TestWriteTextInfeasible(t *testing.T) {

@@ -171,8 +171,12 @@ func writeSummary(w io.Writer, r *plans.Result, opts textOptions) {
 	}
 	if !opts.hideEffort {
 		st := r.Stats
-		row("solver", fmt.Sprintf("%d rows, %d columns (%d integer), %d nodes, %d simplex iterations, %s s",
-			st.Rows, st.Columns, st.Integers, st.Nodes, st.Iterations, fixed(st.Seconds, 2)))
+		nodes := fmt.Sprintf("%d nodes", st.Nodes)
+		if st.Nodes == 1 {
+			nodes = "1 node" // a large case stopped at the root
+		}
+		row("solver", fmt.Sprintf("%d rows, %d columns (%d integer), %s, %d simplex iterations, %s s",
+			st.Rows, st.Columns, st.Integers, nodes, st.Iterations, fixed(st.Seconds, 2)))
 	}
 	tw.Flush()
 }
