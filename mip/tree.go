@@ -556,7 +556,12 @@ func (s *search) poolToLP(x []float64) bool {
 // (10 sites, 7 years, seeds 1 to 8, proved to 1e-4): 3,483 nodes in all
 // against 5,093 without, though seed 1 alone took 816 against 619.
 // Depth 2 took 3,710 nodes, depth 4 (cap 200) 3,942, depth 6 (cap 300)
-// 3,496; at depth 3, caps of 50 and 300 took 3,504 and 3,483.
+// 3,496; at depth 3, caps of 50 and 300 took 3,504 and 3,483. On seeds 9
+// to 16, not used to choose these values: 4,211 nodes against 5,394 (seed
+// 14: 1,044 against 742), in the same time (46 s in all): the re-solves
+// and the extra rows cost what the fewer nodes save. After 120 to 300 s
+// on the 25-site and 10-year cases the bound was lower in four runs and
+// higher in two.
 func (s *search) treeSeparate(x []float64) bool {
 	if s.set.NoCuts || s.sepCuts >= maxTreeSeparated {
 		return false
