@@ -1,7 +1,6 @@
 package mip
 
 import (
-	"fmt"
 	"math"
 	"sort"
 
@@ -97,19 +96,15 @@ func (s *search) rootCuts(r lp.Result) lp.Result {
 		if len(found) > maxCutsPerRound {
 			found = found[:maxCutsPerRound]
 		}
-		rows := make([]lp.Row, 0, len(found))
+		fresh := make([]*cut, 0, len(found))
 		for _, c := range found {
-			if c.lpRow >= 0 {
-				continue
+			if c.lpRow < 0 {
+				fresh = append(fresh, c)
 			}
-			c.lpRow = s.lps.NumRows() + len(rows)
-			c.age = 0
-			rows = append(rows, c.row(fmt.Sprintf("cut%d", s.nCuts)))
-			s.rows = append(s.rows, lpRowInfo{idx: c.idx, val: c.val, lower: c.lower, upper: c.upper, intSlack: c.kind == "cover"})
-			s.nCuts++
 		}
 		before := s.lps.NumRows()
-		s.lps.AddRows(rows)
+		s.cutsToLP(fresh, "cut")
+		s.nCuts += len(fresh)
 		// No cutoff right after a change of rows: lp (version of 2026-12)
 		// may stop with a false ObjectiveCutoff on the repaired basis.
 		r = s.lpSolve(inf, 0)

@@ -559,9 +559,9 @@ func (s *search) poolToLP(x []float64) bool {
 // 3,496; at depth 3, caps of 50 and 300 took 3,504 and 3,483. On seeds 9
 // to 16, not used to choose these values: 4,211 nodes against 5,394 (seed
 // 14: 1,044 against 742), in the same time (46 s in all): the re-solves
-// and the extra rows cost what the fewer nodes save. After 120 to 300 s
-// on the 25-site and 10-year cases the bound was lower in four runs and
-// higher in two.
+// and the extra rows cost what the fewer nodes save. After 60 to 300 s
+// on the 25-site and 10-year cases, run side by side with the build
+// before, the bound was tighter in four of six pairs.
 func (s *search) treeSeparate(x []float64) bool {
 	if s.set.NoCuts || s.sepCuts >= maxTreeSeparated {
 		return false
@@ -577,7 +577,8 @@ func (s *search) treeSeparate(x []float64) bool {
 }
 
 // cutsToLP adds the cuts cs, which are in the pool but not in the LP, to
-// the LP as rows named name, and reports whether there were any.
+// the LP as rows named name (unaged), and reports whether there were any.
+// The root rounds, poolToLP and treeSeparate all add cuts through it.
 func (s *search) cutsToLP(cs []*cut, name string) bool {
 	if len(cs) == 0 {
 		return false
@@ -585,6 +586,7 @@ func (s *search) cutsToLP(cs []*cut, name string) bool {
 	rows := make([]lp.Row, len(cs))
 	for k, c := range cs {
 		c.lpRow = s.lps.NumRows() + k
+		c.age = 0
 		rows[k] = c.row(name)
 		s.rows = append(s.rows, lpRowInfo{idx: c.idx, val: c.val, lower: c.lower, upper: c.upper, intSlack: c.kind == "cover"})
 	}
