@@ -54,14 +54,7 @@ func TestCrossCheckCBC(t *testing.T) {
 			if err != nil {
 				t.Fatal(err)
 			}
-			model, err := Export(c, BuildOptions{})
-			if err != nil {
-				t.Fatal(err)
-			}
-			path := filepath.Join(t.TempDir(), "model.mps")
-			if err := writeMPSFile(path, model); err != nil {
-				t.Fatal(err)
-			}
+			model, path := exportMPS(t, c)
 			status, obj, err := runCBC(cbc, path)
 			if err != nil {
 				t.Fatal(err)
@@ -144,14 +137,7 @@ func TestCrossCheckCBCTree(t *testing.T) {
 				t.Fatalf("netstage status %s, bound %v", res.Status, res.Bound)
 			}
 			checkInvariants(t, c, res)
-			model, err := Export(c, BuildOptions{})
-			if err != nil {
-				t.Fatal(err)
-			}
-			path := filepath.Join(t.TempDir(), "model.mps")
-			if err := writeMPSFile(path, model); err != nil {
-				t.Fatal(err)
-			}
+			_, path := exportMPS(t, c)
 			status, obj, err := runCBCGap(cbc, path, gap)
 			if err != nil {
 				t.Fatal(err)
@@ -170,6 +156,21 @@ func TestCrossCheckCBCTree(t *testing.T) {
 			}
 		})
 	}
+}
+
+// exportMPS exports c's model (BuildOptions{}) and writes it as MPS to a
+// temporary file, returning both.
+func exportMPS(t *testing.T, c *Case) (*lp.Model, string) {
+	t.Helper()
+	model, err := Export(c, BuildOptions{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	path := filepath.Join(t.TempDir(), "model.mps")
+	if err := writeMPSFile(path, model); err != nil {
+		t.Fatal(err)
+	}
+	return model, path
 }
 
 func writeMPSFile(path string, m *lp.Model) error {
