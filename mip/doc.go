@@ -70,7 +70,8 @@
 // it, as a warm start) at the same call points as Settings.Heuristic; the
 // local search runs on a goroutine of its own until the next call point,
 // where its answer is taken and checked the same way (so its timing does
-// not change the path). Settings.Progress receives the incumbent, bound,
+// not change the path); with a time limit, an answer ready between two
+// root cut rounds is taken there. Settings.Progress receives the incumbent, bound,
 // gap, nodes and elapsed time.
 //
 // The search is deterministic: the same model, settings and seed give the

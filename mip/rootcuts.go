@@ -131,7 +131,8 @@ func (s *search) rootCuts(r lp.Result) lp.Result {
 		s.rootBound = math.Max(s.rootBound, p.roundBound(r.Objective))
 		s.curBound = s.rootBound
 		// On large models a round takes seconds: let the caller see the
-		// bound move.
+		// bound move, and the plan the helper found meanwhile.
+		s.pollHelper()
 		s.progress(false)
 		s.ageCuts(false)
 		if !s.set.NoHeuristics {

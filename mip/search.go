@@ -475,7 +475,7 @@ func (s *search) callHeuristic(x []float64) {
 	// once: a caller that stopped early can go on from it.
 	s.improvedObj = s.incObj
 	ctx, stop := context.WithCancel(s.ctx)
-	answer := make(chan helperAnswer, 1)
+	answer := make(chan helperAnswer, 2)
 	inc, basis := append([]float64(nil), s.incX...), s.incBasis
 	set, deadline := s.set, s.deadline
 	go func() {
@@ -486,12 +486,17 @@ func (s *search) callHeuristic(x []float64) {
 			}
 		}
 		if job != nil && ctx.Err() == nil {
+			if len(out.points) > 0 {
+				answer <- out // for pollHelper, while the sub-MIP runs
+				out = helperAnswer{}
+			}
 			y, its := runRINS(ctx, job, set, deadline)
 			out.rinsIters = its
 			if y != nil {
 				out.points = append(out.points, y)
 			}
 		}
+		out.last = true
 		answer <- out
 	}()
 	s.helper, s.stopHelper = answer, stop
@@ -499,9 +504,12 @@ func (s *search) callHeuristic(x []float64) {
 
 // helperAnswer is what the goroutine started at a call point hands back:
 // the points of Improve and of the sub-MIP, and the sub-MIP's iterations.
+// When both run and Improve found a point, it comes first in an answer of
+// its own; last marks the goroutine's final answer.
 type helperAnswer struct {
 	points    [][]float64
 	rinsIters int
+	last      bool
 }
 
 // joinHelper waits for the helper goroutine (Improve, then the sub-MIP),
@@ -510,9 +518,10 @@ type helperAnswer struct {
 // it is when the time limit passes while the search waits.
 //
 // The helper runs beside the search between two call points (on large
-// models the root cut rounds, on others a stretch of nodes), but its
-// answers are taken only at the next call point or at the end, so the
-// search's path does not depend on how long it takes.
+// models the root cut rounds, on others a stretch of nodes), but without a
+// time limit its answers are taken only at the next call point or at the
+// end, so the search's path does not depend on how long it takes (with
+// one, pollHelper may take them earlier).
 func (s *search) joinHelper(stop bool) {
 	if s.helper == nil {
 		return
@@ -520,22 +529,53 @@ func (s *search) joinHelper(stop bool) {
 	if stop {
 		s.stopHelper()
 	}
-	var y helperAnswer
-	if s.deadline.IsZero() {
-		y = <-s.helper
-	} else {
-		// The time limit holds while the search waits.
+	var limit <-chan time.Time
+	if !s.deadline.IsZero() {
 		wait := time.NewTimer(time.Until(s.deadline))
-		select {
-		case y = <-s.helper:
-		case <-wait.C:
-			s.stopHelper()
-			y = <-s.helper
-		}
-		wait.Stop()
+		defer wait.Stop()
+		limit = wait.C
 	}
-	s.stopHelper()
-	s.helper, s.stopHelper = nil, nil
+	for s.helper != nil {
+		select {
+		case y := <-s.helper:
+			s.takeHelper(y)
+		case <-limit:
+			// The time limit holds while the search waits.
+			s.stopHelper()
+			limit = nil
+		}
+	}
+}
+
+// pollHelper takes the helper's answer if it is ready, without waiting,
+// when the search has a time limit. The root cut rounds of a large model
+// can run for most of the time limit with no call point, long after the
+// helper has found a better plan: taken between rounds, that plan shows in
+// the progress reports and closes the gap, which may end the rounds early.
+// Without a time limit it does nothing: the search's path would depend on
+// how long the helper takes (with one, where the search stops already
+// does).
+func (s *search) pollHelper() {
+	if s.deadline.IsZero() {
+		return
+	}
+	for s.helper != nil {
+		select {
+		case y := <-s.helper:
+			s.takeHelper(y)
+		default:
+			return
+		}
+	}
+}
+
+// takeHelper tries the points of y, an answer of the helper goroutine, and
+// forgets the goroutine after its last answer.
+func (s *search) takeHelper(y helperAnswer) {
+	if y.last {
+		s.stopHelper()
+		s.helper, s.stopHelper = nil, nil
+	}
 	s.rinsIters += y.rinsIters
 	for _, c := range y.points {
 		s.tryCandidate(c)

@@ -631,6 +631,63 @@ func TestImproveTimingIndependent(t *testing.T) {
 	}
 }
 
+// TestPollHelper checks how the search takes the helper goroutine's
+// answers between root cut rounds: pollHelper takes what is ready, without
+// waiting, and only when the search has a time limit; an answer that is
+// not the last leaves the helper running; joinHelper takes every answer in
+// the order sent. The helper is a stand-in channel; the model is the
+// knapsack of TestImproveCallback after a root-only search from the start
+// that completes to 3.05, and the answers hold points of objective 5.1
+// (a, s) and 8.1 (a, c, s: the optimum).
+func TestPollHelper(t *testing.T) {
+	m := linkedKnapsack()
+	set := Settings{NoHeuristics: true, NoCuts: true, NoStrongBranching: true, NodeLimit: 1}.withDefaults()
+	start := [][]float64{{0, 0, 1, 1}}
+	better, best := []float64{1, 0, 0, 1}, []float64{1, 0, 1, 1}
+	helper := func(s *search) (chan helperAnswer, *int) {
+		ch, stops := make(chan helperAnswer, 2), 0
+		s.helper, s.stopHelper = ch, func() { stops++ }
+		return ch, &stops
+	}
+	s := newSearch(context.Background(), m, set)
+	s.run(start)
+	if math.Abs(s.incObj+3.05) > 1e-9 {
+		t.Fatalf("incumbent %v after the root, want −3.05 (internal sense)", s.incObj)
+	}
+	ch, stops := helper(s)
+	ch <- helperAnswer{points: [][]float64{better}}
+	s.pollHelper() // no time limit: the path must not depend on timing
+	if s.helper == nil || len(ch) != 1 || math.Abs(s.incObj+3.05) > 1e-9 {
+		t.Fatalf("without a time limit pollHelper took an answer (incumbent %v)", s.incObj)
+	}
+	s.deadline = time.Now().Add(time.Hour)
+	s.pollHelper()
+	if math.Abs(s.incObj+5.1) > 1e-9 {
+		t.Fatalf("incumbent %v after polling, want −5.1", s.incObj)
+	}
+	if s.helper == nil || *stops != 0 {
+		t.Fatal("an answer that is not the last ended the helper")
+	}
+	s.pollHelper() // nothing ready: it must not wait
+	ch <- helperAnswer{points: [][]float64{best}, rinsIters: 7, last: true}
+	iters := s.rinsIters
+	s.pollHelper()
+	if s.helper != nil || *stops != 1 || s.rinsIters != iters+7 || math.Abs(s.incObj+8.1) > 1e-9 {
+		t.Fatalf("after the last answer: helper running %v, %d stops, %d sub-MIP iterations (want %d), incumbent %v (want −8.1)",
+			s.helper != nil, *stops, s.rinsIters, iters+7, s.incObj)
+	}
+
+	s = newSearch(context.Background(), m, set)
+	s.run(start)
+	ch, stops = helper(s)
+	ch <- helperAnswer{points: [][]float64{best}}
+	ch <- helperAnswer{points: [][]float64{better}, last: true}
+	s.joinHelper(false)
+	if s.helper != nil || *stops != 1 || math.Abs(s.incObj+8.1) > 1e-9 {
+		t.Fatalf("joinHelper: helper running %v, %d stops, incumbent %v (want −8.1)", s.helper != nil, *stops, s.incObj)
+	}
+}
+
 // TestImproveStoppedAtTimeLimit checks that a search stopped by its time
 // limit cancels the context of a running Improve and returns: here
 // Improve answers only once its context ends.

@@ -159,7 +159,10 @@ type Settings struct {
 	// and returns a better point, or nil. It runs on its own goroutine,
 	// beside the search, and its answer is taken at the next call point
 	// (the search waits for it there) or when the search ends: the path
-	// does not depend on how long it takes. The answer is checked like a
+	// does not depend on how long it takes. With a time limit (where the
+	// search stops depends on timing already), an answer ready between
+	// two root cut rounds is taken there too: on large models the rounds
+	// may outlast it by most of the limit. The answer is checked like a
 	// Heuristic candidate; when it becomes the incumbent, Improve gets it
 	// again at once (a caller that stopped short can go on; one that
 	// finished should answer nil at once). One Improve runs at a time, but
