@@ -71,12 +71,13 @@
 // local search runs on a goroutine of its own until the next call point,
 // where its answer is taken and checked the same way (so its timing does
 // not change the path); with a time limit, an answer ready between two
-// root cut rounds is taken there. Settings.Progress receives the incumbent, bound,
-// gap, nodes and elapsed time.
+// root cut rounds is taken there. Settings.Progress receives the
+// incumbent, bound, gap, nodes and elapsed time.
 //
 // The search is deterministic: the same model, settings and seed give the
 // same path and the same answer (a time limit, by nature, may stop it at a
-// different point). A model whose LP relaxation is unbounded is
+// different point, and lets the root cut rounds take the local search's
+// answer as soon as it is ready). A model whose LP relaxation is unbounded is
 // reported unbounded when it has a feasible point (with rational data, one
 // feasible point and an unbounded relaxation imply an unbounded MIP:
 // Meyer, Math. Programming 7, 1974), infeasible otherwise.
