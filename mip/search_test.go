@@ -634,8 +634,8 @@ func TestImproveTimingIndependent(t *testing.T) {
 // TestPollHelper checks how the search takes the helper goroutine's
 // answers between root cut rounds: pollHelper takes what is ready, without
 // waiting, and only when the search has a time limit; an answer that is
-// not the last leaves the helper running; joinHelper takes every answer in
-// the order sent. The helper is a stand-in channel; the model is the
+// not the last leaves the helper running; joinHelper takes every answer up
+// to the last. The helper is a stand-in channel; the model is the
 // knapsack of TestImproveCallback after a root-only search from the start
 // that completes to 3.05, and the answers hold points of objective 5.1
 // (a, s) and 8.1 (a, c, s: the optimum).
