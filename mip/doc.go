@@ -35,7 +35,7 @@
 //     at the root, after each dive and every few nodes); at the same call
 //     points as Settings.Heuristic, a sub-MIP over the integer columns on
 //     which the incumbent and the LP point disagree (RINS, rins.go), with
-//     a node limit and an iteration budget of a tenth of the search's
+//     a node limit and an iteration budget of a twentieth of the search's
 //     own, run beside the search like Settings.Improve.
 //   - Nodes: each node LP is warm-started from its parent's basis by the
 //     dual simplex, with the incumbent (minus the allowed gap) as objective
