@@ -688,6 +688,41 @@ func TestPollHelper(t *testing.T) {
 	}
 }
 
+// TestRootRoundsPollHelper checks that the root cut rounds poll the
+// helper when the search has a time limit: an answer made ready during
+// the first round (the separator installs a stand-in helper holding the
+// point x = 1) is the incumbent by the time the second round calls the
+// separator again; without a time limit it is taken only at the call
+// point after the rounds. The model is TestSeparateCallback's odd cycle.
+func TestRootRoundsPollHelper(t *testing.T) {
+	m, x, y, z := oddCycle()
+	for _, limit := range []time.Duration{0, time.Hour} {
+		var s *search
+		var seen []bool // per separator call: whether an incumbent was known
+		set := Settings{NoHeuristics: true, NoStrongBranching: true, TimeLimit: limit}
+		set.Separate = func(pt []float64) []lp.Row {
+			seen = append(seen, s.incX != nil)
+			if len(seen) == 1 {
+				ch := make(chan helperAnswer, 1)
+				ch <- helperAnswer{points: [][]float64{{1, 0, 0}}, last: true}
+				s.helper, s.stopHelper = ch, func() {}
+			}
+			return []lp.Row{{Name: "clique", Lower: -lp.Inf, Upper: 1, Index: []int{x, y, z}, Value: []float64{1, 1, 1}}}
+		}
+		s = newSearch(context.Background(), m, set.withDefaults())
+		r := s.run(nil)
+		if len(seen) < 2 {
+			t.Fatalf("time limit %v: the separator was called %d times, want two root rounds at least", limit, len(seen))
+		}
+		if want := limit > 0; seen[1] != want {
+			t.Errorf("time limit %v: incumbent known at the second round %v, want %v", limit, seen[1], want)
+		}
+		if r.X == nil || r.Objective < 1-1e-9 {
+			t.Errorf("time limit %v: the helper's point was not taken at all (objective %v)", limit, r.Objective)
+		}
+	}
+}
+
 // TestImproveStoppedAtTimeLimit checks that a search stopped by its time
 // limit cancels the context of a running Improve and returns: here
 // Improve answers only once its context ends.
