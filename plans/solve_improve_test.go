@@ -75,3 +75,56 @@ func TestImprovePlan(t *testing.T) {
 		t.Fatal("the local search improved no start plan")
 	}
 }
+
+// TestImproveShifts checks the shift moves on the points where the single
+// moves settle: from the rounded-up plan the local search runs with shifts
+// off until no single move pays, then on from there. Where it keeps a
+// shift, its answer must be a point of the MIP, better than the settled one
+// and no better than the proven optimum; and on some case it must keep one,
+// or the shifts would be dead weight.
+func TestImproveShifts(t *testing.T) {
+	shifted := 0
+	eachRelaxed(t, []synthCase{{8, 4, 1}, {10, 4, 2}, {9, 5, 3}, {12, 5, 4}, {10, 5, 5}, {12, 4, 6}}, func(t *testing.T, c *Case, m *Model, relax lp.Result) {
+		start := m.roundUpHeuristic(relax.X)
+		if len(start) == 0 {
+			t.Skip("the heuristic found no candidate plan within the budget")
+		}
+		singles := m.newImprover(time.Time{})
+		singles.noShifts = true
+		settled := start[0]
+		if z := singles.improve(context.Background(), settled, nil); z != nil {
+			settled = z
+		}
+		from := fixedLP(t, m, settled)
+		if from.Status != lp.Optimal {
+			t.Skipf("the settled plan has no feasible routing (%v)", from.Status)
+		}
+		// The same search, shifts on, from where it settled (so that its
+		// single moves are those that failed there).
+		singles.noShifts, singles.settled = false, nil
+		z := singles.improve(context.Background(), settled, nil)
+		if singles.shiftsKept == 0 {
+			t.Logf("no shift pays at −NPV %.2f", from.Objective)
+			return
+		}
+		shifted++
+		if v, integral := m.LP.MaxViolation(z, 1e-9); v > 1e-6 || !integral {
+			t.Fatalf("shifted point violates the model by %g (integral %v)", v, integral)
+		}
+		obj, _ := m.LP.Evaluate(z)
+		if obj >= from.Objective-1e-6*math.Abs(from.Objective) {
+			t.Errorf("shifted −NPV %.2f, not below the settled %.2f", obj, from.Objective)
+		}
+		res, err := Solve(context.Background(), c, SolveOptions{Gap: 1e-9})
+		if err != nil || res.Status != StatusOptimal {
+			t.Fatalf("solve: %v %v", res.Status, err)
+		}
+		if -obj > *res.Objective*(1+1e-9)+1e-6 {
+			t.Errorf("shifted NPV %.2f above the proven optimum %.2f", -obj, *res.Objective)
+		}
+		t.Logf("NPV %.2f → %.2f with shifts (optimum %.2f)", -from.Objective, -obj, *res.Objective)
+	})
+	if shifted == 0 {
+		t.Fatal("no shift improved a settled plan")
+	}
+}
