@@ -55,21 +55,8 @@ func TestImprovePlan(t *testing.T) {
 		if again := im.improve(context.Background(), z, nil); again != nil {
 			t.Error("offered its own result again, the search improved it")
 		}
-		if v, integral := m.LP.MaxViolation(z, 1e-9); v > 1e-6 || !integral {
-			t.Fatalf("improved point violates the model by %g (integral %v)", v, integral)
-		}
-		obj, _ := m.LP.Evaluate(z)
-		if obj >= from.Objective-1e-6*math.Abs(from.Objective) {
-			t.Errorf("improved −NPV %.2f, not below the start's %.2f", obj, from.Objective)
-		}
-		res, err := Solve(context.Background(), c, SolveOptions{Gap: 1e-9})
-		if err != nil || res.Status != StatusOptimal {
-			t.Fatalf("solve: %v %v", res.Status, err)
-		}
-		if -obj > *res.Objective*(1+1e-9)+1e-6 {
-			t.Errorf("improved NPV %.2f above the proven optimum %.2f", -obj, *res.Objective)
-		}
-		t.Logf("NPV %.2f → %.2f (optimum %.2f)", -from.Objective, -obj, *res.Objective)
+		obj, optimum := checkImproved(t, c, m, z, from)
+		t.Logf("NPV %.2f → %.2f (optimum %.2f)", -from.Objective, -obj, optimum)
 	})
 	if improved == 0 {
 		t.Fatal("the local search improved no start plan")
@@ -108,23 +95,34 @@ func TestImproveShifts(t *testing.T) {
 			return
 		}
 		shifted++
-		if v, integral := m.LP.MaxViolation(z, 1e-9); v > 1e-6 || !integral {
-			t.Fatalf("shifted point violates the model by %g (integral %v)", v, integral)
-		}
-		obj, _ := m.LP.Evaluate(z)
-		if obj >= from.Objective-1e-6*math.Abs(from.Objective) {
-			t.Errorf("shifted −NPV %.2f, not below the settled %.2f", obj, from.Objective)
-		}
-		res, err := Solve(context.Background(), c, SolveOptions{Gap: 1e-9})
-		if err != nil || res.Status != StatusOptimal {
-			t.Fatalf("solve: %v %v", res.Status, err)
-		}
-		if -obj > *res.Objective*(1+1e-9)+1e-6 {
-			t.Errorf("shifted NPV %.2f above the proven optimum %.2f", -obj, *res.Objective)
-		}
-		t.Logf("NPV %.2f → %.2f with shifts (optimum %.2f)", -from.Objective, -obj, *res.Objective)
+		obj, optimum := checkImproved(t, c, m, z, from)
+		t.Logf("NPV %.2f → %.2f with shifts (optimum %.2f)", -from.Objective, -obj, optimum)
 	})
 	if shifted == 0 {
 		t.Fatal("no shift improved a settled plan")
 	}
+}
+
+// checkImproved checks a point z the local search returned from a start
+// whose best completion is from: a point of the MIP (rows, bounds,
+// integrality), better than from, and no better than the optimum of c
+// proven by the full search (which would mean an invalid point). It
+// returns z's −NPV and the optimal NPV.
+func checkImproved(t *testing.T, c *Case, m *Model, z []float64, from lp.Result) (obj, optimum float64) {
+	t.Helper()
+	if v, integral := m.LP.MaxViolation(z, 1e-9); v > 1e-6 || !integral {
+		t.Fatalf("improved point violates the model by %g (integral %v)", v, integral)
+	}
+	obj, _ = m.LP.Evaluate(z)
+	if obj >= from.Objective-1e-6*math.Abs(from.Objective) {
+		t.Errorf("improved −NPV %.2f, not below the start's %.2f", obj, from.Objective)
+	}
+	res, err := Solve(context.Background(), c, SolveOptions{Gap: 1e-9})
+	if err != nil || res.Status != StatusOptimal {
+		t.Fatalf("solve: %v %v", res.Status, err)
+	}
+	if -obj > *res.Objective*(1+1e-9)+1e-6 {
+		t.Errorf("improved NPV %.2f above the proven optimum %.2f", -obj, *res.Objective)
+	}
+	return obj, *res.Objective
 }
