@@ -19,8 +19,9 @@ const (
 	// improveMaxTrials bounds the LP trials of one call.
 	improveMaxTrials = 4000
 	// improveShiftTrials bounds the shifts one pass tries (on the
-	// synthetic 50-site case a pass ranks about 650, and improving ones
-	// turned up as late as the 586th).
+	// synthetic 50-site case a pass ranks about 650; in a first version,
+	// which tried failed shifts again, improving ones turned up as late as
+	// the 586th).
 	improveShiftTrials = 1000
 	// improveShare is the share of the time left before the deadline that
 	// one call may use.
@@ -39,8 +40,8 @@ const (
 // the NPV; after a pass that kept a move it ranks again. When a pass keeps
 // none, it tries shifts (shiftMove: a unit leaves a link and one arrives on
 // a neighbouring link in the same order year), which no single move can
-// make when each half alone loses; it stops when no shift pays either. The LP re-routes the traffic around each change,
-// so a move is judged with the network effects the rounding heuristic
+// make when each half alone loses; it stops when no shift pays either.
+// The LP re-routes the traffic around each change, so a move is judged with the network effects the rounding heuristic
 // cannot see: a module bought on one link lets traffic leave a
 // fractionally loaded neighbour, and a unit that carries little can go.
 //
@@ -87,9 +88,11 @@ func (m *Model) newImprover(deadline time.Time) *improver {
 	}
 	im.neighbours = make([][]int, len(links))
 	for l := range links {
-		for _, k := range append(atSite[links[l].A], atSite[links[l].B]...) {
-			if k != l && !slices.Contains(im.neighbours[l], k) {
-				im.neighbours[l] = append(im.neighbours[l], k)
+		for _, site := range []int{links[l].A, links[l].B} {
+			for _, k := range atSite[site] {
+				if k != l && !slices.Contains(im.neighbours[l], k) {
+					im.neighbours[l] = append(im.neighbours[l], k)
+				}
 			}
 		}
 	}
@@ -194,9 +197,10 @@ func (im *improver) improve(ctx context.Context, x []float64, basis *lp.Basis) [
 		im.fix(y)
 		return false, false
 	}
-	// A move that failed is not tried again in this call: after other
-	// moves it might pay, but rarely, and retrying every failure in every
-	// pass spent most trials on large cases.
+	// A move that failed is not tried again in this call (unless a shift
+	// is kept, see below): after other moves it might pay, but rarely, and
+	// retrying every failure in every pass spent most trials on large
+	// cases. The same holds for shifts.
 	failed := map[unitMove]bool{}
 	failedShifts := map[shiftMove]bool{}
 	for trials < improveMaxTrials && !over() {
@@ -529,9 +533,11 @@ func (m *Model) slotsFit(z []float64) bool {
 // site with it (in, a moveAdd of any of its items from the same order year
 // on): traffic that crossed the first link can take the second. Measured
 // against the single moves alone (one solve at a time, same build): the
-// synthetic 50-site case ends its 60 s with an NPV of 8,299,199 against
-// 8,272,404; the 16 synthetic 10-site 7-year proofs take 53.4–56.0 s in
-// all against 56.8–61.7 s (7,632 nodes against 7,933).
+// synthetic 50-site case ends its 60 s with an NPV of 8,283,141 to
+// 8,299,199 (four runs; the local search's time share depends on timing)
+// against 8,272,404, and its 120 s with 8,302,748; the 16 synthetic
+// 10-site 7-year proofs take 53.4–56.0 s in all against 56.8–61.7 s
+// (7,632 nodes against 7,933).
 type shiftMove struct {
 	out, in unitMove
 }
