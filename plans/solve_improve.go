@@ -55,6 +55,9 @@ type improver struct {
 	intCols  []int   // the model's integer columns
 	byLink   [][]int // the options of each link
 	cols     [][]int // cols[oi]: option oi's unit columns (orderCols)
+	// step[oi][tau] is the position in cols[oi] of option oi's column of
+	// order year tau (−1: none).
+	step [][]int
 	// fixed[j] is the value integer column j is fixed at in sv.
 	fixed []float64
 	// settled holds the integer values of the last point from which a
@@ -71,9 +74,19 @@ type improver struct {
 // newImprover returns an improver for m that stops at deadline (zero:
 // none) or at the end of the context of its call.
 func (m *Model) newImprover(deadline time.Time) *improver {
-	im := &improver{m: m, deadline: deadline, byLink: m.optionsByLink(), cols: make([][]int, len(m.options))}
+	im := &improver{m: m, deadline: deadline, byLink: m.optionsByLink(),
+		cols: make([][]int, len(m.options)), step: make([][]int, len(m.options))}
 	for oi := range m.options {
 		im.cols[oi] = m.options[oi].orderCols()
+		im.step[oi] = make([]int, len(m.options[oi].col))
+		i := 0
+		for tau, j := range m.options[oi].col {
+			im.step[oi][tau] = -1
+			if j >= 0 {
+				im.step[oi][tau] = i
+				i++
+			}
+		}
 	}
 	for j, isInt := range m.LP.Integer {
 		if isInt {
@@ -549,21 +562,6 @@ type shiftMove struct {
 func (im *improver) shifts(y, d []float64) []shiftMove {
 	m := im.m
 	tail := im.tails(d)
-	// steps[oi][tau]: the position of option oi's order-year-tau column in
-	// im.cols[oi] (−1: no column).
-	steps := make([][]int, len(m.options))
-	byLink := im.byLink
-	for oi := range m.options {
-		steps[oi] = make([]int, len(m.options[oi].col))
-		i := 0
-		for tau, j := range m.options[oi].col {
-			steps[oi][tau] = -1
-			if j >= 0 {
-				steps[oi][tau] = i
-				i++
-			}
-		}
-	}
 	var out []shiftMove
 	for oi := range m.options {
 		o := &m.options[oi]
@@ -571,10 +569,10 @@ func (im *improver) shifts(y, d []float64) []shiftMove {
 			if j < 0 || !o.orderedIn(y, tau) {
 				continue
 			}
-			rm := unitMove{oi: oi, i: steps[oi][tau], kind: moveRemove, estimate: -tail[oi][tau]}
+			rm := unitMove{oi: oi, i: im.step[oi][tau], kind: moveRemove, estimate: -tail[oi][tau]}
 			for _, l := range im.neighbours[o.link] {
-				for _, oj := range byLink[l] {
-					if i := steps[oj][tau]; i >= 0 {
+				for _, oj := range im.byLink[l] {
+					if i := im.step[oj][tau]; i >= 0 {
 						add := unitMove{oi: oj, i: i, kind: moveAdd, estimate: tail[oj][tau]}
 						if rm.estimate+add.estimate < 0 {
 							out = append(out, shiftMove{out: rm, in: add})
