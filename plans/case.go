@@ -463,6 +463,17 @@ func (c *Case) CostMode() bool {
 	return true
 }
 
+// linksAtSites returns, for each site, the indices of the links with an
+// end there, in link order.
+func (c *Case) linksAtSites() [][]int {
+	at := make([][]int, len(c.Sites))
+	for li, l := range c.Links {
+		at[l.A] = append(at[l.A], li)
+		at[l.B] = append(at[l.B], li)
+	}
+	return at
+}
+
 // SiteIndex returns the index of the site with id, or −1.
 func (c *Case) SiteIndex(id string) int {
 	for i, s := range c.Sites {

@@ -292,11 +292,7 @@ func (m *Model) separateCutSets(x []float64) []lp.Row {
 	}
 	// Spare capacity across a cut changes, when site u joins, by what
 	// crosses between u and the rest: links and demands by end pair.
-	adj := make([][]int, n) // adj[u]: links at u
-	for li, l := range c.Links {
-		adj[l.A] = append(adj[l.A], li)
-		adj[l.B] = append(adj[l.B], li)
-	}
+	adj := c.linksAtSites() // adj[u]: links at u
 	type found struct {
 		row  lp.Row
 		viol float64

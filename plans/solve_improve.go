@@ -41,9 +41,10 @@ const (
 // none, it tries shifts (shiftMove: a unit leaves a link and one arrives on
 // a neighbouring link in the same order year), which no single move can
 // make when each half alone loses; it stops when no shift pays either.
-// The LP re-routes the traffic around each change, so a move is judged with the network effects the rounding heuristic
-// cannot see: a module bought on one link lets traffic leave a
-// fractionally loaded neighbour, and a unit that carries little can go.
+// The LP re-routes the traffic around each change, so a move is judged
+// with the network effects the rounding heuristic cannot see: a module
+// bought on one link lets traffic leave a fractionally loaded neighbour,
+// and a unit that carries little can go.
 //
 // The fixed LP is one solver kept across calls; each trial changes a few
 // column bounds and re-solves by dual simplex from the last accepted basis,
@@ -94,11 +95,7 @@ func (m *Model) newImprover(deadline time.Time) *improver {
 		}
 	}
 	links := m.Case.Links
-	atSite := make([][]int, len(m.Case.Sites))
-	for l := range links {
-		atSite[links[l].A] = append(atSite[links[l].A], l)
-		atSite[links[l].B] = append(atSite[links[l].B], l)
-	}
+	atSite := m.Case.linksAtSites()
 	im.neighbours = make([][]int, len(links))
 	for l := range links {
 		for _, site := range []int{links[l].A, links[l].B} {
@@ -345,13 +342,12 @@ func (im *improver) moves(y, d []float64) []unitMove {
 	var down, up []unitMove
 	for oi := range m.options {
 		o := &m.options[oi]
-		i := len(im.cols[oi]) // position in im.cols[oi] of the column of year tau
 		for tau := len(o.col) - 1; tau >= 0; tau-- {
 			j := o.col[tau]
 			if j < 0 {
 				continue
 			}
-			i--
+			i := im.step[oi][tau]
 			if e := tail[oi][tau]; e < 0 {
 				up = append(up, unitMove{oi: oi, i: i, kind: moveAdd, estimate: e})
 			} else if e > 0 {
