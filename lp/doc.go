@@ -45,15 +45,18 @@
 // simplex takes the true costs back when its basis stays dual feasible
 // under them, and then reports its objective as a bound on the optimum
 // (Result.ObjectiveIsBound). The basis is factorised as sparse LU (singletons
-// first, then Markowitz pivoting with threshold 0.1) with product-form
+// first, then Markowitz pivoting with threshold 0.1) with Forrest–Tomlin
 // updates and a refactorisation every 100 updates, when the updates hold
-// more nonzeros than the factors, or when the pivot seen from the row and
-// from the column disagree. The model is scaled by
+// more nonzeros than the factors, when the pivot seen from the row and
+// from the column disagree, or when an update's new diagonal disagrees
+// with the pivot. The model is scaled by
 // geometric row/column passes rounded to powers of two. Memory is
 // proportional to the nonzeros of A and of the factors; no dense m×n array
 // is formed.
 //
-// Literature: Koberstein, The dual simplex method, techniques for a fast and
+// Literature: Forrest and Tomlin, Updated triangular factors of the basis
+// to maintain sparsity in the product form simplex method (Math.
+// Programming 2, 1972); Koberstein, The dual simplex method, techniques for a fast and
 // stable implementation (PhD thesis, Paderborn, 2005); Forrest and Goldfarb,
 // Steepest-edge simplex algorithms for linear programming (Math.
 // Programming 57, 1992); Harris, Pivot selection methods of the Devex LP

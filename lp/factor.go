@@ -19,8 +19,8 @@ const (
 	luSearchCols = 4
 )
 
-// factor is a sparse LU factorisation of a basis matrix B (m×m) followed by
-// product-form eta updates. Rows of B are constraint rows; columns are basis
+// factor is a sparse LU factorisation of a basis matrix B (m×m) with
+// Forrest–Tomlin updates (factor_update.go). Rows of B are constraint rows; columns are basis
 // positions.
 //
 // Elimination step k pivots on (pivRow[k], pivCol[k]): the multiples
@@ -62,16 +62,33 @@ type factor struct {
 	ucScale, uScale []scaleStep
 	ucTriv, uTriv   []int
 
-	// Eta file: update e replaced position etaPos[e]; its column (B⁻¹ of
-	// the entering column, without the pivot) is etaIdx/etaVal over
-	// etaStart[e]…etaStart[e+1], and etaPiv[e] is the pivot.
-	etaPos   []int
-	etaPiv   []float64
-	etaStart []int
-	etaIdx   []int
-	etaVal   []float64
+	// Forrest–Tomlin updates (factor_update.go). Update n adds elimination
+	// step m+n, pivoting on row newRow[n] and position newPos[n] with
+	// diagonal newDiag[n]; its U column (the spike, off the diagonal) is
+	// spkIdx/spkVal (rows) over spkStart[n]…spkStart[n+1]. Row eta n
+	// (retaRow, retaStart, retaIdx, retaVal) subtracts from row retaRow[n]
+	// the multiples retaVal of rows retaIdx. The step replaced is dead; the
+	// current step of each row and position is ownRow and ownCol. dead,
+	// ownRow and ownCol are nil until the first update and may be shared
+	// with a saved State (ftOwned false): they are copied before a write.
+	newRow, newPos     []int
+	newDiag            []float64
+	spkStart, spkIdx   []int
+	spkVal             []float64
+	retaRow, retaStart []int
+	retaIdx            []int
+	retaVal            []float64
+	dead               []bool
+	ownRow, ownCol     []int
+	ftOwned            bool
+	// The spike of the entering column (L⁻¹ and the row etas applied),
+	// kept by the solve that keepSpike asks for and used by the next
+	// update; scratch shared by a factor and its copies.
+	keepSpike, spikeOK bool
+	spike              *spikeScratch
 
-	work []float64 // zero between solves
+	work  []float64 // zero between solves
+	work2 []float64 // zero between uses (update)
 
 	// shared: a saved State refers to this factor's arrays, which a new
 	// factorisation must therefore not take over (luScratch.spare).
@@ -88,8 +105,8 @@ type factor struct {
 // hand whose pivot has an exact inverse: the pass sets the value at row
 // (btran) or position (ftran) from the other index times inv.
 type scaleStep struct {
-	row, col int
-	inv      float64
+	k, row, col int
+	inv         float64
 }
 
 // exactInverse reports whether 1/d is exact (d a power of two), so that
@@ -98,18 +115,6 @@ func exactInverse(d float64) bool {
 	frac, _ := math.Frexp(d)
 	return frac == 0.5 || frac == -0.5
 }
-
-// needsRefactor reports whether the eta file has grown enough that a fresh
-// factorisation pays: after refactorEvery updates, or once its nonzeros
-// exceed etaGrowth times those of L, U and the diagonal (from then on every
-// solve spends more on the etas than on the factors).
-func (f *factor) needsRefactor() bool {
-	n := len(f.etaPos)
-	return n >= refactorEvery || (n > 0 && float64(len(f.etaIdx)) > etaGrowth*float64(len(f.lidx)+len(f.uidx)+f.m))
-}
-
-// numUpdates returns the number of eta updates since factorisation.
-func (f *factor) numUpdates() int { return len(f.etaPos) }
 
 // column returns the entries of basis column p.
 type columnFunc func(p int) (idx []int, val []float64)
@@ -456,13 +461,7 @@ func factorizeWith(sc *luScratch, m int, col columnFunc) (f *factor, badCols, fr
 		}
 		return nil, badCols, freeRows
 	}
-	// Room for a few dense eta columns up front: growing the eta file by
-	// doubling from nothing copies it many times.
-	f.etaIdx = reuse(old.etaIdx, 8*m+64)
-	f.etaVal = reuse(old.etaVal, 8*m+64)
-	f.etaPos = reuse(old.etaPos, refactorEvery)
-	f.etaPiv = reuse(old.etaPiv, refactorEvery)
-	f.etaStart = append(reuse(old.etaStart, refactorEvery+1), 0)
+	f.startUpdates(old)
 	f.transpose(sc, old)
 	return f, nil, nil
 }
@@ -559,7 +558,7 @@ func (f *factor) transpose(sc *luScratch, old *factor) {
 		case entries:
 			*steps = append(*steps, k)
 		case exact[k]:
-			*scale = append(*scale, scaleStep{f.pivRow[k], f.pivCol[k], 1 / f.diag[k]})
+			*scale = append(*scale, scaleStep{k, f.pivRow[k], f.pivCol[k], 1 / f.diag[k]})
 		default:
 			*triv = append(*triv, k)
 		}
@@ -585,7 +584,7 @@ func b2i(b bool) int {
 }
 
 // ftran solves B·x = b in place: on entry b is indexed by rows, on return
-// by basis positions. Cost O(m + nonzeros of L, U and the eta file).
+// by basis positions. Cost O(m + nonzeros of L, U and the updates).
 func (f *factor) ftran(b []float64) {
 	for _, k := range f.lSteps {
 		br := b[f.pivRow[k]]
@@ -596,24 +595,45 @@ func (f *factor) ftran(b []float64) {
 			b[f.lidx[p]] -= f.lval[p] * br
 		}
 	}
-	f.ftranU(b, f.m)
+	f.rowEtas(b)
+	if f.keepSpike {
+		f.keepDense(b)
+	}
+	f.ftranU(b, f.m+len(f.newRow))
 }
 
-// ftranU is ftran after its L pass: the U pass and the eta file. The
-// steps from below on (none when below is m) are done already: their
-// values are in f.work and their rows of b are unchanged. It leaves f.work
-// zero.
+// ftranU is ftran after its L pass and the row etas: the U pass, the
+// steps of the updates first (latest first), then those of the
+// factorisation. The steps from below on (none when below is the number of
+// steps) are done already: their values are in f.work and their rows of b
+// unchanged. It leaves f.work zero.
 func (f *factor) ftranU(b []float64, below int) {
 	out := f.work
+	m := f.m
+	for n := min(below-m, len(f.newRow)) - 1; n >= 0; n-- {
+		if f.dead[m+n] {
+			continue
+		}
+		v := b[f.newRow[n]]
+		if v == 0 {
+			continue
+		}
+		v /= f.newDiag[n]
+		out[f.newPos[n]] = v
+		for q := f.spkStart[n]; q < f.spkStart[n+1]; q++ {
+			b[f.spkIdx[q]] -= f.spkVal[q] * v
+		}
+	}
 	steps := f.ucSteps
-	if below < f.m {
+	if below < m {
 		n, _ := slices.BinarySearch(steps, below)
 		steps = steps[:n]
 	}
+	dead := f.dead
 	for i := len(steps) - 1; i >= 0; i-- {
 		k := steps[i]
 		v := b[f.pivRow[k]]
-		if v == 0 {
+		if v == 0 || len(dead) != 0 && dead[k] {
 			continue
 		}
 		v /= f.diag[k]
@@ -622,51 +642,39 @@ func (f *factor) ftranU(b []float64, below int) {
 			b[f.ucRow[p]] -= f.ucVal[p] * v
 		}
 	}
+	// Steps without a U column, in any order (a dead one's position
+	// belongs to the update that replaced it).
 	for _, k := range f.ucTriv {
-		out[f.pivCol[k]] = b[f.pivRow[k]] / f.diag[k]
+		if len(dead) == 0 || !dead[k] {
+			out[f.pivCol[k]] = b[f.pivRow[k]] / f.diag[k]
+		}
 	}
 	for _, st := range f.ucScale {
-		out[st.col] = b[st.row] * st.inv
-	}
-	for e, p := range f.etaPos {
-		xp := out[p] / f.etaPiv[e]
-		if xp != 0 {
-			for q := f.etaStart[e]; q < f.etaStart[e+1]; q++ {
-				out[f.etaIdx[q]] -= f.etaVal[q] * xp
-			}
+		if len(dead) == 0 || !dead[st.k] {
+			out[st.col] = b[st.row] * st.inv
 		}
-		out[p] = xp
 	}
 	copy(b, out)
 	clear(out)
 }
 
 // btran solves yᵀ·B = dᵀ in place: on entry d is indexed by basis
-// positions, on return by rows. Cost O(m + nonzeros of L, U and the eta
-// file).
+// positions, on return by rows. Cost O(m + nonzeros of L, U and the
+// updates).
 func (f *factor) btran(d []float64) {
-	for e := len(f.etaPos) - 1; e >= 0; e-- {
-		f.btranEta(e, d)
-	}
 	f.btranFromU(d)
 }
 
-// btranEta applies eta update e to d in the btran direction and returns
-// the new value at its position.
-func (f *factor) btranEta(e int, d []float64) float64 {
-	p := f.etaPos[e]
-	v := d[p]
-	for q := f.etaStart[e]; q < f.etaStart[e+1]; q++ {
-		v -= f.etaVal[q] * d[f.etaIdx[q]]
-	}
-	d[p] = v / f.etaPiv[e]
-	return d[p]
-}
-
-// btranFromU is btran after the eta file: the Uᵀ and Lᵀ passes.
+// btranFromU is btran: the Uᵀ pass (the factorisation's steps, then the
+// updates'), the row etas transposed, and the Lᵀ pass.
 func (f *factor) btranFromU(d []float64) {
 	w := f.work
+	saved := f.saveNew(d)
+	dead := f.dead
 	for _, k := range f.uSteps {
+		if len(dead) != 0 && dead[k] {
+			continue
+		}
 		wr := d[f.pivCol[k]] / f.diag[k]
 		w[f.pivRow[k]] = wr
 		if wr == 0 {
@@ -677,11 +685,17 @@ func (f *factor) btranFromU(d []float64) {
 		}
 	}
 	for _, k := range f.uTriv {
-		w[f.pivRow[k]] = d[f.pivCol[k]] / f.diag[k]
+		if len(dead) == 0 || !dead[k] {
+			w[f.pivRow[k]] = d[f.pivCol[k]] / f.diag[k]
+		}
 	}
 	for _, st := range f.uScale {
-		w[st.row] = d[st.col] * st.inv
+		if len(dead) == 0 || !dead[st.k] {
+			w[st.row] = d[st.col] * st.inv
+		}
 	}
+	f.btranNew(saved, w, nil)
+	f.rowEtasT(w, nil)
 	f.btranFromL(d, f.m)
 }
 
@@ -707,36 +721,4 @@ func (f *factor) btranFromL(d []float64, below int) {
 	}
 	copy(d, w)
 	clear(w)
-}
-
-// updateSparse is update for an alpha whose nonzeros are among the
-// sorted positions nz (nil: anywhere). Cost O(len(nz)).
-func (f *factor) updateSparse(p int, alpha []float64, nz []int) {
-	if nz == nil {
-		f.update(p, alpha)
-		return
-	}
-	f.etaPos = append(f.etaPos, p)
-	f.etaPiv = append(f.etaPiv, alpha[p])
-	for _, i := range nz {
-		if v := alpha[i]; i != p && v != 0 {
-			f.etaIdx = append(f.etaIdx, i)
-			f.etaVal = append(f.etaVal, v)
-		}
-	}
-	f.etaStart = append(f.etaStart, len(f.etaIdx))
-}
-
-// update records that the column at position p was replaced by a column
-// whose ftran is alpha (indexed by positions). Cost O(m).
-func (f *factor) update(p int, alpha []float64) {
-	f.etaPos = append(f.etaPos, p)
-	f.etaPiv = append(f.etaPiv, alpha[p])
-	for i, v := range alpha {
-		if i != p && v != 0 {
-			f.etaIdx = append(f.etaIdx, i)
-			f.etaVal = append(f.etaVal, v)
-		}
-	}
-	f.etaStart = append(f.etaStart, len(f.etaIdx))
 }

@@ -51,6 +51,7 @@ type sparseScratch struct {
 	out     []int
 	start   []int
 	touched []int
+	rows    []int
 }
 
 // nextGen starts a new marking round.
@@ -105,10 +106,12 @@ func (f *factor) initSparse(old *factor) {
 	// btran, Lᵀ pass: row pivRow[k] updates the pivot rows of the steps
 	// whose multipliers touch it.
 	f.gLt = stepGraph{ptr: f.ltStart, adj: mapped(f.ltRow, f.stepOfRow, old.gLt.adj), byRow: true}
-	if old.sc != nil && len(old.sc.mark) == m {
+	// Marks for steps (the updates' numbered from m on), rows and
+	// positions.
+	if old.sc != nil && len(old.sc.mark) == m+refactorEvery {
 		f.sc = old.sc // its marks are older than its generation
 	} else {
-		f.sc = &sparseScratch{mark: make([]uint32, m)}
+		f.sc = &sparseScratch{mark: make([]uint32, m+refactorEvery)}
 	}
 }
 
@@ -195,15 +198,59 @@ func (f *factor) ftranSparse(b []float64, nz []int) []int {
 			b[f.lidx[p]] -= f.lval[p] * br
 		}
 	}
+	updated := len(f.newRow) > 0
+	if updated {
+		// The row etas may make more rows nonzero: their steps join the
+		// list (no longer sorted).
+		for e, r := range f.retaRow {
+			v := b[r]
+			for q := f.retaStart[e]; q < f.retaStart[e+1]; q++ {
+				v -= f.retaVal[q] * b[f.retaIdx[q]]
+			}
+			b[r] = v
+			if k := f.stepOfRow[r]; v != 0 && sc.mark[k] != sc.gen {
+				sc.mark[k] = sc.gen
+				sc.steps = append(sc.steps, k)
+			}
+		}
+	}
+	if f.keepSpike {
+		sp := f.spike
+		sp.idx, sp.val = sp.idx[:0], sp.val[:0]
+		for _, k := range sc.steps {
+			if i := f.pivRow[k]; b[i] != 0 {
+				sp.idx = append(sp.idx, i)
+				sp.val = append(sp.val, b[i])
+			}
+		}
+		f.keepSpike, f.spikeOK = false, true
+	}
 	// U pass, latest step first: step k sends its value to the rows of
-	// the earlier steps in its U column. The steps of the L reach are
-	// pending (sorted ascending, reversed they form a heap); b keeps the
-	// rows' values until the end, so that a dense finish can take over.
+	// the earlier steps in its U column. The steps of the rows the L pass
+	// reached are pending (with no updates, sorted ascending: reversed
+	// they form a heap); b keeps the rows' values until the end, so that a
+	// dense finish can take over.
 	out := f.work // zero between solves
 	gen := sc.nextGen()
-	heap, touched := f.pending(gen, b)
+	var heap, touched []int
+	if updated {
+		heap, touched = sc.stack[:0], sc.touched[:0]
+		for _, k := range sc.steps {
+			i := f.pivRow[k]
+			if b[i] == 0 {
+				continue
+			}
+			o := f.ownRow[i]
+			sc.mark[o] = gen
+			heap = pushMax(heap, o)
+			touched = append(touched, o)
+		}
+	} else {
+		heap, touched = f.pending(gen, b)
+	}
 	done := sc.steps[:0]
 	adj := f.gU.adj
+	dead := f.dead
 	for len(heap) > 0 {
 		var k int
 		k, heap = popMax(heap)
@@ -213,6 +260,33 @@ func (f *factor) ftranSparse(b []float64, nz []int) []int {
 			f.ftranU(b, k+1)
 			return nil
 		}
+		if k >= m {
+			// An update's step: its spike reaches rows of earlier steps
+			// (entries in rows now owned by later steps were eliminated
+			// by their row etas).
+			n := k - m
+			v := b[f.newRow[n]]
+			if v == 0 {
+				continue
+			}
+			v /= f.newDiag[n]
+			out[f.newPos[n]] = v
+			done = append(done, k)
+			for q := f.spkStart[n]; q < f.spkStart[n+1]; q++ {
+				i := f.spkIdx[q]
+				o := f.ownRow[i]
+				if o >= k {
+					continue
+				}
+				b[i] -= f.spkVal[q] * v
+				if sc.mark[o] != gen {
+					sc.mark[o] = gen
+					heap = pushMax(heap, o)
+					touched = append(touched, o)
+				}
+			}
+			continue
+		}
 		v := b[f.pivRow[k]]
 		if v == 0 {
 			continue
@@ -221,8 +295,12 @@ func (f *factor) ftranSparse(b []float64, nz []int) []int {
 		out[f.pivCol[k]] = v
 		done = append(done, k)
 		for p := f.ucStart[k]; p < f.ucStart[k+1]; p++ {
+			q := adj[p]
+			if updated && dead[q] {
+				continue // the row moved to an update's step: eliminated
+			}
 			b[f.ucRow[p]] -= f.ucVal[p] * v
-			if q := adj[p]; sc.mark[q] != gen {
+			if sc.mark[q] != gen {
 				sc.mark[q] = gen
 				heap = pushMax(heap, q)
 				touched = append(touched, q)
@@ -230,38 +308,16 @@ func (f *factor) ftranSparse(b []float64, nz []int) []int {
 		}
 	}
 	for _, k := range touched {
-		b[f.pivRow[k]] = 0
+		b[f.rowOf(k)] = 0
 	}
 	sc.stack, sc.touched, sc.steps = heap[:0], touched[:0], done
 	// List the positions.
-	gen = sc.nextGen()
 	list := sc.out[:0]
 	for _, k := range done {
-		c := f.pivCol[k]
-		sc.mark[c] = gen
-		list = append(list, c)
-	}
-	for e, p := range f.etaPos {
-		xp := out[p] / f.etaPiv[e]
-		if xp != 0 {
-			for q := f.etaStart[e]; q < f.etaStart[e+1]; q++ {
-				i := f.etaIdx[q]
-				out[i] -= f.etaVal[q] * xp
-				if sc.mark[i] != gen {
-					sc.mark[i] = gen
-					list = append(list, i)
-				}
-			}
-		}
-		out[p] = xp
-		if sc.mark[p] != gen {
-			sc.mark[p] = gen
-			list = append(list, p)
-		}
-	}
-	for _, p := range list {
+		p := f.colOf(k)
 		b[p] = out[p]
 		out[p] = 0
+		list = append(list, p)
 	}
 	sc.out = list
 	return list
@@ -273,21 +329,22 @@ func (f *factor) ftranSparse(b []float64, nz []int) []int {
 // with this factor.
 func (f *factor) btranSparse(d []float64, nz []int) []int {
 	m := f.m
-	if f.sc == nil || nz == nil || float64(len(nz)+len(f.etaPos)) > hyperInShare*float64(m) {
+	if f.sc == nil || nz == nil || float64(len(nz)+len(f.newRow)) > hyperInShare*float64(m) {
 		f.btran(d)
 		return nil
 	}
 	limit := int(hyperReachShare * float64(m))
 	sc := f.sc
-	// Eta file, newest first: position p may become nonzero.
+	updated := len(f.newRow) > 0
 	start := sc.start[:0]
 	defer func() { sc.start = start[:0] }()
 	for _, p := range nz {
-		start = append(start, f.stepOfCol[p])
-	}
-	for e := len(f.etaPos) - 1; e >= 0; e-- {
-		if f.btranEta(e, d) != 0 {
-			start = append(start, f.stepOfCol[f.etaPos[e]])
+		k := f.stepOfCol[p]
+		if updated {
+			k = f.ownCol[p]
+		}
+		if k < m {
+			start = append(start, k)
 		}
 	}
 	// Uᵀ pass: step k reaches the later steps of the columns in U row k.
@@ -295,8 +352,13 @@ func (f *factor) btranSparse(d []float64, nz []int) []int {
 		f.btranFromU(d)
 		return nil
 	}
+	saved := f.saveNew(d)
 	w := f.work // zero between solves
+	dead := f.dead
 	for _, k := range sc.steps {
+		if updated && dead[k] {
+			continue
+		}
 		c := f.pivCol[k]
 		wr := d[c] / f.diag[k]
 		d[c] = 0
@@ -308,11 +370,34 @@ func (f *factor) btranSparse(d []float64, nz []int) []int {
 			d[f.uidx[p]] -= wr * f.uval[p]
 		}
 	}
+	var extra []int // rows written outside the steps of the reach
+	if updated {
+		// The updates' steps, and the row etas. The Uᵀ pass wrote into
+		// the updates' positions from entries no longer in the basis.
+		for _, p := range f.newPos {
+			d[p] = 0
+		}
+		extra = sc.rows[:0]
+		f.btranNew(saved, w, &extra)
+		f.rowEtasT(w, &extra)
+	}
 	// Lᵀ pass, latest step first: the row of step k sends its value to
 	// the pivot rows of the earlier steps whose multipliers touch it.
-	// Pending steps are the Uᵀ reach (sorted ascending, reversed a heap).
+	// Pending steps are the Uᵀ reach (sorted ascending, reversed a heap)
+	// and the steps of the rows the updates wrote (L keeps the steps of
+	// the factorisation).
 	gen := sc.nextGen()
 	heap, touched := f.pending(gen, w)
+	for _, i := range extra {
+		if k := f.stepOfRow[i]; sc.mark[k] != gen && w[i] != 0 {
+			sc.mark[k] = gen
+			heap = pushMax(heap, k)
+			touched = append(touched, k)
+		}
+	}
+	if updated {
+		sc.rows = extra[:0]
+	}
 	adj := f.gLt.adj
 	for len(heap) > 0 {
 		var k int
@@ -337,8 +422,8 @@ func (f *factor) btranSparse(d []float64, nz []int) []int {
 			}
 		}
 	}
-	// d is zero now except at positions the eta file touched outside the
-	// reach (none: every nonzero position started a step). Move w to d.
+	// d is zero now (every nonzero position started a step of the reach
+	// or is an update's). Move w to d.
 	list := sc.out[:0]
 	for _, k := range touched {
 		r := f.pivRow[k]

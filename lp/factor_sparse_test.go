@@ -70,20 +70,31 @@ func TestSparseSolvesMatchDense(t *testing.T) {
 		if f == nil || len(bad) > 0 {
 			t.Fatalf("trial %d: random basis singular", trial)
 		}
-		// A few eta updates: replace positions by new random columns.
-		for u := 0; u < rng.Intn(30); u++ {
+		// Updates: replace positions by new random columns, some more
+		// than once (an update's own step replaced), through the dense
+		// and the sparse FTRAN of the entering column.
+		for u := 0; u < rng.Intn(60); u++ {
 			p := rng.Intn(m)
+			if u%4 == 3 && f.numUpdates() > 0 {
+				p = f.newPos[rng.Intn(f.numUpdates())]
+			}
 			ci := []int{rng.Intn(m), rng.Intn(m)}
 			cv := []float64{rng.Float64() + 1, rng.Float64() - 0.5}
 			alpha := make([]float64, m)
 			for k, i := range ci {
 				alpha[i] += cv[k]
 			}
-			f.ftran(alpha)
+			nz := ci
+			if u%2 == 0 {
+				nz = nil
+			}
+			f.ftranEntering(alpha, nz)
 			if math.Abs(alpha[p]) < 0.1 {
 				continue
 			}
-			f.update(p, alpha)
+			if !f.update(p, alpha[p]) {
+				t.Fatalf("trial %d: update %d refused", trial, u)
+			}
 			idx[p], val[p] = ci, cv
 		}
 		for rep := 0; rep < 20; rep++ {
@@ -167,16 +178,22 @@ func checkSame(t *testing.T, what string, trial int, got, want []float64, list [
 	}
 }
 
-// TestRefactorRule checks when the eta file asks for a fresh factorisation:
-// updates whose columns are a single entry (etas without off-pivot
-// nonzeros) do so only after refactorEvery updates, and dense updates as
-// soon as their nonzeros pass etaGrowth times those of L, U and the
-// diagonal, well before that count.
+// TestRefactorRule checks when the updates ask for a fresh factorisation:
+// updates whose spikes stay small do so only after refactorEvery updates,
+// and dense ones as soon as their nonzeros pass etaGrowth times those of L,
+// U and the diagonal, well before that count.
 func TestRefactorRule(t *testing.T) {
 	rng := rand.New(rand.NewSource(11))
 	const m = 300
 	idx, val := randomBasis(rng, m, 0.9)
 	col := func(p int) ([]int, []float64) { return idx[p], val[p] }
+	enter := func(f *factor, p int, alpha []float64) {
+		t.Helper()
+		f.ftranEntering(alpha, nil)
+		if !f.update(p, alpha[p]) {
+			t.Fatalf("update at position %d refused", p)
+		}
+	}
 
 	f, bad, _ := factorize(m, col)
 	if f == nil || len(bad) > 0 {
@@ -184,11 +201,15 @@ func TestRefactorRule(t *testing.T) {
 	}
 	for u := 1; u <= refactorEvery; u++ {
 		if f.needsRefactor() {
-			t.Fatalf("single-entry updates: refactorisation asked after %d updates, want %d", u-1, refactorEvery)
+			t.Fatalf("small updates: refactorisation asked after %d updates, want %d", u-1, refactorEvery)
 		}
+		// The column at position p, doubled: its spike is U's column.
+		p := u % m
 		alpha := make([]float64, m)
-		alpha[u%m] = 1
-		f.update(u%m, alpha)
+		for k, i := range idx[p] {
+			alpha[i] = 2 * val[p][k]
+		}
+		enter(f, p, alpha)
 	}
 	if !f.needsRefactor() {
 		t.Fatalf("no refactorisation asked after %d updates", refactorEvery)
@@ -197,18 +218,97 @@ func TestRefactorRule(t *testing.T) {
 	f, _, _ = factorize(m, col)
 	limit := etaGrowth * float64(len(f.lidx)+len(f.uidx)+m)
 	updates := 0
+	size := func() int { return len(f.spkIdx) + len(f.retaIdx) }
 	for !f.needsRefactor() {
-		if float64(len(f.etaIdx)) > limit {
-			t.Fatalf("eta file of %d nonzeros, above %g, without a refactorisation asked", len(f.etaIdx), limit)
+		if float64(size()) > limit {
+			t.Fatalf("updates of %d nonzeros, above %g, without a refactorisation asked", size(), limit)
 		}
 		alpha := make([]float64, m)
 		for i := range alpha {
 			alpha[i] = 1 + rng.Float64()
 		}
-		f.update(updates%m, alpha)
+		enter(f, updates%m, alpha)
 		updates++
 	}
-	if float64(len(f.etaIdx)) <= limit || updates >= refactorEvery {
-		t.Fatalf("dense updates: refactorisation asked after %d updates with %d eta nonzeros (limit %g)", updates, len(f.etaIdx), limit)
+	if float64(size()) <= limit || updates >= refactorEvery {
+		t.Fatalf("dense updates: refactorisation asked after %d updates with %d nonzeros (limit %g)", updates, size(), limit)
+	}
+}
+
+// TestUpdatesOnCopies checks that a copy of an updated factor, as a saved
+// State keeps it, and the factor it came from can both go on with updates
+// of their own: each must still solve its own basis (source: the
+// definition of the solves, B·x = b and yᵀ·B = dᵀ).
+func TestUpdatesOnCopies(t *testing.T) {
+	rng := rand.New(rand.NewSource(17))
+	for _, m := range []int{300, hyperMinRows + 500} {
+		idx, val := randomBasis(rng, m, 0.7)
+		f, bad, _ := factorize(m, func(p int) ([]int, []float64) { return idx[p], val[p] })
+		if f == nil || len(bad) > 0 {
+			t.Fatal("random basis singular")
+		}
+		// update replaces n columns of the factor g, whose basis is
+		// gi/gv, at random positions.
+		update := func(g *factor, gi [][]int, gv [][]float64, n int) {
+			for done := 0; done < n; {
+				p := rng.Intn(m)
+				ci := []int{rng.Intn(m), rng.Intn(m), rng.Intn(m)}
+				cv := []float64{rng.Float64() + 1, rng.Float64() - 0.5, rng.Float64() - 0.5}
+				alpha := make([]float64, m)
+				for k, i := range ci {
+					alpha[i] += cv[k]
+				}
+				g.ftranEntering(alpha, ci)
+				if math.Abs(alpha[p]) < 0.1 {
+					continue
+				}
+				if !g.update(p, alpha[p]) {
+					t.Fatalf("m=%d: update refused", m)
+				}
+				gi[p], gv[p] = ci, cv
+				done++
+			}
+		}
+		update(f, idx, val, 20)
+		// The copy, as SaveState and RestoreState make it.
+		f.shared, f.ftOwned = true, false
+		cp := *f
+		cp.clipUpdates()
+		ci := append([][]int(nil), idx...)
+		cv := append([][]float64(nil), val...)
+		update(f, idx, val, 30)
+		update(&cp, ci, cv, 30)
+		for _, c := range []struct {
+			g    *factor
+			i    [][]int
+			v    [][]float64
+			name string
+		}{{f, idx, val, "factor"}, {&cp, ci, cv, "copy"}} {
+			if c.g.numUpdates() != 50 {
+				t.Fatalf("m=%d: %s has %d updates, want 50", m, c.name, c.g.numUpdates())
+			}
+			b := make([]float64, m)
+			for i := range b {
+				b[i] = rng.Float64() - 0.5
+			}
+			x := append([]float64(nil), b...)
+			c.g.ftran(x)
+			for i, v := range multiply(c.i, c.v, x) {
+				if math.Abs(v-b[i]) > 1e-9 {
+					t.Fatalf("m=%d: %s: ftran residual %g at row %d", m, c.name, v-b[i], i)
+				}
+			}
+			y := append([]float64(nil), b...)
+			c.g.btran(y)
+			for p := range c.i {
+				s := 0.0
+				for k, i := range c.i[p] {
+					s += c.v[p][k] * y[i]
+				}
+				if math.Abs(s-b[p]) > 1e-9 {
+					t.Fatalf("m=%d: %s: btran residual %g at position %d", m, c.name, s-b[p], p)
+				}
+			}
+		}
 	}
 }

@@ -899,7 +899,7 @@ func (s *Solver) dualSimplex(lim *limits, useCutoff bool) Status {
 		for k, i := range idx {
 			alpha[i] = val[k]
 		}
-		alphaNZ := s.keepNZ(&s.alphaNZ, s.fac.ftranSparse(alpha, idx))
+		alphaNZ := s.keepNZ(&s.alphaNZ, s.fac.ftranEntering(alpha, idx))
 		alphaWas = alphaNZ
 		arq := alpha[r]
 		if math.Abs(arq-row[q]) > pivotMismatchTol*(1+math.Abs(arq)) && s.fac.numUpdates() > 0 {
@@ -1022,9 +1022,17 @@ func (s *Solver) dualSimplex(lim *limits, useCutoff bool) Status {
 		}
 		s.partitionMove(q, true)
 		s.partitionMove(leave, false)
-		s.fac.updateSparse(r, alpha, alphaNZ)
 		s.setInfeasibility(r, ptol)
 		s.iterations++
+		if !s.fac.update(r, arq) {
+			// The update was refused (numerically doubtful): factorise
+			// the new basis afresh.
+			if !s.refactor() {
+				return NumericalTrouble
+			}
+			s.flipToDualFeasible(dtol)
+			dirty = true
+		}
 	}
 }
 
@@ -1342,7 +1350,7 @@ func (s *Solver) primalSimplex(lim *limits) Status {
 		for k, i := range idx {
 			alpha[i] = val[k]
 		}
-		s.fac.ftran(alpha)
+		s.fac.ftranEntering(alpha, nil)
 		flip := s.up[q] - s.lo[q]
 		usedTol := pivotTol
 		r, step := s.primalRatioTest(alpha, dir, usedTol)
@@ -1420,8 +1428,10 @@ func (s *Solver) primalSimplex(lim *limits) Status {
 		s.x[leave] = s.boundValue(leave, s.stat[leave])
 		s.head[r] = q
 		s.stat[q] = Basic
-		s.fac.update(r, alpha)
 		s.iterations++
+		if !s.fac.update(r, alpha[r]) && !s.refactor() {
+			return NumericalTrouble
+		}
 	}
 }
 

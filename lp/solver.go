@@ -20,13 +20,13 @@ const (
 	// refactorEvery is the number of basis updates after which the
 	// factorisation is rebuilt from scratch (common practice: about 100).
 	refactorEvery = 100
-	// etaGrowth: the factorisation is also rebuilt once the eta file holds
+	// etaGrowth: the factorisation is also rebuilt once the updates hold
 	// more than this many times the nonzeros of L, U and the diagonal, so
-	// that the etas never cost each solve more than the factors do. On the
-	// 25-site synthetic planning case (dense tableau columns) this rebuilt
-	// after some 20 updates and made each simplex iteration 16–19 % cheaper
-	// (BenchmarkSolveNodes/M, 300 nodes: 43 s → 29 s); it changed little
-	// on the 50-site case, whose etas stay small against its factors.
+	// that they never cost each solve more than the factors do. With the
+	// product-form updates this rebuilt the 25-site synthetic planning
+	// case's factors after some 20 updates (dense tableau columns) and made
+	// each iteration 16–19 % cheaper; the Forrest–Tomlin updates hold some
+	// 41 nonzeros each there (spike and row eta), so refactorEvery rules.
 	etaGrowth = 1.0
 	// pivotMismatchTol: when the pivot computed from the row and from the
 	// column differ by more than this (relative), the factorisation is
@@ -526,6 +526,7 @@ func (s *Solver) SaveState() *State {
 	}
 	if s.facValid {
 		s.fac.shared = true // the State refers to its arrays: never recycle them
+		s.fac.ftOwned = false
 		f := *s.fac
 		st.fac = &f
 	}
@@ -550,11 +551,7 @@ func (s *Solver) RestoreState(st *State) {
 		// capacity clipped, so its future updates cannot overwrite what
 		// another State still refers to.
 		f := *st.fac
-		f.etaPos = f.etaPos[:len(f.etaPos):len(f.etaPos)]
-		f.etaPiv = f.etaPiv[:len(f.etaPiv):len(f.etaPiv)]
-		f.etaStart = f.etaStart[:len(f.etaStart):len(f.etaStart)]
-		f.etaIdx = f.etaIdx[:len(f.etaIdx):len(f.etaIdx)]
-		f.etaVal = f.etaVal[:len(f.etaVal):len(f.etaVal)]
+		f.clipUpdates()
 		s.fac = &f
 		s.facValid = true
 	}
