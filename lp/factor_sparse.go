@@ -233,17 +233,19 @@ func (f *factor) ftranSparse(b []float64, nz []int) []int {
 	out := f.work // zero between solves
 	gen := sc.nextGen()
 	var heap, touched []int
+	push := func(k int) {
+		if sc.mark[k] != gen {
+			sc.mark[k] = gen
+			heap = pushMax(heap, k)
+			touched = append(touched, k)
+		}
+	}
 	if updated {
 		heap, touched = sc.stack[:0], sc.touched[:0]
 		for _, k := range sc.steps {
-			i := f.pivRow[k]
-			if b[i] == 0 {
-				continue
+			if i := f.pivRow[k]; b[i] != 0 {
+				push(f.ownRow[i])
 			}
-			o := f.ownRow[i]
-			sc.mark[o] = gen
-			heap = pushMax(heap, o)
-			touched = append(touched, o)
 		}
 	} else {
 		heap, touched = f.pending(gen, b)
@@ -260,61 +262,46 @@ func (f *factor) ftranSparse(b []float64, nz []int) []int {
 			f.ftranU(b, k+1)
 			return nil
 		}
-		if k >= m {
-			// An update's step: its spike reaches rows of earlier steps
-			// (entries in rows now owned by later steps were eliminated
-			// by their row etas).
-			n := k - m
-			v := b[f.newRow[n]]
-			if v == 0 {
-				continue
-			}
-			v /= f.newDiag[n]
-			out[f.newPos[n]] = v
-			done = append(done, k)
-			for q := f.spkStart[n]; q < f.spkStart[n+1]; q++ {
-				i := f.spkIdx[q]
-				o := f.ownRow[i]
-				if o >= k {
-					continue
-				}
-				b[i] -= f.spkVal[q] * v
-				if sc.mark[o] != gen {
-					sc.mark[o] = gen
-					heap = pushMax(heap, o)
-					touched = append(touched, o)
-				}
-			}
-			continue
-		}
-		v := b[f.pivRow[k]]
+		row, pos, diag := f.pivot(k)
+		v := b[row]
 		if v == 0 {
 			continue
 		}
-		v /= f.diag[k]
-		out[f.pivCol[k]] = v
+		v /= diag
+		out[pos] = v
 		done = append(done, k)
-		for p := f.ucStart[k]; p < f.ucStart[k+1]; p++ {
-			q := adj[p]
-			if updated && dead[q] {
-				continue // the row moved to an update's step: eliminated
+		if k < m {
+			for p := f.ucStart[k]; p < f.ucStart[k+1]; p++ {
+				q := adj[p]
+				if updated && dead[q] {
+					continue // the row moved to an update's step: eliminated
+				}
+				b[f.ucRow[p]] -= f.ucVal[p] * v
+				push(q)
 			}
-			b[f.ucRow[p]] -= f.ucVal[p] * v
-			if sc.mark[q] != gen {
-				sc.mark[q] = gen
-				heap = pushMax(heap, q)
-				touched = append(touched, q)
+			continue
+		}
+		// An update's step: its spike reaches rows of earlier steps
+		// (entries in rows now owned by later steps were eliminated by
+		// their row etas).
+		n := k - m
+		for q := f.spkStart[n]; q < f.spkStart[n+1]; q++ {
+			i := f.spkIdx[q]
+			if o := f.ownRow[i]; o < k {
+				b[i] -= f.spkVal[q] * v
+				push(o)
 			}
 		}
 	}
 	for _, k := range touched {
-		b[f.rowOf(k)] = 0
+		row, _, _ := f.pivot(k)
+		b[row] = 0
 	}
 	sc.stack, sc.touched, sc.steps = heap[:0], touched[:0], done
 	// List the positions.
 	list := sc.out[:0]
 	for _, k := range done {
-		p := f.colOf(k)
+		_, p, _ := f.pivot(k)
 		b[p] = out[p]
 		out[p] = 0
 		list = append(list, p)

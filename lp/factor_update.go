@@ -67,19 +67,14 @@ func (f *factor) needsRefactor() bool {
 // numUpdates returns the number of updates since factorisation.
 func (f *factor) numUpdates() int { return len(f.newRow) }
 
-// rowOf and colOf return the pivot row and position of step k.
-func (f *factor) rowOf(k int) int {
+// pivot returns the pivot row, position and diagonal of step k (of the
+// factorisation below m, of an update from m on).
+func (f *factor) pivot(k int) (row, pos int, diag float64) {
 	if k < f.m {
-		return f.pivRow[k]
+		return f.pivRow[k], f.pivCol[k], f.diag[k]
 	}
-	return f.newRow[k-f.m]
-}
-
-func (f *factor) colOf(k int) int {
-	if k < f.m {
-		return f.pivCol[k]
-	}
-	return f.newPos[k-f.m]
+	n := k - f.m
+	return f.newRow[n], f.newPos[n], f.newDiag[n]
 }
 
 // own makes dead, ownRow and ownCol this factor's own and sets them up at
@@ -215,12 +210,7 @@ func (f *factor) update(p int, alphaP float64) bool {
 	m := f.m
 	sp := f.spike
 	k := f.ownCol[p]
-	r, diagK := f.rowOf(k), 0.0
-	if k < m {
-		diagK = f.diag[k]
-	} else {
-		diagK = f.newDiag[k-m]
-	}
+	r, _, diagK := f.pivot(k)
 	// coef: row r and minus the multipliers of the rows found so far.
 	coef := f.work2
 	coef[r] = 1
