@@ -20,8 +20,8 @@ const (
 )
 
 // factor is a sparse LU factorisation of a basis matrix B (m×m) with
-// Forrest–Tomlin updates (factor_update.go). Rows of B are constraint rows; columns are basis
-// positions.
+// Forrest–Tomlin updates (factor_update.go). Rows of B are constraint
+// rows; columns are basis positions.
 //
 // Elimination step k pivots on (pivRow[k], pivCol[k]): the multiples
 // lval[...] of row pivRow[k] are subtracted from rows lidx[...] (the L
@@ -69,8 +69,9 @@ type factor struct {
 	// (retaRow, retaStart, retaIdx, retaVal) subtracts from row retaRow[n]
 	// the multiples retaVal of rows retaIdx. The step replaced is dead; the
 	// current step of each row and position is ownRow and ownCol. dead,
-	// ownRow and ownCol are nil until the first update and may be shared
-	// with a saved State (ftOwned false): they are copied before a write.
+	// ownRow and ownCol are empty until the first update and may be
+	// shared with a saved State (ftOwned false): they are copied before a
+	// write.
 	newRow, newPos     []int
 	newDiag            []float64
 	spkStart, spkIdx   []int
@@ -659,15 +660,10 @@ func (f *factor) ftranU(b []float64, below int) {
 }
 
 // btran solves yᵀ·B = dᵀ in place: on entry d is indexed by basis
-// positions, on return by rows. Cost O(m + nonzeros of L, U and the
-// updates).
+// positions, on return by rows. It takes the Uᵀ pass (the factorisation's
+// steps, then the updates'), the row etas transposed, and the Lᵀ pass.
+// Cost O(m + nonzeros of L, U and the updates).
 func (f *factor) btran(d []float64) {
-	f.btranFromU(d)
-}
-
-// btranFromU is btran: the Uᵀ pass (the factorisation's steps, then the
-// updates'), the row etas transposed, and the Lᵀ pass.
-func (f *factor) btranFromU(d []float64) {
 	w := f.work
 	saved := f.saveNew(d)
 	dead := f.dead

@@ -336,7 +336,7 @@ func (f *factor) btranSparse(d []float64, nz []int) []int {
 	}
 	// Uᵀ pass: step k reaches the later steps of the columns in U row k.
 	if !f.reach(start, limit, &f.gUt) {
-		f.btranFromU(d)
+		f.btran(d)
 		return nil
 	}
 	saved := f.saveNew(d)

@@ -151,9 +151,6 @@ func (f *factor) keepDense(b []float64) {
 // writes into them (their columns there are no longer in the basis).
 func (f *factor) saveNew(d []float64) []float64 {
 	sp := f.spike
-	if sp == nil {
-		return nil
-	}
 	sp.saved = sp.saved[:0]
 	for _, p := range f.newPos {
 		sp.saved = append(sp.saved, d[p])
