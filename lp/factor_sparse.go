@@ -202,13 +202,9 @@ func (f *factor) ftranSparse(b []float64, nz []int) []int {
 	if updated {
 		// The row etas may make more rows nonzero: their steps join the
 		// list (no longer sorted).
-		for e, r := range f.retaRow {
-			v := b[r]
-			for q := f.retaStart[e]; q < f.retaStart[e+1]; q++ {
-				v -= f.retaVal[q] * b[f.retaIdx[q]]
-			}
-			b[r] = v
-			if k := f.stepOfRow[r]; v != 0 && sc.mark[k] != sc.gen {
+		f.rowEtas(b)
+		for _, r := range f.retaRow {
+			if k := f.stepOfRow[r]; b[r] != 0 && sc.mark[k] != sc.gen {
 				sc.mark[k] = sc.gen
 				sc.steps = append(sc.steps, k)
 			}
@@ -223,7 +219,7 @@ func (f *factor) ftranSparse(b []float64, nz []int) []int {
 				sp.val = append(sp.val, b[i])
 			}
 		}
-		f.keepSpike, f.spikeOK = false, true
+		f.spikeOK = true
 	}
 	// U pass, latest step first: step k sends its value to the rows of
 	// the earlier steps in its U column. The steps of the rows the L pass

@@ -143,7 +143,7 @@ func (f *factor) keepDense(b []float64) {
 			sp.val = append(sp.val, v)
 		}
 	}
-	f.keepSpike, f.spikeOK = false, true
+	f.spikeOK = true
 }
 
 // saveNew returns the values of d (indexed by positions) at the positions
