@@ -16,7 +16,9 @@ import "math"
 // nonzeros on the planning models: on the synthetic 25-site case (M) an
 // update holds 41 nonzeros on average (spike 18, row eta 23) where B⁻¹·a
 // averaged 313, and the root LP of M and of the 50-site case (L) took
-// about 21 % less time per iteration (BenchmarkRelaxation).
+// 9 to 25 % (M) and 21 to 24 % (L) less time per iteration
+// (BenchmarkRelaxation, three pairs of runs of the two builds, on a
+// machine whose speed drifts).
 
 // spikeScratch holds the spike of the last entering column, and scratch of
 // the solves with updates; shared by a factor and its copies (the solver is
