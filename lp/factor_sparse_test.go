@@ -312,3 +312,55 @@ func TestUpdatesOnCopies(t *testing.T) {
 		}
 	}
 }
+
+// TestUpdateRefused checks that update refuses, and leaves the factor as it
+// was, when no spike is kept or when the pivot it is given disagrees with
+// the factors (the new diagonal must be the pivot times the old one): the
+// factor must still solve its old basis (source: the definition of the
+// solves).
+func TestUpdateRefused(t *testing.T) {
+	rng := rand.New(rand.NewSource(23))
+	const m = 300
+	idx, val := randomBasis(rng, m, 0.7)
+	f, bad, _ := factorize(m, func(p int) ([]int, []float64) { return idx[p], val[p] })
+	if f == nil || len(bad) > 0 {
+		t.Fatal("random basis singular")
+	}
+	solvesOld := func(what string) {
+		t.Helper()
+		b := make([]float64, m)
+		for i := range b {
+			b[i] = rng.Float64() - 0.5
+		}
+		x := append([]float64(nil), b...)
+		f.ftran(x)
+		for i, v := range multiply(idx, val, x) {
+			if math.Abs(v-b[i]) > 1e-9 {
+				t.Fatalf("%s: ftran residual %g at row %d", what, v-b[i], i)
+			}
+		}
+	}
+	if f.update(0, 1) {
+		t.Fatal("update without a kept spike accepted")
+	}
+	refused := 0
+	for p := 0; p < m && refused < 5; p++ {
+		alpha := make([]float64, m)
+		alpha[rng.Intn(m)], alpha[rng.Intn(m)] = 1+rng.Float64(), rng.Float64()-0.5
+		f.ftranEntering(alpha, nil)
+		if math.Abs(alpha[p]) < 0.1 {
+			continue
+		}
+		if f.update(p, 2*alpha[p]) {
+			t.Fatalf("update at position %d accepted with twice its pivot", p)
+		}
+		refused++
+		if f.numUpdates() != 0 || len(f.retaIdx) != 0 || len(f.spkIdx) != 0 {
+			t.Fatalf("refused update left %d updates, %d row-eta and %d spike entries", f.numUpdates(), len(f.retaIdx), len(f.spkIdx))
+		}
+		solvesOld("after a refused update")
+	}
+	if refused == 0 {
+		t.Fatal("no update tried")
+	}
+}

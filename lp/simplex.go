@@ -794,6 +794,17 @@ func (s *Solver) dualSimplex(lim *limits, useCutoff bool) Status {
 	s.infAt = resize(s.infAt, s.m)
 	pinf := s.pinf
 	dirty := true
+	// refresh factorises the basis afresh, as a numerical doubt or the
+	// growth of the updates asks, restores dual feasibility by bound
+	// flips and asks for the values to be recomputed.
+	refresh := func() bool {
+		if !s.refactor() {
+			return false
+		}
+		s.flipToDualFeasible(dtol)
+		dirty = true
+		return true
+	}
 	degenerate := 0
 	// The positions where rho, alpha and tau may be nonzero after their
 	// last solves (nil: anywhere). Each iteration zeroes only those: three
@@ -813,12 +824,8 @@ func (s *Solver) dualSimplex(lim *limits, useCutoff bool) Status {
 		if st := s.checkLimits(lim); st != StatusUnknown {
 			return st
 		}
-		if s.fac.needsRefactor() {
-			if !s.refactor() {
-				return NumericalTrouble
-			}
-			s.flipToDualFeasible(dtol)
-			dirty = true
+		if s.fac.needsRefactor() && !refresh() {
+			return NumericalTrouble
 		}
 		if dirty {
 			// New solve or new factorisation (which may have replaced
@@ -903,11 +910,9 @@ func (s *Solver) dualSimplex(lim *limits, useCutoff bool) Status {
 		alphaWas = alphaNZ
 		arq := alpha[r]
 		if math.Abs(arq-row[q]) > pivotMismatchTol*(1+math.Abs(arq)) && s.fac.numUpdates() > 0 {
-			if !s.refactor() {
+			if !refresh() {
 				return NumericalTrouble
 			}
-			s.flipToDualFeasible(dtol)
-			dirty = true
 			continue
 		}
 		if math.Abs(arq) < usedTol {
@@ -1024,14 +1029,10 @@ func (s *Solver) dualSimplex(lim *limits, useCutoff bool) Status {
 		s.partitionMove(leave, false)
 		s.setInfeasibility(r, ptol)
 		s.iterations++
-		if !s.fac.update(r, arq) {
-			// The update was refused (numerically doubtful): factorise
-			// the new basis afresh.
-			if !s.refactor() {
-				return NumericalTrouble
-			}
-			s.flipToDualFeasible(dtol)
-			dirty = true
+		// An update refused as numerically doubtful: factorise the new
+		// basis afresh.
+		if !s.fac.update(r, arq) && !refresh() {
+			return NumericalTrouble
 		}
 	}
 }
