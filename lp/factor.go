@@ -587,6 +587,24 @@ func b2i(b bool) int {
 // ftran solves B·x = b in place: on entry b is indexed by rows, on return
 // by basis positions. Cost O(m + nonzeros of L, U and the updates).
 func (f *factor) ftran(b []float64) {
+	f.ftranL(b)
+	if f.keepSpike {
+		f.keepDense(b)
+	}
+	f.ftranU(b, f.m+len(f.newRow), f.work)
+}
+
+// ftranAside is ftran with its own work space out (zero on entry, left
+// zero) and no spike kept: it only reads the factor, so it may run on
+// another goroutine beside this factor's other solves, as long as nothing
+// updates or replaces the factor meanwhile.
+func (f *factor) ftranAside(b, out []float64) {
+	f.ftranL(b)
+	f.ftranU(b, f.m+len(f.newRow), out)
+}
+
+// ftranL is ftran's L pass and the row etas.
+func (f *factor) ftranL(b []float64) {
 	for _, k := range f.lSteps {
 		br := b[f.pivRow[k]]
 		if br == 0 {
@@ -597,19 +615,14 @@ func (f *factor) ftran(b []float64) {
 		}
 	}
 	f.rowEtas(b)
-	if f.keepSpike {
-		f.keepDense(b)
-	}
-	f.ftranU(b, f.m+len(f.newRow))
 }
 
 // ftranU is ftran after its L pass and the row etas: the U pass, the
 // steps of the updates first (latest first), then those of the
-// factorisation. The steps from below on (none when below is the number of
-// steps) are done already: their values are in f.work and their rows of b
-// unchanged. It leaves f.work zero.
-func (f *factor) ftranU(b []float64, below int) {
-	out := f.work
+// factorisation, into the work space out. The steps from below on (none
+// when below is the number of steps) are done already: their values are
+// in out and their rows of b unchanged. It leaves out zero.
+func (f *factor) ftranU(b []float64, below int, out []float64) {
 	m := f.m
 	for n := min(below-m, len(f.newRow)) - 1; n >= 0; n-- {
 		if f.dead[m+n] {

@@ -255,7 +255,7 @@ func (f *factor) ftranSparse(b []float64, nz []int) []int {
 		if len(touched) > limit {
 			// Too many steps: finish densely below k.
 			sc.stack, sc.touched, sc.steps = heap[:0], touched[:0], done[:0]
-			f.ftranU(b, k+1)
+			f.ftranU(b, k+1, out)
 			return nil
 		}
 		row, pos, diag := f.pivot(k)

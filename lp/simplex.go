@@ -5,6 +5,7 @@ import (
 	"math"
 	"math/bits"
 	"math/rand"
+	"runtime"
 	"slices"
 	"time"
 )
@@ -77,6 +78,8 @@ func (s *Solver) resizeScratch() {
 	s.y = resize(s.y, s.m)
 	s.rho = resize(s.rho, s.m)
 	s.tau = resize(s.tau, s.m)
+	s.tauAside = resize(s.tauAside, s.m)
+	s.tauWork = resize(s.tauWork, s.m)
 	s.alphaCol = resize(s.alphaCol, s.m)
 	s.primalRHS = resize(s.primalRHS, s.m)
 	s.alphaRow = resize(s.alphaRow, nm)
@@ -797,7 +800,17 @@ func (s *Solver) dualSimplex(lim *limits, useCutoff bool) Status {
 	// refresh factorises the basis afresh, as a numerical doubt or the
 	// growth of the updates asks, restores dual feasibility by bound
 	// flips and asks for the values to be recomputed.
+	// With two cores or more, the DSE solve of a dense rho runs aside,
+	// beside the pivot row, the ratio test and the entering column; every
+	// path that changes the factor joins it first.
+	var aside *asideWorker
+	if s.m >= asideMinRows && runtime.GOMAXPROCS(0) > 1 {
+		if aside = newAsideWorker(); aside != nil {
+			defer aside.close()
+		}
+	}
 	refresh := func() bool {
+		aside.join()
 		if !s.refactor() {
 			return false
 		}
@@ -878,6 +891,11 @@ func (s *Solver) dualSimplex(lim *limits, useCutoff bool) Status {
 		s.unitNZ[0] = r
 		rhoNZ := s.keepNZ(&s.rhoNZ, s.fac.btranSparse(rho, s.unitNZ[:]))
 		rhoWas = rhoNZ
+		tauAside := aside != nil && (rhoNZ == nil || float64(len(rhoNZ)) > hyperInShare*float64(s.m))
+		if tauAside {
+			copy(s.tauAside, rho)
+			aside.start(s.fac, s.tauAside, s.tauWork)
+		}
 		s.pivotRowSparse(rho, rhoNZ, true)
 		// Bound-flipping ratio test with Harris tolerances.
 		usedTol := pivotTol
@@ -917,6 +935,7 @@ func (s *Solver) dualSimplex(lim *limits, useCutoff bool) Status {
 		}
 		if math.Abs(arq) < usedTol {
 			if s.fac.numUpdates() > 0 {
+				aside.join()
 				if !s.refactor() {
 					return NumericalTrouble
 				}
@@ -979,22 +998,37 @@ func (s *Solver) dualSimplex(lim *limits, useCutoff bool) Status {
 		s.x[leave] = target
 		// Dual steepest-edge weights: w_p = ‖e_pᵀB⁻¹‖².
 		wr := 0.0
-		if rhoNZ != nil {
+		tau := tau
+		switch {
+		case tauAside:
+			for _, i := range rhoNZ {
+				wr += rho[i] * rho[i]
+			}
+			if rhoNZ == nil {
+				for _, v := range rho {
+					wr += v * v
+				}
+			}
+			aside.join()
+			tau = s.tauAside
+		case rhoNZ != nil:
 			zeroAt(tau, tauWas)
 			for _, i := range rhoNZ {
 				wr += rho[i] * rho[i]
 				tau[i] = rho[i]
 			}
-		} else {
+		default:
 			for _, v := range rho {
 				wr += v * v
 			}
 			copy(tau, rho)
 		}
-		tauWas = nil
-		if nz := s.fac.ftranSparse(tau, rhoNZ); nz != nil {
-			s.tauNZ = append(s.tauNZ[:0], nz...)
-			tauWas = s.tauNZ
+		if !tauAside {
+			tauWas = nil
+			if nz := s.fac.ftranSparse(tau, rhoNZ); nz != nil {
+				s.tauNZ = append(s.tauNZ[:0], nz...)
+				tauWas = s.tauNZ
+			}
 		}
 		updateDSE := func(p int) {
 			if p == r || alpha[p] == 0 {
