@@ -108,6 +108,13 @@ type Settings struct {
 	NoPerturbation bool
 	// Seed drives the perturbation; same seed, same path.
 	Seed int64
+	// SecondCore lets the dual simplex of an LP of asideMinRows rows or
+	// more solve for its steepest-edge weights on a second goroutine,
+	// beside the rest of each iteration: the same arithmetic and the same
+	// path, sooner. That goroutine keeps a core busy while the LP solves
+	// (one such goroutine at a time in the process), so leave it off where
+	// other solves want the second core.
+	SecondCore bool
 }
 
 // Result is the outcome of a solve, in the model's own (unscaled) units and

@@ -34,8 +34,10 @@
 // while that keeps the leaving variable infeasible (bound flipping, "long
 // step"), then picks the largest pivot within Harris' tolerance; the primal
 // ratio test is Harris' two-pass test. Leaving rows are priced by dual
-// steepest edge, entering columns of the primal simplex by Devex. The dual
-// simplex forms its pivot row from a row-wise copy of A that lists each
+// steepest edge, entering columns of the primal simplex by Devex; with
+// Settings.SecondCore, a large LP's steepest-edge solve runs on a second
+// goroutine beside the rest of the iteration (aside.go), with the same
+// arithmetic. The dual simplex forms its pivot row from a row-wise copy of A that lists each
 // row's nonbasic entries first (partition.go), so basic columns cost
 // nothing there. After a
 // cost change the primal simplex continues from the old, primal feasible

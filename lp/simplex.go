@@ -804,7 +804,7 @@ func (s *Solver) dualSimplex(lim *limits, useCutoff bool) Status {
 	// beside the pivot row, the ratio test and the entering column; every
 	// path that changes the factor joins it first.
 	var aside *asideWorker
-	if s.m >= asideMinRows && runtime.GOMAXPROCS(0) > 1 {
+	if s.set.SecondCore && s.m >= asideMinRows && runtime.GOMAXPROCS(0) > 1 {
 		if aside = newAsideWorker(); aside != nil {
 			defer aside.close()
 		}

@@ -120,6 +120,9 @@ type Settings struct {
 	// Seed makes the LP perturbation and tie-breaking reproducible: the same
 	// model, settings and seed give the same search and the same answer.
 	Seed int64
+	// SecondCore is lp.Settings.SecondCore for the search's own LPs (not
+	// the sub-MIP's): on two cores they solve sooner, on the same path.
+	SecondCore bool
 
 	// Start is an optional starting solution (one value per column). It is
 	// checked against the model; if it violates rows or bounds it is used

@@ -165,7 +165,7 @@ func newSearch(ctx context.Context, m *lp.Model, set Settings) *search {
 	if set.TimeLimit > 0 {
 		s.deadline = s.started.Add(set.TimeLimit)
 	}
-	s.lpSet = lp.Settings{Seed: set.Seed}
+	s.lpSet = lp.Settings{Seed: set.Seed, SecondCore: set.SecondCore}
 	return s
 }
 

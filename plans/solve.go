@@ -91,7 +91,7 @@ func Solve(ctx context.Context, c *Case, opts SolveOptions) (*Result, error) {
 			Integers: countTrue(m.LP.Integer),
 		},
 	}
-	set := mip.Settings{TimeLimit: opts.TimeLimit, RelGap: opts.Gap, NodeLimit: opts.NodeLimit, NoRINS: opts.NoRINS}
+	set := mip.Settings{TimeLimit: opts.TimeLimit, RelGap: opts.Gap, NodeLimit: opts.NodeLimit, NoRINS: opts.NoRINS, SecondCore: opts.SecondCore}
 	if len(m.tiers) > 0 {
 		set.Priority = m.branchPriority()
 	}

@@ -35,6 +35,11 @@ type SolveOptions struct {
 	// NoBaselineStart does not hand the do-nothing plan to the search as
 	// its first incumbent (for measuring what it buys).
 	NoBaselineStart bool
+	// SecondCore lets the search's LPs keep a second core busy with part
+	// of their work (lp.Settings.SecondCore): the same plan, sooner, for a
+	// process that runs one solve at a time. Leave it off when several
+	// solves run at once (netstage compare and sweep with --jobs above 1).
+	SecondCore bool
 }
 
 // Progress is a snapshot of a running solve. Objective and Bound are in NPV

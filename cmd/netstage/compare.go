@@ -92,14 +92,16 @@ usage, 3 no variant has a plan.`,
 	return cmd
 }
 
-// solveWith returns the solve function of compare and sweep for the flags.
-func solveWith(timeLimit string, gap float64) (scenario.SolveFunc, error) {
+// solveWith returns the solve function of compare, sweep and report for
+// the flags; jobs is how many solves run at once (only a lone solve may
+// keep the second core busy, SolveOptions.SecondCore).
+func solveWith(timeLimit string, gap float64, jobs int) (scenario.SolveFunc, error) {
 	limit, err := parseTimeLimit(timeLimit)
 	if err != nil {
 		return nil, err
 	}
 	return func(ctx context.Context, c *plans.Case) (*plans.Result, error) {
-		return scenarioSolve(ctx, c, plans.SolveOptions{TimeLimit: limit, Gap: gap})
+		return scenarioSolve(ctx, c, plans.SolveOptions{TimeLimit: limit, Gap: gap, SecondCore: jobs == 1})
 	}, nil
 }
 
@@ -124,16 +126,16 @@ func runCompare(ctx context.Context, env *cmdEnv, opts *compareOptions) error {
 	if err != nil {
 		return err
 	}
-	solve, err := solveWith(opts.timeLimit, opts.gap)
+	jobs := opts.jobs
+	if jobs == 0 {
+		jobs = runtime.NumCPU()
+	}
+	solve, err := solveWith(opts.timeLimit, opts.gap, jobs)
 	if err != nil {
 		return err
 	}
 	if len(c.Catalogs) == 0 {
 		return withCode(exitBadInput, errors.New("compare: the case names no catalog"))
-	}
-	jobs := opts.jobs
-	if jobs == 0 {
-		jobs = runtime.NumCPU()
 	}
 	cmp, err := scenario.Compare(ctx, c, scenario.CompareOptions{Solve: solve, NoBreakEven: opts.noBreakEven, Jobs: jobs})
 	if err != nil {

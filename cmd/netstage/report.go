@@ -165,13 +165,13 @@ func reportTornado(ctx context.Context, env *cmdEnv, opts *reportOptions, c *pla
 		}
 		return nil, nil
 	}
-	solve, err := solveWith(opts.timeLimit, opts.gap)
-	if err != nil {
-		return nil, err
-	}
 	jobs := opts.jobs
 	if jobs == 0 {
 		jobs = runtime.NumCPU()
+	}
+	solve, err := solveWith(opts.timeLimit, opts.gap, jobs)
+	if err != nil {
+		return nil, err
 	}
 	to := scenario.TornadoOptions{Solve: solve, Base: res, Jobs: jobs}
 	if !opts.quiet {

@@ -101,7 +101,7 @@ func loadAndSolve(ctx context.Context, env *cmdEnv, cs caseSolve) (*plans.Case, 
 	if !cs.quiet {
 		printWarnings(env.stderr, warns)
 	}
-	so := plans.SolveOptions{TimeLimit: limit, Gap: cs.gap}
+	so := plans.SolveOptions{TimeLimit: limit, Gap: cs.gap, SecondCore: true}
 	if !cs.quiet && (cs.forceProgress || isTerminal(env.stderr)) {
 		progress := &progressPrinter{w: env.stderr, costMode: c.CostMode()}
 		so.Progress = progress.update

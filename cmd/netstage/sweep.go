@@ -167,13 +167,13 @@ func runSweep(ctx context.Context, env *cmdEnv, opts *sweepOptions) error {
 	if err != nil {
 		return err
 	}
-	solve, err := solveWith(opts.timeLimit, opts.gap)
-	if err != nil {
-		return err
-	}
 	jobs := opts.jobs
 	if jobs == 0 {
 		jobs = runtime.NumCPU()
+	}
+	solve, err := solveWith(opts.timeLimit, opts.gap, jobs)
+	if err != nil {
+		return err
 	}
 	digest, err := caseDigest(c)
 	if err != nil {
