@@ -797,18 +797,18 @@ func (s *Solver) dualSimplex(lim *limits, useCutoff bool) Status {
 	s.infAt = resize(s.infAt, s.m)
 	pinf := s.pinf
 	dirty := true
-	// refresh factorises the basis afresh, as a numerical doubt or the
-	// growth of the updates asks, restores dual feasibility by bound
-	// flips and asks for the values to be recomputed.
-	// With two cores or more, the DSE solve of a dense rho runs aside,
-	// beside the pivot row, the ratio test and the entering column; every
-	// path that changes the factor joins it first.
+	// With SecondCore and two cores or more, the DSE solve of a dense rho
+	// runs aside, beside the pivot row, the ratio test and the entering
+	// column; every path that changes the factor joins it first.
 	var aside *asideWorker
 	if s.set.SecondCore && s.m >= asideMinRows && runtime.GOMAXPROCS(0) > 1 {
 		if aside = newAsideWorker(); aside != nil {
 			defer aside.close()
 		}
 	}
+	// refresh factorises the basis afresh, as a numerical doubt or the
+	// growth of the updates asks, restores dual feasibility by bound
+	// flips and asks for the values to be recomputed.
 	refresh := func() bool {
 		aside.join()
 		if !s.refactor() {
@@ -998,32 +998,28 @@ func (s *Solver) dualSimplex(lim *limits, useCutoff bool) Status {
 		s.x[leave] = target
 		// Dual steepest-edge weights: w_p = ‖e_pᵀB⁻¹‖².
 		wr := 0.0
-		tau := tau
-		switch {
-		case tauAside:
+		if rhoNZ != nil {
 			for _, i := range rhoNZ {
 				wr += rho[i] * rho[i]
 			}
-			if rhoNZ == nil {
-				for _, v := range rho {
-					wr += v * v
-				}
-			}
-			aside.join()
-			tau = s.tauAside
-		case rhoNZ != nil:
-			zeroAt(tau, tauWas)
-			for _, i := range rhoNZ {
-				wr += rho[i] * rho[i]
-				tau[i] = rho[i]
-			}
-		default:
+		} else {
 			for _, v := range rho {
 				wr += v * v
 			}
-			copy(tau, rho)
 		}
-		if !tauAside {
+		tau := tau
+		if tauAside {
+			aside.join()
+			tau = s.tauAside
+		} else {
+			if rhoNZ != nil {
+				zeroAt(tau, tauWas)
+				for _, i := range rhoNZ {
+					tau[i] = rho[i]
+				}
+			} else {
+				copy(tau, rho)
+			}
 			tauWas = nil
 			if nz := s.fac.ftranSparse(tau, rhoNZ); nz != nil {
 				s.tauNZ = append(s.tauNZ[:0], nz...)

@@ -89,23 +89,23 @@ type Solver struct {
 	rho, alphaRow, alphaCol, tau []float64
 	primalRHS                    []float64 // scratch of computePrimal (not alphaCol: the dual simplex tracks alphaCol's nonzeros across refactorisations)
 	tauNZ                        []int     // positions of tau that may be nonzero after the DSE solve
+	devex                        []float64 // primal pricing weights
+	rowNZ                        []int     // variables with a nonzero in alphaRow
+	rhoNZ, alphaNZ               []int     // rows of rho, positions of alphaCol that may be nonzero (sorted)
+	unitNZ                       [1]int
+	nzMark                       []bool    // scratch of keepNZ, all false between calls
+	pinf                         []float64 // primal infeasibility per basis position (dual simplex)
+	infList                      []int     // positions p with pinf[p] > 0, in no particular order
+	infAt                        []int     // index of p in infList, or −1
+	flipRows                     []int     // scratch for applyFlips
+	rowIndex                     []int     // rowIndex[i] = i: the index lists of the slack columns
+	lu                           luScratch // work space of the factorisations
+	rowMark                      []bool
+	rowDirty                     bool // alphaRow must be cleared in full
+	cands                        []ratioCandidate
 	// tauAside and tauWork are the vector and work space of the DSE solve
 	// when it runs on a second goroutine (asideWorker).
 	tauAside, tauWork []float64
-	devex             []float64 // primal pricing weights
-	rowNZ             []int     // variables with a nonzero in alphaRow
-	rhoNZ, alphaNZ    []int     // rows of rho, positions of alphaCol that may be nonzero (sorted)
-	unitNZ            [1]int
-	nzMark            []bool    // scratch of keepNZ, all false between calls
-	pinf              []float64 // primal infeasibility per basis position (dual simplex)
-	infList           []int     // positions p with pinf[p] > 0, in no particular order
-	infAt             []int     // index of p in infList, or −1
-	flipRows          []int     // scratch for applyFlips
-	rowIndex          []int     // rowIndex[i] = i: the index lists of the slack columns
-	lu                luScratch // work space of the factorisations
-	rowMark           []bool
-	rowDirty          bool // alphaRow must be cleared in full
-	cands             []ratioCandidate
 	// part is the row-wise copy of A partitioned into nonbasic and basic
 	// entries (partition.go), kept by the dual simplex.
 	part  rowPartition
