@@ -166,13 +166,21 @@ func (f *factor) reach(start []int, limit int, g *stepGraph) bool {
 	return true
 }
 
+// ftranDense reports whether ftranSparse solves a right-hand side with
+// nonzeros in the rows nz densely from the start: no hyper-sparse work
+// space, or too many nonzeros. (It may still go dense later, when the
+// solve reaches too many steps.)
+func (f *factor) ftranDense(nz []int) bool {
+	return f.sc == nil || nz == nil || float64(len(nz)) > hyperInShare*float64(f.m)
+}
+
 // ftranSparse solves B·x = b in place like ftran, given the rows where b
 // may be nonzero (nz; nil: anywhere). It returns the positions where x may be nonzero, or
 // nil when it solved densely (then x may be nonzero anywhere). The list is
 // valid until the next solve with this factor.
 func (f *factor) ftranSparse(b []float64, nz []int) []int {
 	m := f.m
-	if f.sc == nil || nz == nil || float64(len(nz)) > hyperInShare*float64(m) {
+	if f.ftranDense(nz) {
 		f.ftran(b)
 		return nil
 	}
