@@ -166,11 +166,11 @@ func (f *factor) reach(start []int, limit int, g *stepGraph) bool {
 	return true
 }
 
-// ftranDense reports whether ftranSparse solves a right-hand side with
+// denseFromStart reports whether ftranSparse solves a right-hand side with
 // nonzeros in the rows nz densely from the start: no hyper-sparse work
 // space, or too many nonzeros. (It may still go dense later, when the
 // solve reaches too many steps.)
-func (f *factor) ftranDense(nz []int) bool {
+func (f *factor) denseFromStart(nz []int) bool {
 	return f.sc == nil || nz == nil || float64(len(nz)) > hyperInShare*float64(f.m)
 }
 
@@ -180,7 +180,7 @@ func (f *factor) ftranDense(nz []int) bool {
 // valid until the next solve with this factor.
 func (f *factor) ftranSparse(b []float64, nz []int) []int {
 	m := f.m
-	if f.ftranDense(nz) {
+	if f.denseFromStart(nz) {
 		f.ftran(b)
 		return nil
 	}

@@ -891,7 +891,7 @@ func (s *Solver) dualSimplex(lim *limits, useCutoff bool) Status {
 		s.unitNZ[0] = r
 		rhoNZ := s.keepNZ(&s.rhoNZ, s.fac.btranSparse(rho, s.unitNZ[:]))
 		rhoWas = rhoNZ
-		tauAside := aside != nil && s.fac.ftranDense(rhoNZ)
+		tauAside := aside != nil && s.fac.denseFromStart(rhoNZ)
 		if tauAside {
 			copy(s.tauAside, rho)
 			aside.start(s.fac, s.tauAside, s.tauWork)
