@@ -42,7 +42,8 @@ const (
 )
 
 // sparseScratch is the work space of the hyper-sparse solves, shared by a
-// factor and its copies (the solver is single-threaded).
+// factor and its copies (one solver uses them at a time; its aside
+// solve, the one piece on another goroutine, is dense and does not).
 type sparseScratch struct {
 	mark    []uint32 // mark[k] == gen: step k (or a position/row) is listed
 	gen     uint32

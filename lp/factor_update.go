@@ -21,8 +21,8 @@ import "math"
 // machine whose speed drifts).
 
 // spikeScratch holds the spike of the last entering column, and scratch of
-// the solves with updates; shared by a factor and its copies (the solver is
-// single-threaded).
+// the solves with updates; shared by a factor and its copies (one solver
+// uses them at a time; its aside solve keeps no spike and does not).
 type spikeScratch struct {
 	idx   []int
 	val   []float64
