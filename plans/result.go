@@ -181,7 +181,7 @@ type LinkYear struct {
 	Candidate bool `json:"candidate"`
 	Built     bool `json:"built"`
 	// AtCeiling flags a link whose busiest direction after the plan is at
-	// the utilisation ceiling.
+	// the utilisation ceiling (see AtCeiling).
 	AtCeiling bool `json:"at_ceiling"`
 	// ShadowValue is the increase of the plan's NPV (present value, case
 	// currency) per extra Gbps of capacity on this link in this year, from
@@ -293,4 +293,18 @@ func (r *Result) VendorChoiceText() string {
 		s += " (one vendor per link class)"
 	}
 	return s
+}
+
+// CeilingTolerance is how close, as a fraction of capacity, a link's
+// utilisation must come to its ceiling to count as at it: half the
+// precision reports print (0.1 %). The routing reported is the one with
+// the fewest Gbps·km among those within holdObjectiveTol of the optimal
+// NPV, and it may leave a sliver of a binding link unused (0.79999 of an
+// 80 % ceiling on the demo), which a planner still reads as full.
+const CeilingTolerance = 0.0005
+
+// AtCeiling reports whether utilisation u (a fraction of capacity) is at
+// ceiling within CeilingTolerance.
+func AtCeiling(u, ceiling float64) bool {
+	return ceiling > 0 && u >= ceiling-CeilingTolerance
 }

@@ -167,7 +167,7 @@ func (m *Model) linkRows(x, dual []float64, base *baselineSolution) []LinkYear {
 			if baseLoad != nil {
 				r.UtilisationBefore = utilisation(math.Max(baseLoad[2*l][t], baseLoad[2*l+1][t]), r.CapacityBefore)
 			}
-			r.AtCeiling = r.CapacityAfter > 0 && peak >= link.Ceiling*r.CapacityAfter-valueTol
+			r.AtCeiling = r.CapacityAfter > 0 && AtCeiling(r.UtilisationAfter, link.Ceiling)
 			// One more Gbps raises both arcs' rows by the ceiling; for the
 			// minimisation of −NPV, NPV changes by −ceiling·Σ dual.
 			if dual != nil {

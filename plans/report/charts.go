@@ -66,7 +66,7 @@ const (
 
 // utilBin returns the ramp index of utilisation u, or −1 at the ceiling.
 func utilBin(u, ceiling float64) int {
-	if atCeiling(u, ceiling) {
+	if plans.AtCeiling(u, ceiling) {
 		return -1
 	}
 	for i, top := range utilBins {
@@ -683,7 +683,7 @@ func (g *utilGridPlot) Plot(c draw.Canvas, p *plot.Plot) {
 		if capacity > 0 {
 			fill = utilColor(u, ly.Ceiling)
 			label = formatFixed(100*u, 1)
-			bold = atCeiling(u, ly.Ceiling)
+			bold = plans.AtCeiling(u, ly.Ceiling)
 		}
 		cell := []vg.Point{{X: x0, Y: y0}, {X: x1, Y: y0}, {X: x1, Y: y1}, {X: x0, Y: y1}}
 		c.FillPolygon(fill, cell)

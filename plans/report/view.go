@@ -11,12 +11,6 @@ import (
 	"netstage/plans"
 )
 
-// ceilingTolerance is how close (as a fraction of capacity) a utilisation
-// must come to its ceiling to count as "at the ceiling": half the printed
-// precision (0.1 %), so that a link shown at its ceiling is flagged as at
-// it (the solver leaves values like 0.79996 on an 80 % ceiling).
-const ceilingTolerance = 0.0005
-
 // view is everything a report shows, already formatted for people, so that
 // the HTML and the Markdown print the same numbers.
 type view struct {
@@ -397,15 +391,11 @@ func whyNow(r *plans.Result, now []plans.PlanRow) string {
 // ceiling without the plan.
 func firstAtCeilingBefore(r *plans.Result, l string) (int, bool) {
 	for _, ly := range r.Links {
-		if ly.Link == l && ly.CapacityBefore > 0 && atCeiling(ly.UtilisationBefore, ly.Ceiling) {
+		if ly.Link == l && ly.CapacityBefore > 0 && plans.AtCeiling(ly.UtilisationBefore, ly.Ceiling) {
 			return ly.Year, true
 		}
 	}
 	return 0, false
-}
-
-func atCeiling(u, ceiling float64) bool {
-	return ceiling > 0 && u >= ceiling-ceilingTolerance
 }
 
 func shortfallGbps(r *plans.Result) float64 {
@@ -695,7 +685,7 @@ func linkReasons(c *plans.Case, r *plans.Result, link string) []string {
 			continue
 		}
 		ceil = ly.Ceiling
-		if ceilingYear == 0 && ly.CapacityBefore > 0 && atCeiling(ly.UtilisationBefore, ly.Ceiling) {
+		if ceilingYear == 0 && ly.CapacityBefore > 0 && plans.AtCeiling(ly.UtilisationBefore, ly.Ceiling) {
 			ceilingYear = ly.Year
 		}
 		if ly.Year >= inService && ly.UtilisationAfter > peakAfter {
@@ -840,7 +830,7 @@ func utilCell(capacity, u, ceiling float64) string {
 		return "—"
 	}
 	s := percent(u)
-	if atCeiling(u, ceiling) {
+	if plans.AtCeiling(u, ceiling) {
 		s = "**" + s + "**"
 	}
 	return s
