@@ -357,7 +357,8 @@ func TestWriteTextCostMode(t *testing.T) {
 	}
 	out := buf.String()
 	for _, want := range []string{"plan present cost", "500,000", "baseline present cost", "650,000",
-		"saving against baseline", "150,000", "present cost ≥ 499,000"} {
+		"saving against baseline", "150,000", "present cost ≥ 499,000",
+		"no plan costs less than this one by more than 1,000"} {
 		if !strings.Contains(out, want) {
 			t.Errorf("cost-mode report lacks %q:\n%s", want, out)
 		}
@@ -366,5 +367,19 @@ func TestWriteTextCostMode(t *testing.T) {
 		if strings.Contains(out, unwanted) {
 			t.Errorf("cost-mode report shows %q", unwanted)
 		}
+	}
+}
+
+// TestWriteTextGapInMoney: the gap row also gives the gap as money, the
+// most a better plan could add (bound − NPV), which a planner weighs
+// against the incremental NPV.
+func TestWriteTextGapInMoney(t *testing.T) {
+	r := handResult() // NPV 1,234,567.891, bound 1,234,600
+	var buf bytes.Buffer
+	if err := writeText(&buf, r, textOptions{}); err != nil {
+		t.Fatal(err)
+	}
+	if want := "no plan beats this one by more than 32 of NPV"; !strings.Contains(buf.String(), want) {
+		t.Errorf("summary lacks %q:\n%s", want, buf.String())
 	}
 }

@@ -7,6 +7,7 @@ import (
 	"bytes"
 	"fmt"
 	"io"
+	"math"
 	"strconv"
 	"strings"
 	"text/tabwriter"
@@ -167,7 +168,17 @@ func writeSummary(w io.Writer, r *plans.Result, opts textOptions) {
 		}
 	}
 	if r.Gap != nil {
-		row("gap", fixed(100**r.Gap, 4)+" %")
+		gap := fixed(100**r.Gap, 4) + " %"
+		if r.Bound != nil && r.Objective != nil {
+			// The gap in money: what a better plan could add at most.
+			left := money(math.Max(0, *r.Bound-*r.Objective))
+			if r.CostMode {
+				gap += " (no plan costs less than this one by more than " + left + ")"
+			} else {
+				gap += " (no plan beats this one by more than " + left + " of NPV)"
+			}
+		}
+		row("gap", gap)
 	}
 	if !opts.hideEffort {
 		st := r.Stats

@@ -533,6 +533,25 @@ func TestCostMode(t *testing.T) {
 	}
 }
 
+// TestStoppedEarly: a plan not proven optimal says how far from the best
+// possible it may be, as a share and as money (bound − NPV).
+func TestStoppedEarly(t *testing.T) {
+	c, r := solvedDemo(t)
+	stopped := *r
+	stopped.Status = plans.StatusFeasible
+	bound, gap := *r.Objective+12345, 12345 / *r.Objective
+	stopped.Bound, stopped.Gap = &bound, &gap
+	md := render(t, c, &stopped, Markdown)
+	if want := "within 1.6% (EUR\u00a012,345) of the best possible NPV, not proven optimal"; !strings.Contains(md, want) {
+		t.Errorf("the decision lacks %q:\n%s", want, md[:min(len(md), 1500)])
+	}
+	stopped.CostMode = true
+	md = render(t, c, &stopped, Markdown)
+	if want := "(EUR\u00a012,345) of the least possible present cost"; !strings.Contains(md, want) {
+		t.Errorf("cost mode: the decision lacks %q:\n%s", want, md[:min(len(md), 1500)])
+	}
+}
+
 // TestShortfallAtRisk: committed traffic the do-nothing network cannot
 // carry shows up under the upgrade of a link on its route, with the
 // revenue at risk summed over the years and the SLA penalty.

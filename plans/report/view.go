@@ -280,7 +280,15 @@ func decision(c *plans.Case, r *plans.Result) string {
 		b.WriteString(".")
 	}
 	if r.Status == plans.StatusFeasible && r.Gap != nil {
-		fmt.Fprintf(&b, " The solver stopped at its limit: this plan is within %s of the best possible NPV, not proven optimal.", percent(*r.Gap))
+		within := percent(*r.Gap)
+		if r.Bound != nil && r.Objective != nil {
+			within += " (" + moneyCur(math.Max(0, *r.Bound-*r.Objective), cur) + ")"
+		}
+		best := "the best possible NPV"
+		if r.CostMode {
+			best = "the least possible present cost"
+		}
+		fmt.Fprintf(&b, " The solver stopped at its limit: this plan is within %s of %s, not proven optimal.", within, best)
 	}
 	return strings.TrimSpace(b.String())
 }
