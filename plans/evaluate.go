@@ -69,6 +69,26 @@ func Evaluate(ctx context.Context, c *Case, plan []PlanRow) (*Result, error) {
 	return res, nil
 }
 
+// startFromPlan returns the point of m's model that has the purchases of
+// plan (fixPlan on a copy of the model) and, for what they leave open (the
+// routing and the traffic served, each vendor's tier, the vendor choice),
+// the best values within the case's budgets: a start for the search. It
+// returns nil when the plan does not fit the case (an item, link or order
+// year the case does not offer, a budget it breaks, committed demand it
+// cannot carry) or ctx ends first.
+func (m *Model) startFromPlan(ctx context.Context, plan []PlanRow) []float64 {
+	fixed := *m
+	fixed.LP = m.LP.Clone()
+	if fixed.fixPlan(plan) != nil {
+		return nil
+	}
+	mr, err := mipSolve(ctx, fixed.LP, mip.Settings{RelGap: 1e-9})
+	if err != nil || mr.Status != mip.Optimal {
+		return nil
+	}
+	return mr.X
+}
+
 // setBaseline records the do-nothing plan's cash flow, shortfall and NPV
 // (a warning when its LP could not be solved).
 func (res *Result) setBaseline(base *baselineSolution) {

@@ -92,6 +92,9 @@ func Solve(ctx context.Context, c *Case, opts SolveOptions) (*Result, error) {
 		},
 	}
 	set := mip.Settings{TimeLimit: opts.TimeLimit, RelGap: opts.Gap, NodeLimit: opts.NodeLimit, NoRINS: opts.NoRINS, SecondCore: opts.SecondCore}
+	if len(opts.StartPlan) > 0 {
+		set.Start = m.startFromPlan(ctx, opts.StartPlan)
+	}
 	if len(m.tiers) > 0 {
 		set.Priority = m.branchPriority()
 	}

@@ -35,6 +35,13 @@ type SolveOptions struct {
 	// NoBaselineStart does not hand the do-nothing plan to the search as
 	// its first incumbent (for measuring what it buys).
 	NoBaselineStart bool
+	// StartPlan, when set, is a plan the search starts from (its purchases
+	// as PlanRow gives them; the money fields are ignored), for example the
+	// best plan of a case with fewer choices: when it fits this case (items
+	// offered, budgets kept, committed demand carried), the answer is never
+	// worse than it, even when a limit stops the search early. A plan that
+	// does not fit is ignored.
+	StartPlan []PlanRow
 	// SecondCore lets the search's LPs keep a second core busy with part
 	// of their work (lp.Settings.SecondCore): the same plan, sooner, for a
 	// process that runs one solve at a time. Leave it off when several

@@ -159,6 +159,14 @@ type CompareOptions struct {
 	// Jobs is the number of solves run at once (0 or 1: one at a time):
 	// the variants, then the break-even searches of the losing catalogs.
 	Jobs int
+	// SolveFrom, when set, solves the all-catalogs variant starting from
+	// the best single catalog's plan (plans.SolveOptions.StartPlan), after
+	// the single catalogs: every plan of one catalog is a plan of all of
+	// them, so even a search stopped by its time limit then does no worse
+	// than the best catalog alone. It runs alone, with no other solve
+	// beside it. Without it, Solve solves that variant alongside the
+	// others.
+	SolveFrom func(ctx context.Context, c *plans.Case, start []plans.PlanRow) (*plans.Result, error)
 }
 
 // parallel runs f(0..n−1) with at most jobs calls at once and returns the
@@ -180,8 +188,9 @@ func parallel(n, jobs int, f func(i int) error) error {
 	return errors.Join(errs...)
 }
 
-// Compare solves c once per catalog alone and once with all catalogs, and
-// for each losing catalog finds its break-even discount.
+// Compare solves c once per catalog alone and once with all catalogs
+// (with SolveFrom, after the others and from the best one's plan), and for
+// each losing catalog finds its break-even discount.
 func Compare(ctx context.Context, c *plans.Case, opts CompareOptions) (*Comparison, error) {
 	if opts.Solve == nil {
 		panic("scenario: Compare without a solve function")
@@ -189,26 +198,44 @@ func Compare(ctx context.Context, c *plans.Case, opts CompareOptions) (*Comparis
 	cmp := &Comparison{Case: c.Name, Currency: c.Currency, Differences: []Difference{}}
 	n := len(c.Catalogs)
 	cmp.Variants = make([]Variant, n+1)
-	err := parallel(n+1, opts.Jobs, func(k int) error {
+	solveVariant := func(k int, start []plans.PlanRow) error {
 		name, vc, catalog := AllVariant, c, -1
 		if k < n {
 			name, vc, catalog = c.Catalogs[k].Name, OnlyCatalog(c, k), k
 		}
-		res, err := opts.Solve(ctx, vc)
+		var res *plans.Result
+		var err error
+		if start != nil {
+			res, err = opts.SolveFrom(ctx, vc, start)
+		} else {
+			res, err = opts.Solve(ctx, vc)
+		}
 		if err != nil {
 			return fmt.Errorf("scenario: variant %s: %w", name, err)
 		}
 		cmp.Variants[k] = newVariant(name, catalog, c, res)
 		return nil
-	})
-	if err != nil {
+	}
+	first := n + 1 // variants solved side by side
+	if opts.SolveFrom != nil {
+		first = n
+	}
+	if err := parallel(first, opts.Jobs, func(k int) error { return solveVariant(k, nil) }); err != nil {
 		return nil, err
 	}
-
 	win := -1
-	for i, v := range cmp.Variants {
-		if v.Catalog >= 0 && v.Objective != nil && (win < 0 || *v.Objective > *cmp.Variants[win].Objective) {
+	for i, v := range cmp.Variants[:n] {
+		if v.Objective != nil && (win < 0 || *v.Objective > *cmp.Variants[win].Objective) {
 			win = i
+		}
+	}
+	if first == n {
+		var start []plans.PlanRow
+		if win >= 0 {
+			start = cmp.Variants[win].Result.Plan
+		}
+		if err := solveVariant(n, start); err != nil {
+			return nil, err
 		}
 	}
 	if win >= 0 {

@@ -7,6 +7,7 @@ import (
 	"errors"
 	"math"
 	"strings"
+	"sync"
 	"testing"
 
 	"netstage/plans"
@@ -559,6 +560,46 @@ func TestBreakEvenFake(t *testing.T) {
 	b, _ := json.Marshal(par)
 	if !bytes.Equal(a, b) {
 		t.Errorf("jobs 3 differs from jobs 1:\n%s\n%s", b, a)
+	}
+}
+
+// TestCompareAllFromWinner: with SolveFrom, the all-catalogs variant is
+// solved after the single catalogs (which may run side by side), from the
+// winner's plan, and its result is SolveFrom's. That the answer is then
+// never worse than the start is plans.TestStartPlan's part.
+func TestCompareAllFromWinner(t *testing.T) {
+	c := testCase()
+	c.Budget.Yearly[0] = math.Inf(1)
+	var mu sync.Mutex
+	singles := 0
+	solve := func(ctx context.Context, vc *plans.Case) (*plans.Result, error) {
+		mu.Lock()
+		singles++
+		mu.Unlock()
+		return fakeSolve(ctx, vc)
+	}
+	var gotStart []plans.PlanRow
+	singlesBefore := -1
+	from := func(ctx context.Context, vc *plans.Case, start []plans.PlanRow) (*plans.Result, error) {
+		mu.Lock()
+		singlesBefore = singles
+		mu.Unlock()
+		gotStart = start
+		return fakeResult(vc, nil, 1.0e9), nil
+	}
+	cmp, err := Compare(context.Background(), c, CompareOptions{Solve: solve, SolveFrom: from, NoBreakEven: true, Jobs: 3})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if singlesBefore != 2 || singles != 2 {
+		t.Fatalf("SolveFrom ran after %d of the single catalogs' solves (%d in all): want after both", singlesBefore, singles)
+	}
+	win := cmp.Variants[1]
+	if cmp.Winner != win.Name || len(gotStart) == 0 || len(gotStart) != len(win.Result.Plan) || gotStart[0] != win.Result.Plan[0] {
+		t.Fatalf("winner %s: the all-catalogs solve started from %v, want the winner's plan %v", cmp.Winner, gotStart, win.Result.Plan)
+	}
+	if all := cmp.Variants[2]; all.Name != AllVariant || *all.Objective != 1.0e9 {
+		t.Errorf("all: got %s with NPV %v, want SolveFrom's result", all.Name, deref(all.Objective))
 	}
 }
 
