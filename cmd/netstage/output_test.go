@@ -383,3 +383,22 @@ func TestWriteTextGapInMoney(t *testing.T) {
 		t.Errorf("summary lacks %q:\n%s", want, buf.String())
 	}
 }
+
+// TestWriteTextPaybackFirstYear: a payback in the first year says why (the
+// cumulative incremental cash never falls below zero); a later one does not.
+func TestWriteTextPaybackFirstYear(t *testing.T) {
+	for _, tc := range []struct {
+		year int
+		note bool
+	}{{2027, true}, {2028, false}} {
+		r := handResult() // cash flow from 2027
+		r.PaybackYear = intp(tc.year)
+		var buf bytes.Buffer
+		if err := writeText(&buf, r, textOptions{}); err != nil {
+			t.Fatal(err)
+		}
+		if got := strings.Contains(buf.String(), "never negative"); got != tc.note {
+			t.Errorf("payback %d: note shown %v, want %v:\n%s", tc.year, got, tc.note, buf.String())
+		}
+	}
+}

@@ -147,6 +147,9 @@ func writeSummary(w io.Writer, r *plans.Result, opts textOptions) {
 		payback := "n/a (the incremental cash never stays positive)"
 		if r.PaybackYear != nil {
 			payback = fmt.Sprint(*r.PaybackYear)
+			if len(r.Cashflow) > 0 && *r.PaybackYear == r.Cashflow[0].Year {
+				payback += " (the cumulative incremental cash is never negative)"
+			}
 		}
 		row("payback year", payback)
 	}

@@ -479,7 +479,7 @@ func keyFigures(r *plans.Result) []keyFigure {
 			keyFigure{"NPV of doing nothing", opt(r.BaselineNPV, m, "n/a"), "baseline"},
 			keyFigure{"Incremental NPV", opt(r.IncrementalNPV, m, "n/a"), "plan − baseline"},
 			keyFigure{"IRR", opt(irr, percent, "n/a"), "of the incremental cash flow"},
-			keyFigure{"Payback year", optInt(payback), "undiscounted, incremental"},
+			keyFigure{"Payback year", optInt(payback), paybackNote(r, payback)},
 		)
 	}
 	k = append(k,
@@ -1124,4 +1124,14 @@ func mapNote(c *plans.Case) string {
 		return "The case gives no site coordinates, so the report has no network map."
 	}
 	return fmt.Sprintf("The case gives coordinates for only some sites (%d of %d), so the report has no network map.", max(ll, xy), n)
+}
+
+// paybackNote is the note under the payback year: a payback in the first
+// year means the cumulative incremental cash is never negative (a plan
+// with no capex, such as a lease that pays from its first year).
+func paybackNote(r *plans.Result, payback *int) string {
+	if payback != nil && len(r.Cashflow) > 0 && *payback == r.Cashflow[0].Year {
+		return "undiscounted, incremental: never below zero"
+	}
+	return "undiscounted, incremental"
 }
