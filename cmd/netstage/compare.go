@@ -272,6 +272,10 @@ func writeComparison(w io.Writer, c *plans.Case, cmp *scenario.Comparison, break
 	tw.Flush()
 	if cmp.Winner != "" {
 		fmt.Fprintf(w, "\n* best single catalog: %s\n", cmp.Winner)
+		if len(cmp.Contenders) > 0 {
+			fmt.Fprintf(w, "  not proven: the search stopped before ruling out that %s could do better (its bound is above the winner's NPV); a longer --time-limit may settle it\n",
+				strings.Join(cmp.Contenders, ", "))
+		}
 	}
 
 	if len(cmp.Differences) > 0 {

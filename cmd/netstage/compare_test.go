@@ -1,6 +1,7 @@
 package main
 
 import (
+	"bytes"
 	"context"
 	"encoding/json"
 	"os"
@@ -188,5 +189,29 @@ func TestCompareUsage(t *testing.T) {
 		if code, _, _ := runCLI(args...); code != exitBadInput {
 			t.Errorf("%v: got exit code %d, want %d", args, code, exitBadInput)
 		}
+	}
+}
+
+// TestCompareContendersText: when a losing catalog could still beat the
+// winner (its bound is above the winner's NPV), the table says the ranking
+// is not proven and names it.
+func TestCompareContendersText(t *testing.T) {
+	c, _, err := plans.LoadDemo()
+	if err != nil {
+		t.Fatal(err)
+	}
+	npv := 100.0
+	cmp := &scenario.Comparison{Case: c.Name, Currency: c.Currency, Winner: "a.toml", Contenders: []string{"b.toml"},
+		Variants: []scenario.Variant{{Name: "a.toml", Status: "feasible", Objective: &npv, Winner: true}}}
+	var buf bytes.Buffer
+	writeComparison(&buf, c, cmp, false)
+	if want := "not proven: the search stopped before ruling out that b.toml could do better"; !strings.Contains(buf.String(), want) {
+		t.Errorf("missing %q in:\n%s", want, buf.String())
+	}
+	cmp.Contenders = nil
+	buf.Reset()
+	writeComparison(&buf, c, cmp, false)
+	if strings.Contains(buf.String(), "not proven") {
+		t.Errorf("no contenders, yet:\n%s", buf.String())
 	}
 }

@@ -140,13 +140,23 @@ type Difference struct {
 	Buys []string `json:"buys"`
 }
 
+// contenderTol: a losing catalog's bound must exceed the winner's NPV by
+// more than this (relative) to make it a contender, so that rounding in
+// the last digits of two equal optima does not.
+const contenderTol = 1e-9
+
 // Comparison is the result of Compare.
 type Comparison struct {
 	Case     string    `json:"case"`
 	Currency string    `json:"currency"`
 	Variants []Variant `json:"variants"`
 	// Winner is the name of the best single catalog ("" when none has a plan).
-	Winner      string       `json:"winner"`
+	Winner string `json:"winner"`
+	// Contenders are the other single catalogs whose proven bound is above
+	// the winner's NPV: their searches stopped (time limit, gap) before
+	// ruling out a plan better than the winner's, so the ranking is not
+	// proven against them. Empty when it is.
+	Contenders  []string     `json:"contenders"`
 	Differences []Difference `json:"differences"`
 }
 
@@ -238,9 +248,16 @@ func Compare(ctx context.Context, c *plans.Case, opts CompareOptions) (*Comparis
 			return nil, err
 		}
 	}
+	cmp.Contenders = []string{}
 	if win >= 0 {
 		cmp.Variants[win].Winner = true
 		cmp.Winner = cmp.Variants[win].Name
+		w := *cmp.Variants[win].Objective
+		for i, v := range cmp.Variants[:n] {
+			if i != win && v.Bound != nil && *v.Bound > w+contenderTol*math.Max(1, math.Abs(w)) {
+				cmp.Contenders = append(cmp.Contenders, v.Name)
+			}
+		}
 	}
 	if !opts.NoBreakEven {
 		err := parallel(len(cmp.Variants), opts.Jobs, func(i int) error {

@@ -603,6 +603,41 @@ func TestCompareAllFromWinner(t *testing.T) {
 	}
 }
 
+// TestCompareContenders: a losing catalog whose search stopped with a
+// bound above the winner's NPV is named as a contender (the ranking is not
+// proven against it); one whose bound is below is not.
+func TestCompareContenders(t *testing.T) {
+	c := testCase()
+	c.Budget.Yearly[0] = math.Inf(1)
+	for _, tc := range []struct {
+		name  string
+		above float64 // north's bound above south's NPV
+		want  []string
+	}{{"bound above", 1, []string{"north.toml"}}, {"bound below", -1, []string{}}} {
+		t.Run(tc.name, func(t *testing.T) {
+			south, err := fakeSolve(context.Background(), OnlyCatalog(c, 1))
+			if err != nil {
+				t.Fatal(err)
+			}
+			solve := func(ctx context.Context, vc *plans.Case) (*plans.Result, error) {
+				res, err := fakeSolve(ctx, vc)
+				if err == nil && vc.Catalogs[0].Name == "north.toml" && len(vc.Catalogs) == 1 {
+					b := *south.Objective + tc.above
+					res.Bound, res.Status = &b, plans.StatusFeasible
+				}
+				return res, err
+			}
+			cmp, err := Compare(context.Background(), c, CompareOptions{Solve: solve, NoBreakEven: true})
+			if err != nil {
+				t.Fatal(err)
+			}
+			if cmp.Winner != "south.toml" || strings.Join(cmp.Contenders, ",") != strings.Join(tc.want, ",") || cmp.Contenders == nil {
+				t.Errorf("winner %s, contenders %v; want south.toml and %v", cmp.Winner, cmp.Contenders, tc.want)
+			}
+		})
+	}
+}
+
 func TestCompareInfeasibleVariant(t *testing.T) {
 	c := testCase()
 	c.Budget.Yearly[0] = 2000 // south (1830) fits, north's dearer modules do not
