@@ -201,8 +201,12 @@ func TestCompareContendersText(t *testing.T) {
 		t.Fatal(err)
 	}
 	npv := 100.0
+	v := scenario.Variant{Name: "a.toml", Status: "feasible", Objective: &npv, Winner: true}
+	for t := 0; t < c.Horizon; t++ {
+		v.CapexByYear = append(v.CapexByYear, scenario.YearAmount{Year: c.Year(t)})
+	}
 	cmp := &scenario.Comparison{Case: c.Name, Currency: c.Currency, Winner: "a.toml", Contenders: []string{"b.toml"},
-		Variants: []scenario.Variant{{Name: "a.toml", Status: "feasible", Objective: &npv, Winner: true}}}
+		Variants: []scenario.Variant{v}}
 	var buf bytes.Buffer
 	writeComparison(&buf, c, cmp, false)
 	if want := "not proven: the search stopped before ruling out that b.toml could do better"; !strings.Contains(buf.String(), want) {
