@@ -107,16 +107,16 @@ func solveWith(timeLimit string, gap float64, jobs int) (scenario.SolveFunc, err
 	}, nil
 }
 
-// solveFromWith returns compare's solve of the all-catalogs variant from
-// the best single catalog's plan (CompareOptions.SolveFrom), which runs
-// alone and so may keep the second core busy.
-func solveFromWith(timeLimit string, gap float64) (func(context.Context, *plans.Case, []plans.PlanRow) (*plans.Result, error), error) {
+// solveFromWith is solveWith for solves that start from a plan (compare's
+// all-catalogs variant, sweep's scenarios: CompareOptions.SolveFrom,
+// Options.SolveFrom); secondCore when the solve runs alone.
+func solveFromWith(timeLimit string, gap float64, secondCore bool) (scenario.SolveFromFunc, error) {
 	limit, err := parseTimeLimit(timeLimit)
 	if err != nil {
 		return nil, err
 	}
 	return func(ctx context.Context, c *plans.Case, start []plans.PlanRow) (*plans.Result, error) {
-		return scenarioSolve(ctx, c, plans.SolveOptions{TimeLimit: limit, Gap: gap, SecondCore: true, StartPlan: start})
+		return scenarioSolve(ctx, c, plans.SolveOptions{TimeLimit: limit, Gap: gap, SecondCore: secondCore, StartPlan: start})
 	}, nil
 }
 
@@ -149,7 +149,7 @@ func runCompare(ctx context.Context, env *cmdEnv, opts *compareOptions) error {
 	if err != nil {
 		return err
 	}
-	solveFrom, err := solveFromWith(opts.timeLimit, opts.gap)
+	solveFrom, err := solveFromWith(opts.timeLimit, opts.gap, true) // it runs alone
 	if err != nil {
 		return err
 	}

@@ -58,7 +58,9 @@ alone from its lowest to its highest value, the others at base); with
 --vary budget=..., the budget frontier (what the next million of cap buys);
 and the regret of the base plan: its purchases fixed and re-evaluated by LP in
 each scenario, with the budget not enforced, against the scenario's own
-optimum.
+optimum. The base point is solved first, and each scenario's search starts
+from the base plan where it fits the scenario's budget: with a time limit,
+a scenario's plan is then never worse than the base plan there.
 
 Factors: growth (multiplier on growth rates), tariff (multiplier on
 tariffs), capex (multiplier on equipment prices), discount_rate (absolute
@@ -175,11 +177,15 @@ func runSweep(ctx context.Context, env *cmdEnv, opts *sweepOptions) error {
 	if err != nil {
 		return err
 	}
+	solveFrom, err := solveFromWith(opts.timeLimit, opts.gap, jobs == 1)
+	if err != nil {
+		return err
+	}
 	digest, err := caseDigest(c)
 	if err != nil {
 		return withCode(exitFailure, err)
 	}
-	ro := scenario.Options{Solve: solve, Jobs: jobs, Shard: shard, Settings: sweepSettings(opts), CaseDigest: digest, MaxScenarios: opts.maxScenarios}
+	ro := scenario.Options{Solve: solve, SolveFrom: solveFrom, Jobs: jobs, Shard: shard, Settings: sweepSettings(opts), CaseDigest: digest, MaxScenarios: opts.maxScenarios}
 	if !opts.quiet && isTerminal(env.stderr) {
 		ro.Progress = func(done, total int) {
 			fmt.Fprintf(env.stderr, "\rsweep: %d/%d scenarios solved", done, total)

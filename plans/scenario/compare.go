@@ -176,7 +176,7 @@ type CompareOptions struct {
 	// than the best catalog alone. It runs alone, with no other solve
 	// beside it. Without it, Solve solves that variant alongside the
 	// others.
-	SolveFrom func(ctx context.Context, c *plans.Case, start []plans.PlanRow) (*plans.Result, error)
+	SolveFrom SolveFromFunc
 }
 
 // parallel runs f(0..n−1) with at most jobs calls at once and returns the

@@ -305,6 +305,36 @@ func runJSON(t *testing.T, out *Output) []byte {
 	return b
 }
 
+// TestSweepFromBasePlan: with SolveFrom, every scenario but the base point
+// is solved from the base plan (solved first), and its result is
+// SolveFrom's.
+func TestSweepFromBasePlan(t *testing.T) {
+	c := testCase()
+	g := sweepGrid(t)
+	base, err := fakeSolve(context.Background(), c)
+	if err != nil || len(base.Plan) == 0 {
+		t.Fatalf("the base point's fake plan buys nothing (%v): the test needs one", err)
+	}
+	var mu sync.Mutex
+	froms := 0
+	from := func(ctx context.Context, vc *plans.Case, start []plans.PlanRow) (*plans.Result, error) {
+		if len(start) != len(base.Plan) || start[0] != base.Plan[0] {
+			t.Errorf("started from %v, want the base plan %v", start, base.Plan)
+		}
+		mu.Lock()
+		froms++
+		mu.Unlock()
+		return fakeSolve(ctx, vc)
+	}
+	out, err := Run(context.Background(), c, g, Options{Solve: fakeSolve, SolveFrom: from, Jobs: 2})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if want := len(out.Records) - 1; froms != want {
+		t.Errorf("SolveFrom solved %d scenarios, want all %d but the base point", froms, want)
+	}
+}
+
 // TestShardsMergeEqualUnsharded checks the sweep contract: sharded runs
 // merged give exactly the unsharded result, whatever the number of jobs.
 func TestShardsMergeEqualUnsharded(t *testing.T) {

@@ -16,6 +16,11 @@ import (
 // once (on distinct cases) when Options.Jobs > 1.
 type SolveFunc func(ctx context.Context, c *plans.Case) (*plans.Result, error)
 
+// SolveFromFunc solves one case starting from a plan (a plan of a related
+// case, plans.SolveOptions.StartPlan): if the plan fits the case, the
+// answer is never worse than it.
+type SolveFromFunc func(ctx context.Context, c *plans.Case, start []plans.PlanRow) (*plans.Result, error)
+
 // EvaluateFunc re-evaluates a plan's purchases, fixed, in case c by the
 // routing LP, with the budget not enforced: the Result's Objective is the
 // NPV of those purchases in c, and its status is infeasible when they cannot
@@ -183,6 +188,12 @@ type Header struct {
 type Options struct {
 	// Solve solves one scenario (required).
 	Solve SolveFunc
+	// SolveFrom, when set, solves each scenario starting from the base
+	// plan: where that plan fits the scenario (its budget above all), the
+	// scenario's plan is then never worse than the base plan, even when a
+	// time limit stops its search, and its regret is never negative.
+	// Without it (or without a base plan), Solve solves every scenario.
+	SolveFrom SolveFromFunc
 	// Evaluate re-evaluates the base plan in each scenario (nil: no regret).
 	Evaluate EvaluateFunc
 	// Jobs is the number of scenarios solved at once (0 or 1: one at a time).
@@ -287,9 +298,12 @@ func Run(ctx context.Context, c *plans.Case, grid Grid, opts Options) (*Output, 
 				j := todo[k]
 				var res *plans.Result
 				var err error
-				if points[j].Equal(base) {
+				switch {
+				case points[j].Equal(base):
 					res = baseResult
-				} else {
+				case opts.SolveFrom != nil && len(basePlan) > 0:
+					res, err = opts.SolveFrom(ctx, cases[j], basePlan)
+				default:
 					res, err = opts.Solve(ctx, cases[j])
 				}
 				rec := newRecord(j, j >= n, points[j], cases[j], res, err)
