@@ -173,7 +173,11 @@ func reportTornado(ctx context.Context, env *cmdEnv, opts *reportOptions, c *pla
 	if err != nil {
 		return nil, err
 	}
-	to := scenario.TornadoOptions{Solve: solve, Base: res, Jobs: jobs}
+	solveFrom, err := solveFromWith(opts.timeLimit, opts.gap, jobs == 1)
+	if err != nil {
+		return nil, err
+	}
+	to := scenario.TornadoOptions{Solve: solve, SolveFrom: solveFrom, Base: res, Jobs: jobs}
 	if !opts.quiet {
 		fmt.Fprintf(env.stderr, "tornado: %d solves, each of %s alone at its low and high value\n", 2*len(c.Tornado), strings.Join(names, ", "))
 		to.Progress = func(s scenario.Setting, r *scenario.Record, done, total int) {

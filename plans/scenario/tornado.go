@@ -15,6 +15,10 @@ type TornadoOptions struct {
 	// Base is the case's own solve, when the caller has it (the report's
 	// plan): its NPV is the bars' base. Nil: Tornado solves the case.
 	Base *plans.Result
+	// SolveFrom, when set, solves each end starting from the base plan
+	// (as sweep's Options.SolveFrom): where that plan fits, a time-limited
+	// end is never worse than it.
+	SolveFrom SolveFromFunc
 	// Jobs is the number of solves run at once (0 or 1: one at a time).
 	Jobs int
 	// Progress, when set, is called after each solve at a factor's end with
@@ -79,7 +83,13 @@ func Tornado(ctx context.Context, c *plans.Case, factors []plans.Sensitivity, op
 		if ctx.Err() != nil {
 			return nil
 		}
-		res, err := opts.Solve(ctx, cases[k])
+		var res *plans.Result
+		var err error
+		if opts.SolveFrom != nil && len(baseRes.Plan) > 0 {
+			res, err = opts.SolveFrom(ctx, cases[k], baseRes.Plan)
+		} else {
+			res, err = opts.Solve(ctx, cases[k])
+		}
 		records[k] = newRecord(k+1, true, ends[k], cases[k], res, err)
 		if opts.Progress != nil {
 			mu.Lock()

@@ -128,6 +128,23 @@ func TestTornadoFake(t *testing.T) {
 	if got := n.Load(); got != 6 {
 		t.Errorf("with the base given: %d solves, want 2·3 = 6", got)
 	}
+
+	// With SolveFrom, every end starts from the base plan.
+	n.Store(0)
+	var froms atomic.Int64
+	from := func(ctx context.Context, vc *plans.Case, start []plans.PlanRow) (*plans.Result, error) {
+		if len(start) != len(want.Plan) || start[0] != want.Plan[0] {
+			t.Errorf("an end started from %v, want the base plan %v", start, want.Plan)
+		}
+		froms.Add(1)
+		return fakeSolve(ctx, vc)
+	}
+	if _, _, err := Tornado(context.Background(), c, factors, TornadoOptions{Solve: countingSolve(fakeSolve, &n), SolveFrom: from, Base: want, Jobs: 2}); err != nil {
+		t.Fatal(err)
+	}
+	if n.Load() != 0 || froms.Load() != 6 {
+		t.Errorf("with SolveFrom: %d solves and %d from the base plan, want 0 and 6", n.Load(), froms.Load())
+	}
 }
 
 // TestTornadoBadInput: a factor that makes no case is bad input, reported
