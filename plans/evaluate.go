@@ -75,15 +75,16 @@ func Evaluate(ctx context.Context, c *Case, plan []PlanRow) (*Result, error) {
 // the best values within the case's budgets: a start for the search. It
 // returns nil when the plan does not fit the case (an item, link or order
 // year the case does not offer, a budget it breaks, committed demand it
-// cannot carry) or ctx ends first.
-func (m *Model) startFromPlan(ctx context.Context, plan []PlanRow) []float64 {
+// cannot carry) or ctx ends first. A positive limit bounds its time; a
+// solve stopped by it still gives its best point.
+func (m *Model) startFromPlan(ctx context.Context, plan []PlanRow, limit time.Duration) []float64 {
 	fixed := *m
 	fixed.LP = m.LP.Clone()
 	if fixed.fixPlan(plan) != nil {
 		return nil
 	}
-	mr, err := mipSolve(ctx, fixed.LP, mip.Settings{RelGap: 1e-9})
-	if err != nil || mr.Status != mip.Optimal {
+	mr, err := mipSolve(ctx, fixed.LP, mip.Settings{RelGap: 1e-9, TimeLimit: limit})
+	if err != nil || (mr.Status != mip.Optimal && mr.Status != mip.Feasible) {
 		return nil
 	}
 	return mr.X

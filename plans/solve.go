@@ -93,7 +93,9 @@ func Solve(ctx context.Context, c *Case, opts SolveOptions) (*Result, error) {
 	}
 	set := mip.Settings{TimeLimit: opts.TimeLimit, RelGap: opts.Gap, NodeLimit: opts.NodeLimit, NoRINS: opts.NoRINS, SecondCore: opts.SecondCore}
 	if len(opts.StartPlan) > 0 {
-		set.Start = m.startFromPlan(ctx, opts.StartPlan)
+		// With a time limit, the start may take a share of it (as the
+		// decoding reserve does) and no more.
+		set.Start = m.startFromPlan(ctx, opts.StartPlan, time.Duration(maxDecodeShare*float64(opts.TimeLimit)))
 	}
 	if len(m.tiers) > 0 {
 		set.Priority = m.branchPriority()
