@@ -1,6 +1,9 @@
 package plans
 
-import "strings"
+import (
+	"math"
+	"strings"
+)
 
 // This file holds the types of a solved plan. The solve and export commands
 // print them as terminal tables, JSON and CSV; the JSON tags are the stable
@@ -307,4 +310,21 @@ const CeilingTolerance = 0.0005
 // ceiling within CeilingTolerance.
 func AtCeiling(u, ceiling float64) bool {
 	return ceiling > 0 && u >= ceiling-CeilingTolerance
+}
+
+// GapAmount is the gap in money: how much a better plan could add to the
+// NPV at most (bound − NPV, never below 0; in cost mode, how much it could
+// save). ok is false without a plan or a bound.
+func (r *Result) GapAmount() (amount float64, ok bool) {
+	if r.Bound == nil || r.Objective == nil {
+		return 0, false
+	}
+	return math.Max(0, *r.Bound-*r.Objective), true
+}
+
+// PaybackInFirstYear reports whether the payback year is the first year of
+// the horizon: the cumulative incremental cash is never negative (a plan
+// with no capex, such as a lease that pays from its first year).
+func (r *Result) PaybackInFirstYear() bool {
+	return r.PaybackYear != nil && len(r.Cashflow) > 0 && *r.PaybackYear == r.Cashflow[0].Year
 }

@@ -94,30 +94,22 @@ usage, 3 no variant has a plan.`,
 	return cmd
 }
 
-// solveWith returns the solve function of compare, sweep and report for
-// the flags; jobs is how many solves run at once (only a lone solve may
-// keep the second core busy, SolveOptions.SecondCore).
-func solveWith(timeLimit string, gap float64, jobs int) (scenario.SolveFunc, error) {
+// solversWith returns the solve functions of compare, sweep and report for
+// the flags: from scratch, and from a start plan (compare's all-catalogs
+// variant, sweep's scenarios and the report's tornado ends: the
+// SolveFrom options of package scenario). jobs is how many solves run at
+// once (only a lone solve may keep the second core busy,
+// SolveOptions.SecondCore).
+func solversWith(timeLimit string, gap float64, jobs int) (scenario.SolveFunc, scenario.SolveFromFunc, error) {
 	limit, err := parseTimeLimit(timeLimit)
 	if err != nil {
-		return nil, err
+		return nil, nil, err
 	}
-	return func(ctx context.Context, c *plans.Case) (*plans.Result, error) {
-		return scenarioSolve(ctx, c, plans.SolveOptions{TimeLimit: limit, Gap: gap, SecondCore: jobs == 1})
-	}, nil
-}
-
-// solveFromWith is solveWith for solves that start from a plan (compare's
-// all-catalogs variant, sweep's scenarios: CompareOptions.SolveFrom,
-// Options.SolveFrom); secondCore when the solve runs alone.
-func solveFromWith(timeLimit string, gap float64, secondCore bool) (scenario.SolveFromFunc, error) {
-	limit, err := parseTimeLimit(timeLimit)
-	if err != nil {
-		return nil, err
+	from := func(ctx context.Context, c *plans.Case, start []plans.PlanRow) (*plans.Result, error) {
+		return scenarioSolve(ctx, c, plans.SolveOptions{TimeLimit: limit, Gap: gap, SecondCore: jobs == 1, StartPlan: start})
 	}
-	return func(ctx context.Context, c *plans.Case, start []plans.PlanRow) (*plans.Result, error) {
-		return scenarioSolve(ctx, c, plans.SolveOptions{TimeLimit: limit, Gap: gap, SecondCore: secondCore, StartPlan: start})
-	}, nil
+	solve := func(ctx context.Context, c *plans.Case) (*plans.Result, error) { return from(ctx, c, nil) }
+	return solve, from, nil
 }
 
 // writeOutput sends data to stdout, or to a file written through a
@@ -145,14 +137,11 @@ func runCompare(ctx context.Context, env *cmdEnv, opts *compareOptions) error {
 	if jobs == 0 {
 		jobs = runtime.NumCPU()
 	}
-	solve, err := solveWith(opts.timeLimit, opts.gap, jobs)
+	solve, _, err := solversWith(opts.timeLimit, opts.gap, jobs)
 	if err != nil {
 		return err
 	}
-	solveFrom, err := solveFromWith(opts.timeLimit, opts.gap, true) // it runs alone
-	if err != nil {
-		return err
-	}
+	_, solveFrom, _ := solversWith(opts.timeLimit, opts.gap, 1) // the all-catalogs solve runs alone (flags checked above)
 	if len(c.Catalogs) == 0 {
 		return withCode(exitBadInput, errors.New("compare: the case names no catalog"))
 	}

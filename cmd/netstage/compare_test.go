@@ -202,8 +202,8 @@ func TestCompareContendersText(t *testing.T) {
 	}
 	npv := 100.0
 	v := scenario.Variant{Name: "a.toml", Status: "feasible", Objective: &npv, Winner: true}
-	for t := 0; t < c.Horizon; t++ {
-		v.CapexByYear = append(v.CapexByYear, scenario.YearAmount{Year: c.Year(t)})
+	for i := 0; i < c.Horizon; i++ {
+		v.CapexByYear = append(v.CapexByYear, scenario.YearAmount{Year: c.Year(i)})
 	}
 	cmp := &scenario.Comparison{Case: c.Name, Currency: c.Currency, Winner: "a.toml", Contenders: []string{"b.toml"},
 		Variants: []scenario.Variant{v}}

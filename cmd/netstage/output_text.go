@@ -7,7 +7,6 @@ import (
 	"bytes"
 	"fmt"
 	"io"
-	"math"
 	"strconv"
 	"strings"
 	"text/tabwriter"
@@ -147,7 +146,7 @@ func writeSummary(w io.Writer, r *plans.Result, opts textOptions) {
 		payback := "n/a (the incremental cash never stays positive)"
 		if r.PaybackYear != nil {
 			payback = fmt.Sprint(*r.PaybackYear)
-			if len(r.Cashflow) > 0 && *r.PaybackYear == r.Cashflow[0].Year {
+			if r.PaybackInFirstYear() {
 				payback += " (the cumulative incremental cash is never negative)"
 			}
 		}
@@ -172,9 +171,8 @@ func writeSummary(w io.Writer, r *plans.Result, opts textOptions) {
 	}
 	if r.Gap != nil {
 		gap := fixed(100**r.Gap, 4) + " %"
-		if r.Bound != nil && r.Objective != nil {
-			// The gap in money: what a better plan could add at most.
-			left := money(math.Max(0, *r.Bound-*r.Objective))
+		if amount, ok := r.GapAmount(); ok {
+			left := money(amount)
 			if r.CostMode {
 				gap += " (no plan costs less than this one by more than " + left + ")"
 			} else {

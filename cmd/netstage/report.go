@@ -169,11 +169,7 @@ func reportTornado(ctx context.Context, env *cmdEnv, opts *reportOptions, c *pla
 	if jobs == 0 {
 		jobs = runtime.NumCPU()
 	}
-	solve, err := solveWith(opts.timeLimit, opts.gap, jobs)
-	if err != nil {
-		return nil, err
-	}
-	solveFrom, err := solveFromWith(opts.timeLimit, opts.gap, jobs == 1)
+	solve, solveFrom, err := solversWith(opts.timeLimit, opts.gap, jobs)
 	if err != nil {
 		return nil, err
 	}

@@ -173,11 +173,7 @@ func runSweep(ctx context.Context, env *cmdEnv, opts *sweepOptions) error {
 	if jobs == 0 {
 		jobs = runtime.NumCPU()
 	}
-	solve, err := solveWith(opts.timeLimit, opts.gap, jobs)
-	if err != nil {
-		return err
-	}
-	solveFrom, err := solveFromWith(opts.timeLimit, opts.gap, jobs == 1)
+	solve, solveFrom, err := solversWith(opts.timeLimit, opts.gap, jobs)
 	if err != nil {
 		return err
 	}

@@ -281,8 +281,8 @@ func decision(c *plans.Case, r *plans.Result) string {
 	}
 	if r.Status == plans.StatusFeasible && r.Gap != nil {
 		within := percent(*r.Gap)
-		if r.Bound != nil && r.Objective != nil {
-			within += " (" + moneyCur(math.Max(0, *r.Bound-*r.Objective), cur) + ")"
+		if amount, ok := r.GapAmount(); ok {
+			within += " (" + moneyCur(amount, cur) + ")"
 		}
 		best := "the best possible NPV"
 		if r.CostMode {
@@ -479,7 +479,7 @@ func keyFigures(r *plans.Result) []keyFigure {
 			keyFigure{"NPV of doing nothing", opt(r.BaselineNPV, m, "n/a"), "baseline"},
 			keyFigure{"Incremental NPV", opt(r.IncrementalNPV, m, "n/a"), "plan − baseline"},
 			keyFigure{"IRR", opt(irr, percent, "n/a"), "of the incremental cash flow"},
-			keyFigure{"Payback year", optInt(payback), paybackNote(r, payback)},
+			keyFigure{"Payback year", optInt(payback), paybackNote(r, payback != nil)},
 		)
 	}
 	k = append(k,
@@ -1126,11 +1126,11 @@ func mapNote(c *plans.Case) string {
 	return fmt.Sprintf("The case gives coordinates for only some sites (%d of %d), so the report has no network map.", max(ll, xy), n)
 }
 
-// paybackNote is the note under the payback year: a payback in the first
-// year means the cumulative incremental cash is never negative (a plan
-// with no capex, such as a lease that pays from its first year).
-func paybackNote(r *plans.Result, payback *int) string {
-	if payback != nil && len(r.Cashflow) > 0 && *payback == r.Cashflow[0].Year {
+// paybackNote is the note under the payback year (shown when shown is
+// true): a payback in the first year says the cumulative incremental cash
+// is never negative.
+func paybackNote(r *plans.Result, shown bool) string {
+	if shown && r.PaybackInFirstYear() {
 		return "undiscounted, incremental: never below zero"
 	}
 	return "undiscounted, incremental"
