@@ -226,11 +226,13 @@ func Compare(ctx context.Context, c *plans.Case, opts CompareOptions) (*Comparis
 		cmp.Variants[k] = newVariant(name, catalog, c, res)
 		return nil
 	}
-	first := n + 1 // variants solved side by side
+	// The variants solved side by side: all of them, or with SolveFrom the
+	// single catalogs, the all-catalogs one coming after them.
+	together := n + 1
 	if opts.SolveFrom != nil {
-		first = n
+		together = n
 	}
-	if err := parallel(first, opts.Jobs, func(k int) error { return solveVariant(k, nil) }); err != nil {
+	if err := parallel(together, opts.Jobs, func(k int) error { return solveVariant(k, nil) }); err != nil {
 		return nil, err
 	}
 	win := -1
@@ -239,7 +241,7 @@ func Compare(ctx context.Context, c *plans.Case, opts CompareOptions) (*Comparis
 			win = i
 		}
 	}
-	if first == n {
+	if together == n {
 		var start []plans.PlanRow
 		if win >= 0 {
 			start = cmp.Variants[win].Result.Plan
