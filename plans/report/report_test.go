@@ -12,6 +12,7 @@ import (
 	"path/filepath"
 	"regexp"
 	"slices"
+	"strconv"
 	"strings"
 	"sync"
 	"testing"
@@ -549,6 +550,24 @@ func TestStoppedEarly(t *testing.T) {
 	md = render(t, c, &stopped, Markdown)
 	if want := "(EUR\u00a012,345) of the least possible present cost"; !strings.Contains(md, want) {
 		t.Errorf("cost mode: the decision lacks %q:\n%s", want, md[:min(len(md), 1500)])
+	}
+}
+
+// TestPaybackFirstYear: a plan whose cumulative incremental cash is never
+// negative (payback in the first year, as a lease that pays at once) is
+// not said to have "payback in" that year, which reads as if it had costs
+// to earn back; the key figure notes it.
+func TestPaybackFirstYear(t *testing.T) {
+	c, r := solvedDemo(t)
+	first := *r
+	y := first.Cashflow[0].Year
+	first.PaybackYear = &y
+	md := render(t, c, &first, Markdown)
+	if strings.Contains(md, "payback in "+strconv.Itoa(y)) || !strings.Contains(md, "a cumulative cash flow never below that of doing nothing") {
+		t.Errorf("the decision for a first-year payback:\n%s", md[:min(len(md), 1500)])
+	}
+	if !strings.Contains(md, "never below zero") {
+		t.Error("the payback key figure does not note it")
 	}
 }
 

@@ -262,6 +262,8 @@ func decision(c *plans.Case, r *plans.Result) string {
 			parts = append(parts, "an IRR of "+percent(*r.IRR))
 		}
 		if len(r.Plan) == 0 {
+		} else if r.PaybackInFirstYear() {
+			parts = append(parts, "a cumulative cash flow never below that of doing nothing")
 		} else if r.PaybackYear != nil {
 			parts = append(parts, "payback in "+strconv.Itoa(*r.PaybackYear))
 		} else if len(r.Plan) > 0 {
