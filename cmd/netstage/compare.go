@@ -96,8 +96,8 @@ usage, 3 no variant has a plan.`,
 
 // solversWith returns the solve functions of compare, sweep and report for
 // the flags: from scratch, and from a start plan (compare's all-catalogs
-// variant, sweep's scenarios and the report's tornado ends: the
-// SolveFrom options of package scenario). jobs is how many solves run at
+// variant and break-even levels, sweep's scenarios and the report's
+// tornado ends: the SolveFrom options of package scenario). jobs is how many solves run at
 // once (only a lone solve may keep the second core busy,
 // SolveOptions.SecondCore).
 func solversWith(timeLimit string, gap float64, jobs int) (scenario.SolveFunc, scenario.SolveFromFunc, error) {
@@ -137,11 +137,10 @@ func runCompare(ctx context.Context, env *cmdEnv, opts *compareOptions) error {
 	if jobs == 0 {
 		jobs = runtime.NumCPU()
 	}
-	solve, _, err := solversWith(opts.timeLimit, opts.gap, jobs)
+	solve, solveFrom, err := solversWith(opts.timeLimit, opts.gap, jobs)
 	if err != nil {
 		return err
 	}
-	_, solveFrom, _ := solversWith(opts.timeLimit, opts.gap, 1) // the all-catalogs solve runs alone (flags checked above)
 	if len(c.Catalogs) == 0 {
 		return withCode(exitBadInput, errors.New("compare: the case names no catalog"))
 	}

@@ -173,9 +173,9 @@ type CompareOptions struct {
 	// the best single catalog's plan (plans.SolveOptions.StartPlan), after
 	// the single catalogs: every plan of one catalog is a plan of all of
 	// them, so even a search stopped by its time limit then does no worse
-	// than the best catalog alone. It runs alone, with no other solve
-	// beside it. Without it, Solve solves that variant alongside the
-	// others.
+	// than the best catalog alone. It also starts the break-even searches'
+	// solves from plans that fit them (see BreakEven). Without it, Solve
+	// solves everything, the all-catalogs variant alongside the others.
 	SolveFrom SolveFromFunc
 }
 
@@ -271,7 +271,11 @@ func Compare(ctx context.Context, c *plans.Case, opts CompareOptions) (*Comparis
 				v.BreakEvenNote = "no catalog alone has a plan"
 				return nil
 			}
-			be, err := BreakEven(ctx, c, v.Catalog, *cmp.Variants[win].Objective, opts.Solve)
+			var own []plans.PlanRow
+			if v.Objective != nil {
+				own = v.Result.Plan
+			}
+			be, err := BreakEven(ctx, c, v.Catalog, *cmp.Variants[win].Objective, opts.Solve, opts.SolveFrom, own)
 			if err != nil {
 				return err
 			}
@@ -336,17 +340,34 @@ type BreakEvenResult struct {
 // BreakEvenNPVTolerance of target, and reports the discount 1 − lo.
 // A price level with no plan counts as −∞ (a lower price can only add plans
 // within the budget).
-func BreakEven(ctx context.Context, c *plans.Case, k int, target float64, solve SolveFunc) (BreakEvenResult, error) {
+//
+// With from, each price level's solve starts from the plan of the lowest
+// price level above it solved so far (at first start, the catalog's own
+// plan at list price): a plan stays within the budget, and reaches the
+// same spend tiers, when prices fall, so that plan fits, and a search
+// stopped by its time limit cannot make NPV(p) fall below that plan's
+// value at p. Without from (nil), solve solves every level.
+func BreakEven(ctx context.Context, c *plans.Case, k int, target float64, solve SolveFunc, from SolveFromFunc, start []plans.PlanRow) (BreakEvenResult, error) {
 	var out BreakEvenResult
+	var plan []plans.PlanRow // the plan at the last evaluated price level
 	npv := func(p float64) (float64, error) {
 		out.Solves++
-		res, err := solve(ctx, OnlyCatalog(ScaleQuote(c, k, p), k))
+		vc := OnlyCatalog(ScaleQuote(c, k, p), k)
+		var res *plans.Result
+		var err error
+		if from != nil && len(start) > 0 {
+			res, err = from(ctx, vc, start)
+		} else {
+			res, err = solve(ctx, vc)
+		}
 		if err != nil {
 			return 0, fmt.Errorf("scenario: break-even of %s at %.4g × list: %w", c.Catalogs[k].Name, p, err)
 		}
+		plan = nil
 		if res.Objective == nil {
 			return math.Inf(-1), nil
 		}
+		plan = res.Plan
 		return *res.Objective, nil
 	}
 	tol := BreakEvenNPVTolerance * math.Max(math.Abs(target), 1)
@@ -373,6 +394,9 @@ func BreakEven(ctx context.Context, c *plans.Case, k int, target float64, solve 
 			lo, flo = mid, f
 		} else {
 			hi = mid
+			if plan != nil {
+				start = plan // fits every price below mid
+			}
 		}
 	}
 	d := 1 - lo

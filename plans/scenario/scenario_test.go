@@ -668,6 +668,61 @@ func TestCompareContenders(t *testing.T) {
 	}
 }
 
+// TestBreakEvenStarts: with a SolveFrom, the break-even search solves each
+// price level from a plan that fits it: the catalog's own plan at list
+// price until a level falls short of the target, then that level's plan
+// (a plan made at a higher price fits every lower one). The discount found
+// is the one found without starts.
+func TestBreakEvenStarts(t *testing.T) {
+	c := testCase()
+	c.Budget.Yearly[0] = math.Inf(1)
+	ctx := context.Background()
+	own, err := fakeSolve(ctx, OnlyCatalog(c, 0)) // north at list price
+	if err != nil {
+		t.Fatal(err)
+	}
+	south, err := fakeSolve(ctx, OnlyCatalog(c, 1)) // the winner
+	if err != nil {
+		t.Fatal(err)
+	}
+	target := *south.Objective
+	var starts [][]plans.PlanRow
+	var results []*plans.Result
+	from := func(ctx context.Context, vc *plans.Case, start []plans.PlanRow) (*plans.Result, error) {
+		starts = append(starts, start)
+		res, err := fakeSolve(ctx, vc)
+		results = append(results, res)
+		return res, err
+	}
+	be, err := BreakEven(ctx, c, 0, target, fakeSolve, from, own.Plan)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(starts) < 3 {
+		t.Fatalf("%d solves: the bisection should take several", len(starts))
+	}
+	// Plans of different price levels differ in their capex.
+	for i, start := range starts {
+		want := own.Plan
+		for j := i - 1; j >= 1; j-- {
+			if *results[j].Objective < target {
+				want = results[j].Plan
+				break
+			}
+		}
+		if len(start) == 0 || start[0].Capex != want[0].Capex {
+			t.Errorf("solve %d started from a plan with capex %v, want %v", i, start, want[0].Capex)
+		}
+	}
+	plain, err := BreakEven(ctx, c, 0, target, fakeSolve, nil, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if be.Discount == nil || plain.Discount == nil || *be.Discount != *plain.Discount {
+		t.Errorf("discount %v with starts, %v without", deref(be.Discount), deref(plain.Discount))
+	}
+}
+
 func TestCompareInfeasibleVariant(t *testing.T) {
 	c := testCase()
 	c.Budget.Yearly[0] = 2000 // south (1830) fits, north's dearer modules do not
