@@ -213,13 +213,7 @@ func Compare(ctx context.Context, c *plans.Case, opts CompareOptions) (*Comparis
 		if k < n {
 			name, vc, catalog = c.Catalogs[k].Name, OnlyCatalog(c, k), k
 		}
-		var res *plans.Result
-		var err error
-		if start != nil {
-			res, err = opts.SolveFrom(ctx, vc, start)
-		} else {
-			res, err = opts.Solve(ctx, vc)
-		}
+		res, err := solveStarting(ctx, opts.Solve, opts.SolveFrom, vc, start)
 		if err != nil {
 			return fmt.Errorf("scenario: variant %s: %w", name, err)
 		}
@@ -352,14 +346,7 @@ func BreakEven(ctx context.Context, c *plans.Case, k int, target float64, solve 
 	var plan []plans.PlanRow // the plan at the last evaluated price level
 	npv := func(p float64) (float64, error) {
 		out.Solves++
-		vc := OnlyCatalog(ScaleQuote(c, k, p), k)
-		var res *plans.Result
-		var err error
-		if from != nil && len(start) > 0 {
-			res, err = from(ctx, vc, start)
-		} else {
-			res, err = solve(ctx, vc)
-		}
+		res, err := solveStarting(ctx, solve, from, OnlyCatalog(ScaleQuote(c, k, p), k), start)
 		if err != nil {
 			return 0, fmt.Errorf("scenario: break-even of %s at %.4g × list: %w", c.Catalogs[k].Name, p, err)
 		}

@@ -21,6 +21,15 @@ type SolveFunc func(ctx context.Context, c *plans.Case) (*plans.Result, error)
 // answer is never worse than it.
 type SolveFromFunc func(ctx context.Context, c *plans.Case, start []plans.PlanRow) (*plans.Result, error)
 
+// solveStarting solves c with from, starting from start, when both are
+// given, else with solve.
+func solveStarting(ctx context.Context, solve SolveFunc, from SolveFromFunc, c *plans.Case, start []plans.PlanRow) (*plans.Result, error) {
+	if from != nil && len(start) > 0 {
+		return from(ctx, c, start)
+	}
+	return solve(ctx, c)
+}
+
 // EvaluateFunc re-evaluates a plan's purchases, fixed, in case c by the
 // routing LP, with the budget not enforced: the Result's Objective is the
 // NPV of those purchases in c, and its status is infeasible when they cannot
@@ -298,13 +307,10 @@ func Run(ctx context.Context, c *plans.Case, grid Grid, opts Options) (*Output, 
 				j := todo[k]
 				var res *plans.Result
 				var err error
-				switch {
-				case points[j].Equal(base):
+				if points[j].Equal(base) {
 					res = baseResult
-				case opts.SolveFrom != nil && len(basePlan) > 0:
-					res, err = opts.SolveFrom(ctx, cases[j], basePlan)
-				default:
-					res, err = opts.Solve(ctx, cases[j])
+				} else {
+					res, err = solveStarting(ctx, opts.Solve, opts.SolveFrom, cases[j], basePlan)
 				}
 				rec := newRecord(j, j >= n, points[j], cases[j], res, err)
 				if err == nil && ctx.Err() == nil {

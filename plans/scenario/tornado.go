@@ -83,13 +83,7 @@ func Tornado(ctx context.Context, c *plans.Case, factors []plans.Sensitivity, op
 		if ctx.Err() != nil {
 			return nil
 		}
-		var res *plans.Result
-		var err error
-		if opts.SolveFrom != nil && len(baseRes.Plan) > 0 {
-			res, err = opts.SolveFrom(ctx, cases[k], baseRes.Plan)
-		} else {
-			res, err = opts.Solve(ctx, cases[k])
-		}
+		res, err := solveStarting(ctx, opts.Solve, opts.SolveFrom, cases[k], baseRes.Plan)
 		records[k] = newRecord(k+1, true, ends[k], cases[k], res, err)
 		if opts.Progress != nil {
 			mu.Lock()
