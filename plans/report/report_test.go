@@ -739,3 +739,22 @@ func TestVendorPolicyShown(t *testing.T) {
 		t.Error("a case without one_vendor reports a vendor chosen")
 	}
 }
+
+// TestCostText: the decision gives what the first orders cost, with the
+// yearly fees of leases, which have no capex.
+func TestCostText(t *testing.T) {
+	module := plans.PlanRow{Kind: plans.KindModule, Capex: 1000, Opex: 50}
+	lease := plans.PlanRow{Kind: plans.KindLease, Opex: 300}
+	for _, tc := range []struct {
+		rows []plans.PlanRow
+		want string
+	}{
+		{[]plans.PlanRow{module}, "a capex of EUR\u00a01,000"},
+		{[]plans.PlanRow{lease}, "lease fees of EUR\u00a0300 a year"},
+		{[]plans.PlanRow{module, lease}, "a capex of EUR\u00a01,000 and lease fees of EUR\u00a0300 a year"},
+	} {
+		if got := costText(tc.rows, "EUR"); got != tc.want {
+			t.Errorf("got %q, want %q", got, tc.want)
+		}
+	}
+}

@@ -206,27 +206,25 @@ func decision(c *plans.Case, r *plans.Result) string {
 		fmt.Fprintf(&b, "Order nothing in %d: no upgrade earns its cost over %d–%d at the case's assumptions. ", first, first, first+c.Horizon-1)
 	case len(now) == 0:
 		var next []string
-		capex := 0.0
+		var rows []plans.PlanRow
 		for _, p := range r.Plan {
 			if p.Year == nextYear {
 				next = append(next, purchaseText(p)+", order by "+orderBy(c, p))
-				capex += p.Capex
+				rows = append(rows, p)
 			}
 		}
 		orders := "orders fall"
 		if len(next) == 1 {
 			orders = "order falls"
 		}
-		fmt.Fprintf(&b, "Order nothing in %d. The first %s in %d: %s, for a capex of %s. ",
-			first, orders, nextYear, joinAnd(next), moneyCur(capex, cur))
+		fmt.Fprintf(&b, "Order nothing in %d. The first %s in %d: %s, for %s. ",
+			first, orders, nextYear, joinAnd(next), costText(rows, cur))
 	default:
-		capex := 0.0
 		items := make([]string, 0, len(now))
 		for _, p := range now {
-			capex += p.Capex
 			items = append(items, purchaseText(p))
 		}
-		fmt.Fprintf(&b, "In %d, order %s, for a capex of %s", first, joinAnd(items), moneyCur(capex, cur))
+		fmt.Fprintf(&b, "In %d, order %s, for %s", first, joinAnd(items), costText(now, cur))
 		if cf := cashYear(r.Cashflow, first); cf != nil && cf.Budget != nil {
 			fmt.Fprintf(&b, " against a budget of %s", moneyCur(*cf.Budget, cur))
 		}
@@ -1136,4 +1134,25 @@ func paybackNote(r *plans.Result, shown bool) string {
 		return "undiscounted, incremental: never below zero"
 	}
 	return "undiscounted, incremental"
+}
+
+// costText is what orders cost: their capex, and the yearly fees of the
+// leases among them (a lease has no capex: "a capex of EUR 0" alone would
+// hide its cost).
+func costText(rows []plans.PlanRow, cur string) string {
+	capex, fees := 0.0, 0.0
+	for _, p := range rows {
+		capex += p.Capex
+		if p.Kind == plans.KindLease {
+			fees += p.Opex
+		}
+	}
+	switch {
+	case fees == 0:
+		return "a capex of " + moneyCur(capex, cur)
+	case capex == 0:
+		return "lease fees of " + moneyCur(fees, cur) + " a year"
+	default:
+		return "a capex of " + moneyCur(capex, cur) + " and lease fees of " + moneyCur(fees, cur) + " a year"
+	}
 }
