@@ -741,19 +741,23 @@ func TestVendorPolicyShown(t *testing.T) {
 }
 
 // TestCostText: the decision gives what the first orders cost, with the
-// yearly fees of leases, which have no capex.
+// yearly fees of leases, which have no capex, and the year's budget beside
+// the capex it caps.
 func TestCostText(t *testing.T) {
 	module := plans.PlanRow{Kind: plans.KindModule, Capex: 1000, Opex: 50}
 	lease := plans.PlanRow{Kind: plans.KindLease, Opex: 300}
+	budget := 5000.0
 	for _, tc := range []struct {
-		rows []plans.PlanRow
-		want string
+		rows   []plans.PlanRow
+		budget *float64
+		want   string
 	}{
-		{[]plans.PlanRow{module}, "a capex of EUR\u00a01,000"},
-		{[]plans.PlanRow{lease}, "lease fees of EUR\u00a0300 a year"},
-		{[]plans.PlanRow{module, lease}, "a capex of EUR\u00a01,000 and lease fees of EUR\u00a0300 a year"},
+		{[]plans.PlanRow{module}, nil, "a capex of EUR\u00a01,000"},
+		{[]plans.PlanRow{module}, &budget, "a capex of EUR\u00a01,000 against a budget of EUR\u00a05,000"},
+		{[]plans.PlanRow{lease}, &budget, "lease fees of EUR\u00a0300 a year"},
+		{[]plans.PlanRow{module, lease}, &budget, "a capex of EUR\u00a01,000 against a budget of EUR\u00a05,000, and lease fees of EUR\u00a0300 a year"},
 	} {
-		if got := costText(tc.rows, "EUR"); got != tc.want {
+		if got := costText(tc.rows, "EUR", tc.budget); got != tc.want {
 			t.Errorf("got %q, want %q", got, tc.want)
 		}
 	}

@@ -218,17 +218,17 @@ func decision(c *plans.Case, r *plans.Result) string {
 			orders = "order falls"
 		}
 		fmt.Fprintf(&b, "Order nothing in %d. The first %s in %d: %s, for %s. ",
-			first, orders, nextYear, joinAnd(next), costText(rows, cur))
+			first, orders, nextYear, joinAnd(next), costText(rows, cur, nil))
 	default:
 		items := make([]string, 0, len(now))
 		for _, p := range now {
 			items = append(items, purchaseText(p))
 		}
-		fmt.Fprintf(&b, "In %d, order %s, for %s", first, joinAnd(items), costText(now, cur))
-		if cf := cashYear(r.Cashflow, first); cf != nil && cf.Budget != nil {
-			fmt.Fprintf(&b, " against a budget of %s", moneyCur(*cf.Budget, cur))
+		var budget *float64
+		if cf := cashYear(r.Cashflow, first); cf != nil {
+			budget = cf.Budget
 		}
-		b.WriteString(". ")
+		fmt.Fprintf(&b, "In %d, order %s, for %s. ", first, joinAnd(items), costText(now, cur, budget))
 		if reason := whyNow(r, now); reason != "" {
 			b.WriteString(reason)
 		}
@@ -1136,10 +1136,11 @@ func paybackNote(r *plans.Result, shown bool) string {
 	return "undiscounted, incremental"
 }
 
-// costText is what orders cost: their capex, and the yearly fees of the
+// costText is what orders cost: their capex (against budget, when given:
+// the year's cap, which caps capex only), and the yearly fees of the
 // leases among them (a lease has no capex: "a capex of EUR 0" alone would
 // hide its cost).
-func costText(rows []plans.PlanRow, cur string) string {
+func costText(rows []plans.PlanRow, cur string, budget *float64) string {
 	capex, fees := 0.0, 0.0
 	for _, p := range rows {
 		capex += p.Capex
@@ -1147,12 +1148,16 @@ func costText(rows []plans.PlanRow, cur string) string {
 			fees += p.Opex
 		}
 	}
+	text := "a capex of " + moneyCur(capex, cur)
+	if budget != nil {
+		text += " against a budget of " + moneyCur(*budget, cur)
+	}
 	switch {
 	case fees == 0:
-		return "a capex of " + moneyCur(capex, cur)
+		return text
 	case capex == 0:
 		return "lease fees of " + moneyCur(fees, cur) + " a year"
 	default:
-		return "a capex of " + moneyCur(capex, cur) + " and lease fees of " + moneyCur(fees, cur) + " a year"
+		return text + ", and lease fees of " + moneyCur(fees, cur) + " a year"
 	}
 }
