@@ -21,10 +21,7 @@ import (
 // REFERENCES.md §1) and requires the same optimum as mps_objective within
 // 1e-6 relative (DESIGN.md §4: checks against other solvers use 1e-9 gaps).
 func TestCrossCheckCBC(t *testing.T) {
-	cbc, err := exec.LookPath("cbc")
-	if err != nil {
-		t.Skip("cbc not installed (Debian package coinor-cbc): cross-check against CBC skipped")
-	}
+	cbc := cbcOrSkip(t)
 	type namedCase struct {
 		name string
 		load func() (*Case, error)
@@ -127,10 +124,7 @@ func crossCheck(t *testing.T, cbc string, c *Case) *Result {
 // with the same edits, through the command line, agreed with CBC 2.10.8
 // within 1e-9 (2026-12-04).
 func TestCrossCheckCBCVariants(t *testing.T) {
-	cbc, err := exec.LookPath("cbc")
-	if err != nil {
-		t.Skip("cbc not installed (Debian package coinor-cbc): cross-check against CBC skipped")
-	}
+	cbc := cbcOrSkip(t)
 	type variant struct {
 		name  string
 		edits [][2]string // regexp, replacement, applied to case.toml
@@ -202,10 +196,7 @@ func TestCrossCheckCBCVariants(t *testing.T) {
 // within 1e-4 of CBC's. The plan also passes the invariants. Measured on
 // 2026-12-03: netstage 1.8 s and 2.0 s, CBC 8.1 s and 4.1 s.
 func TestCrossCheckCBCTree(t *testing.T) {
-	cbc, err := exec.LookPath("cbc")
-	if err != nil {
-		t.Skip("cbc not installed (Debian package coinor-cbc): cross-check against CBC skipped")
-	}
+	cbc := cbcOrSkip(t)
 	if testing.Short() {
 		t.Skip("the full suite runs it (about 15 s with CBC)")
 	}
@@ -243,6 +234,18 @@ func TestCrossCheckCBCTree(t *testing.T) {
 			}
 		})
 	}
+}
+
+// cbcOrSkip returns the path of CBC (source: reference solver CBC 2.10,
+// Debian coinor-cbc, REFERENCES.md §1), or skips the test when it is not
+// installed.
+func cbcOrSkip(t *testing.T) string {
+	t.Helper()
+	cbc, err := exec.LookPath("cbc")
+	if err != nil {
+		t.Skip("cbc not installed (Debian package coinor-cbc): cross-check against CBC skipped")
+	}
+	return cbc
 }
 
 // exportMPS exports c's model (BuildOptions{}) and writes it as MPS to a

@@ -93,9 +93,7 @@ func Solve(ctx context.Context, c *Case, opts SolveOptions) (*Result, error) {
 	}
 	set := mip.Settings{TimeLimit: opts.TimeLimit, RelGap: opts.Gap, NodeLimit: opts.NodeLimit, NoRINS: opts.NoRINS, SecondCore: opts.SecondCore}
 	if len(opts.StartPlan) > 0 {
-		// With a time limit, the start may take a share of it (as the
-		// decoding reserve does) and no more.
-		set.Start = m.startFromPlan(ctx, opts.StartPlan, time.Duration(maxDecodeShare*float64(opts.TimeLimit)))
+		set.Start = m.startFromPlan(ctx, opts.StartPlan, time.Duration(maxStartShare*float64(opts.TimeLimit)))
 	}
 	if len(m.tiers) > 0 {
 		set.Priority = m.branchPriority()
@@ -233,6 +231,9 @@ const (
 	// decodePerBaseline estimates the decode LPs' time as a multiple of the
 	// baseline LP's.
 	decodePerBaseline = 2
+	// maxStartShare caps the time spent computing the start from
+	// SolveOptions.StartPlan, as a share of the time limit.
+	maxStartShare = 0.25
 	// noBaselineDecodeShare is the reserve when the baseline LP failed and
 	// gives no estimate.
 	noBaselineDecodeShare = 0.1

@@ -55,13 +55,7 @@ func (m *Model) decode(ctx context.Context, res *Result, xi []float64, base *bas
 		// A plan that buys nothing is the baseline: its incremental flows are
 		// rounding noise, and an IRR or payback of noise would mislead.
 		if !res.CostMode && len(res.Plan) > 0 {
-			cents := toCents(incr)
-			if r, ok := finance.IRR(cents); ok {
-				res.IRR = &r
-			}
-			if y, ok := finance.PaybackYear(cents, c.FirstYear); ok {
-				res.PaybackYear = &y
-			}
+			res.IRR, res.PaybackYear = returns(incr, c.FirstYear)
 			pvCapex := 0.0
 			for _, r := range res.Cashflow {
 				pvCapex += r.DiscountFactor * r.Capex
@@ -330,15 +324,22 @@ func connected(c *Case, room []bool, a, b int) bool {
 	return false
 }
 
-// toCents rounds the incremental flows to the cent, as they are reported,
-// for the IRR and the payback year: a difference below that is the LPs'
-// rounding noise, and a noise-sized outflow before a gain makes an absurd
-// IRR (the 25-site synthetic case with gamma's catalog alone, one lease
-// bought in its last year: −0.0046 in the year before, 80,062,056 %).
-func toCents(flows []float64) []float64 {
-	out := make([]float64, len(flows))
-	for t, v := range flows {
-		out[t] = math.Round(100*v) / 100
+// returns gives the IRR and the payback year of the incremental flows
+// (nil where undefined), read to the cent, as the flows are reported: a
+// difference below that is the LPs' rounding noise, and a noise-sized
+// outflow before a gain makes an absurd IRR (the 25-site synthetic case
+// with gamma's catalog alone, one lease bought in its last year: −0.0046
+// in the year before, 80,062,056 %).
+func returns(incr []float64, firstYear int) (irr *float64, payback *int) {
+	cents := make([]float64, len(incr))
+	for t, v := range incr {
+		cents[t] = math.Round(100*v) / 100
 	}
-	return out
+	if r, ok := finance.IRR(cents); ok {
+		irr = &r
+	}
+	if y, ok := finance.PaybackYear(cents, firstYear); ok {
+		payback = &y
+	}
+	return irr, payback
 }

@@ -97,9 +97,9 @@ usage, 3 no variant has a plan.`,
 // solversWith returns the solve functions of compare, sweep and report for
 // the flags: from scratch, and from a start plan (compare's all-catalogs
 // variant and break-even levels, sweep's scenarios and the report's
-// tornado ends: the SolveFrom options of package scenario). jobs is how many solves run at
-// once (only a lone solve may keep the second core busy,
-// SolveOptions.SecondCore).
+// tornado ends: the SolveFrom options of package scenario). jobs is how
+// many solves run at once (only a lone solve may keep the second core
+// busy, SolveOptions.SecondCore).
 func solversWith(timeLimit string, gap float64, jobs int) (scenario.SolveFunc, scenario.SolveFromFunc, error) {
 	limit, err := parseTimeLimit(timeLimit)
 	if err != nil {
