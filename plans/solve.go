@@ -418,8 +418,11 @@ func (m *Model) fixIntegers(x []float64) *lp.Model {
 
 // baselineSolution is the do-nothing plan.
 type baselineSolution struct {
-	m         *Model
-	x         []float64
+	m *Model
+	x []float64
+	// dual holds the row duals of the first stage (best NPV), from which
+	// a plan that buys nothing takes its values of one more Gbps.
+	dual      []float64
 	cashflow  []CashflowRow
 	shortfall []ShortfallRow
 }
@@ -445,7 +448,7 @@ func solveBaseline(ctx context.Context, c *Case) (*baselineSolution, error) {
 	if err != nil || lr == nil {
 		return nil, err
 	}
-	b := &baselineSolution{m: m, x: lr.x}
+	b := &baselineSolution{m: m, x: lr.x, dual: lr.firstDual}
 	served := m.servedValues(lr.x)
 	b.cashflow = cashflowOf(c, nil, served, nil)
 	// Shortfall and its penalty, from served traffic alone.
