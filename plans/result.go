@@ -328,3 +328,11 @@ func (r *Result) GapAmount() (amount float64, ok bool) {
 func (r *Result) PaybackInFirstYear() bool {
 	return r.PaybackYear != nil && len(r.Cashflow) > 0 && *r.PaybackYear == r.Cashflow[0].Year
 }
+
+// StoppedBeforeBetter reports a search that a limit (time, nodes, Ctrl-C)
+// stopped before it found a plan better than the existing network: the
+// answer buys nothing, which is no finding that no upgrade pays. On a
+// large case with a short time limit the first LP alone can take longer.
+func (r *Result) StoppedBeforeBetter() bool {
+	return r.Status == StatusFeasible && len(r.Plan) == 0
+}

@@ -402,3 +402,42 @@ func TestWriteTextPaybackFirstYear(t *testing.T) {
 		}
 	}
 }
+
+// TestWriteTextStoppedBeforeBetter: a search stopped before it found a plan
+// better than the existing network (a large case with a short time limit)
+// must not read as "nothing to buy": the plan table says why nothing is
+// bought, the summary that no bound is known and that IRR and payback are
+// not applicable for want of purchases. A proven empty plan keeps its
+// "nothing to buy".
+func TestWriteTextStoppedBeforeBetter(t *testing.T) {
+	r := handResult()
+	r.Plan = nil
+	r.IRR, r.PaybackYear, r.Bound, r.Gap = nil, nil, nil, nil
+	r.Status = plans.StatusFeasible
+	var buf bytes.Buffer
+	if err := writeText(&buf, r, textOptions{}); err != nil {
+		t.Fatal(err)
+	}
+	out := buf.String()
+	for _, want := range []string{
+		"nothing bought: the search stopped before it found a plan better than the existing",
+		"bound                none: the search stopped before its first LP was solved",
+		"IRR (incremental)    n/a (nothing bought)",
+		"payback year         n/a (nothing bought)",
+	} {
+		if !strings.Contains(out, want) {
+			t.Errorf("output lacks %q:\n%s", want, out)
+		}
+	}
+	if strings.Contains(out, "nothing to buy") {
+		t.Errorf("a stopped search reads as a finding:\n%s", out)
+	}
+	r.Status = plans.StatusOptimal
+	buf.Reset()
+	if err := writeText(&buf, r, textOptions{}); err != nil {
+		t.Fatal(err)
+	}
+	if out := buf.String(); !strings.Contains(out, "nothing to buy: the existing network is the best plan") || strings.Contains(out, "none: the search stopped") {
+		t.Errorf("a proven empty plan:\n%s", out)
+	}
+}

@@ -139,11 +139,14 @@ func writeSummary(w io.Writer, r *plans.Result, opts textOptions) {
 	}
 	if !r.CostMode {
 		irr := "n/a (the incremental cash flows do not change sign exactly once)"
+		payback := "n/a (the incremental cash never stays positive)"
+		if len(r.Plan) == 0 {
+			irr, payback = "n/a (nothing bought)", "n/a (nothing bought)"
+		}
 		if r.IRR != nil {
 			irr = percent(*r.IRR)
 		}
 		row("IRR (incremental)", irr)
-		payback := "n/a (the incremental cash never stays positive)"
 		if r.PaybackYear != nil {
 			payback = fmt.Sprint(*r.PaybackYear)
 			if r.PaybackInFirstYear() {
@@ -160,6 +163,9 @@ func writeSummary(w io.Writer, r *plans.Result, opts textOptions) {
 	row("total capex", money(r.TotalCapex))
 	if len(r.VendorChoice) > 0 {
 		row("vendor chosen", r.VendorChoiceText())
+	}
+	if r.Bound == nil && r.Status == plans.StatusFeasible {
+		row("bound", "none: the search stopped before its first LP was solved")
 	}
 	if r.Bound != nil {
 		bound := *r.Bound
@@ -224,6 +230,11 @@ func writeInfeasibility(w io.Writer, r *plans.Result) {
 
 func writePlanTable(w io.Writer, r *plans.Result) {
 	fmt.Fprintln(w, "\nStaged plan by order year")
+	if r.StoppedBeforeBetter() {
+		fmt.Fprintln(w, "  nothing bought: the search stopped before it found a plan better than the existing")
+		fmt.Fprintln(w, "  network, which does not show that no upgrade pays; allow more time (--time-limit)")
+		return
+	}
 	if len(r.Plan) == 0 {
 		fmt.Fprintln(w, "  nothing to buy: the existing network is the best plan")
 		return

@@ -762,3 +762,27 @@ func TestCostText(t *testing.T) {
 		}
 	}
 }
+
+// TestStoppedBeforeBetter: when the solver stopped before it found a plan
+// better than doing nothing, the decision does not advise ordering nothing
+// and says that no bound is known; a proven empty plan still does.
+func TestStoppedBeforeBetter(t *testing.T) {
+	c, r := solvedDemo(t)
+	stopped := *r
+	stopped.Plan = nil
+	stopped.Status = plans.StatusFeasible
+	stopped.Bound, stopped.Gap, stopped.IRR, stopped.PaybackYear = nil, nil, nil, nil
+	md := render(t, c, &stopped, Markdown)
+	for _, want := range []string{"No upgrade was found in the time given", "before it had a bound: how far this plan is from the best is not known"} {
+		if !strings.Contains(md, want) {
+			t.Errorf("the decision lacks %q:\n%s", want, md[:min(len(md), 1500)])
+		}
+	}
+	if strings.Contains(md, "Order nothing in") {
+		t.Errorf("a stopped search reads as advice to order nothing:\n%s", md[:min(len(md), 1500)])
+	}
+	stopped.Status = plans.StatusOptimal
+	if md := render(t, c, &stopped, Markdown); !strings.Contains(md, "Order nothing in") {
+		t.Errorf("a proven empty plan:\n%s", md[:min(len(md), 1500)])
+	}
+}

@@ -202,6 +202,8 @@ func decision(c *plans.Case, r *plans.Result) string {
 		}
 	}
 	switch {
+	case r.StoppedBeforeBetter():
+		b.WriteString("No upgrade was found in the time given: the solver stopped before it found a plan better than doing nothing, so this is no finding that nothing pays. Solve the case again with a longer time limit. ")
 	case len(r.Plan) == 0:
 		fmt.Fprintf(&b, "Order nothing in %d: no upgrade earns its cost over %d–%d at the case's assumptions. ", first, first, first+c.Horizon-1)
 	case len(now) == 0:
@@ -289,6 +291,8 @@ func decision(c *plans.Case, r *plans.Result) string {
 			best = "the least possible present cost"
 		}
 		fmt.Fprintf(&b, " The solver stopped at its limit: this plan is within %s of %s, not proven optimal.", within, best)
+	} else if r.Status == plans.StatusFeasible {
+		b.WriteString(" The solver stopped at its limit before it had a bound: how far this plan is from the best is not known.")
 	}
 	return strings.TrimSpace(b.String())
 }
