@@ -260,9 +260,23 @@ func writeComparison(w io.Writer, c *plans.Case, cmp *scenario.Comparison, break
 	tw.Flush()
 	if cmp.Winner != "" {
 		fmt.Fprintf(w, "\n* best single catalog: %s\n", cmp.Winner)
+		if len(cmp.Tied) > 0 {
+			fmt.Fprintf(w, "  tied: %s reach the same NPV; %s comes first only in catalog order\n",
+				strings.Join(cmp.Tied, ", "), cmp.Winner)
+		}
 		if len(cmp.Contenders) > 0 {
-			fmt.Fprintf(w, "  not proven: the search stopped before ruling out that %s could do better (its bound is above the winner's NPV); a longer --time-limit may settle it\n",
+			fmt.Fprintf(w, "  not proven: the search stopped before ruling out that %s could do better (no bound yet, or one above the winner's NPV); a longer --time-limit may settle it\n",
 				strings.Join(cmp.Contenders, ", "))
+		}
+		var idle []string
+		for _, v := range cmp.Variants {
+			if v.Result != nil && v.Result.StoppedBeforeBetter() {
+				idle = append(idle, v.Name)
+			}
+		}
+		if len(idle) > 0 {
+			fmt.Fprintf(w, "  nothing bought by %s: the search stopped before it found a plan better than the existing network, which does not show that no upgrade pays; allow more time\n",
+				strings.Join(idle, ", "))
 		}
 	}
 
@@ -313,6 +327,8 @@ func writeComparison(w io.Writer, c *plans.Case, cmp *scenario.Comparison, break
 				continue
 			}
 			switch {
+			case v.BreakEvenDiscount != nil && *v.BreakEvenDiscount == 0:
+				notes = append(notes, fmt.Sprintf("%s matches %s at its list price (NPV %s).", v.Name, cmp.Winner, money(*v.BreakEvenNPV)))
 			case v.BreakEvenDiscount != nil:
 				notes = append(notes, fmt.Sprintf("%s would match %s at %s off its quote (NPV %s).", v.Name, cmp.Winner, percent(*v.BreakEvenDiscount), money(*v.BreakEvenNPV)))
 			case v.BreakEvenNote != "":

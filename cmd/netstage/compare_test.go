@@ -219,3 +219,40 @@ func TestCompareContendersText(t *testing.T) {
 		t.Errorf("no contenders, yet:\n%s", buf.String())
 	}
 }
+
+// TestCompareTiedText: catalogs tied with the winner are named, their
+// break-even note says they match at list price (not "0.0 % off"), and
+// variants whose search stopped at the do-nothing plan are named as such.
+func TestCompareTiedText(t *testing.T) {
+	c, _, err := plans.LoadDemo()
+	if err != nil {
+		t.Fatal(err)
+	}
+	npv, zero := 100.0, 0.0
+	stopped := &plans.Result{Status: plans.StatusFeasible, Objective: &npv}
+	var variants []scenario.Variant
+	for i, name := range []string{"a.toml", "b.toml"} {
+		v := scenario.Variant{Name: name, Catalog: i, Status: "feasible", Objective: &npv, Winner: i == 0, Result: stopped}
+		for y := 0; y < c.Horizon; y++ {
+			v.CapexByYear = append(v.CapexByYear, scenario.YearAmount{Year: c.Year(y)})
+		}
+		variants = append(variants, v)
+	}
+	variants[1].BreakEvenDiscount, variants[1].BreakEvenNPV = &zero, &npv
+	cmp := &scenario.Comparison{Case: c.Name, Currency: c.Currency, Winner: "a.toml", Tied: []string{"b.toml"}, Variants: variants}
+	var buf bytes.Buffer
+	writeComparison(&buf, c, cmp, true)
+	out := buf.String()
+	for _, want := range []string{
+		"tied: b.toml reach the same NPV; a.toml comes first only in catalog order",
+		"b.toml matches a.toml at its list price (NPV 100).",
+		"nothing bought by a.toml, b.toml: the search stopped before it found a plan better than the existing network",
+	} {
+		if !strings.Contains(out, want) {
+			t.Errorf("missing %q in:\n%s", want, out)
+		}
+	}
+	if strings.Contains(out, "off its quote") {
+		t.Errorf("a tie reads as a discount:\n%s", out)
+	}
+}

@@ -108,8 +108,9 @@ type Variant struct {
 	// Winner marks the best single catalog.
 	Winner bool `json:"winner"`
 	// BreakEvenDiscount is, for a losing catalog, the uniform discount on
-	// its quote at which it would match the winner (0.1 = 10 % off list);
-	// nil for the winner, for all, and when no discount makes it win.
+	// its quote at which it would match the winner (0.1 = 10 % off list; 0
+	// when tied with it); nil for the winner, for all, and when no discount
+	// makes it win.
 	BreakEvenDiscount *float64 `json:"break_even_discount"`
 	// BreakEvenNPV is the catalog's NPV at that discount.
 	BreakEvenNPV *float64 `json:"break_even_npv"`
@@ -153,10 +154,16 @@ type Comparison struct {
 	// Winner is the name of the best single catalog ("" when none has a plan).
 	Winner string `json:"winner"`
 	// Contenders are the other single catalogs whose proven bound is above
-	// the winner's NPV: their searches stopped (time limit, gap) before
-	// ruling out a plan better than the winner's, so the ranking is not
-	// proven against them. Empty when it is.
-	Contenders  []string     `json:"contenders"`
+	// the winner's NPV, or whose search stopped before it had a bound: the
+	// searches stopped (time limit, gap) before ruling out a plan better
+	// than the winner's, so the ranking is not proven against them. Empty
+	// when it is.
+	Contenders []string `json:"contenders"`
+	// Tied are the other single catalogs whose NPV equals the winner's
+	// (relative 1e-9): the winner is then only first in catalog order, and
+	// their break-even discount is 0. Searches that a time limit stopped
+	// before they found anything better than the do-nothing plan tie so.
+	Tied        []string     `json:"tied"`
 	Differences []Difference `json:"differences"`
 }
 
@@ -244,13 +251,24 @@ func Compare(ctx context.Context, c *plans.Case, opts CompareOptions) (*Comparis
 			return nil, err
 		}
 	}
-	cmp.Contenders = []string{}
+	cmp.Contenders, cmp.Tied = []string{}, []string{}
+	tied := make([]bool, n)
 	if win >= 0 {
 		cmp.Variants[win].Winner = true
 		cmp.Winner = cmp.Variants[win].Name
 		w := *cmp.Variants[win].Objective
+		tol := contenderTol * math.Max(1, math.Abs(w))
 		for i, v := range cmp.Variants[:n] {
-			if i != win && v.Bound != nil && *v.Bound > w+contenderTol*math.Max(1, math.Abs(w)) {
+			if i == win {
+				continue
+			}
+			if v.Objective != nil && *v.Objective >= w-tol {
+				tied[i] = true
+				cmp.Tied = append(cmp.Tied, v.Name)
+			}
+			// A search stopped before its first bound rules nothing out.
+			unknown := v.Bound == nil && (v.Status == string(plans.StatusFeasible) || v.Status == string(plans.StatusLimit))
+			if unknown || v.Bound != nil && *v.Bound > w+tol {
 				cmp.Contenders = append(cmp.Contenders, v.Name)
 			}
 		}
@@ -263,6 +281,12 @@ func Compare(ctx context.Context, c *plans.Case, opts CompareOptions) (*Comparis
 			}
 			if win < 0 {
 				v.BreakEvenNote = "no catalog alone has a plan"
+				return nil
+			}
+			if tied[i] {
+				// It matches the winner at list price already.
+				d := 0.0
+				v.BreakEvenDiscount, v.BreakEvenNPV = &d, v.Objective
 				return nil
 			}
 			var own []plans.PlanRow

@@ -641,9 +641,9 @@ func TestCompareContenders(t *testing.T) {
 	c.Budget.Yearly[0] = math.Inf(1)
 	for _, tc := range []struct {
 		name  string
-		above float64 // north's bound above south's NPV
+		above float64 // north's bound above south's NPV (NaN: no bound)
 		want  []string
-	}{{"bound above", 1, []string{"north.toml"}}, {"bound below", -1, []string{}}} {
+	}{{"bound above", 1, []string{"north.toml"}}, {"bound below", -1, []string{}}, {"no bound", math.NaN(), []string{"north.toml"}}} {
 		t.Run(tc.name, func(t *testing.T) {
 			south, err := fakeSolve(context.Background(), OnlyCatalog(c, 1))
 			if err != nil {
@@ -654,6 +654,9 @@ func TestCompareContenders(t *testing.T) {
 				if err == nil && vc.Catalogs[0].Name == "north.toml" && len(vc.Catalogs) == 1 {
 					b := *south.Objective + tc.above
 					res.Bound, res.Status = &b, plans.StatusFeasible
+					if math.IsNaN(tc.above) {
+						res.Bound, res.Gap = nil, nil // stopped before its first LP
+					}
 				}
 				return res, err
 			}
@@ -663,6 +666,50 @@ func TestCompareContenders(t *testing.T) {
 			}
 			if cmp.Winner != "south.toml" || strings.Join(cmp.Contenders, ",") != strings.Join(tc.want, ",") || cmp.Contenders == nil {
 				t.Errorf("winner %s, contenders %v; want south.toml and %v", cmp.Winner, cmp.Contenders, tc.want)
+			}
+		})
+	}
+}
+
+// TestCompareTied: a losing catalog with the winner's NPV (as when every
+// search stops at the do-nothing plan) is listed as tied, with a break-even
+// discount of 0 and no bisection; one just below is not tied.
+func TestCompareTied(t *testing.T) {
+	c := testCase()
+	c.Budget.Yearly[0] = math.Inf(1)
+	north, err := fakeSolve(context.Background(), OnlyCatalog(c, 0))
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, tc := range []struct {
+		name  string
+		below float64 // south's NPV below north's
+		tied  bool
+	}{{"tied", 0, true}, {"below", 1, false}} {
+		t.Run(tc.name, func(t *testing.T) {
+			solves := 0
+			solve := func(ctx context.Context, vc *plans.Case) (*plans.Result, error) {
+				solves++
+				res, err := fakeSolve(ctx, vc)
+				if err == nil && vc.Catalogs[0].Name == "south.toml" && len(vc.Catalogs) == 1 && res.Objective != nil {
+					v := *north.Objective - tc.below
+					res.Objective = &v
+				}
+				return res, err
+			}
+			cmp, err := Compare(context.Background(), c, CompareOptions{Solve: solve})
+			if err != nil {
+				t.Fatal(err)
+			}
+			south := cmp.Variants[1]
+			if cmp.Winner != "north.toml" || (len(cmp.Tied) == 1) != tc.tied || cmp.Tied == nil {
+				t.Fatalf("winner %s, tied %v; want north.toml, tied %v", cmp.Winner, cmp.Tied, tc.tied)
+			}
+			if tc.tied && (south.BreakEvenDiscount == nil || *south.BreakEvenDiscount != 0 || solves != 3) {
+				t.Errorf("tied: break-even %v after %d solves; want 0 after the 3 variants' solves", south.BreakEvenDiscount, solves)
+			}
+			if !tc.tied && solves == 3 {
+				t.Error("below: no break-even search")
 			}
 		})
 	}
