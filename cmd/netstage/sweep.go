@@ -328,7 +328,11 @@ func writeSweepText(w io.Writer, rep *scenario.Report) {
 		names[i] = f.Name
 	}
 	fmt.Fprintf(w, "Sweep: %s — %d scenarios (%s; %s)\n", rep.Case, len(rep.Scenarios), strings.Join(names, " × "), rep.Settings)
-	fmt.Fprintf(w, "Base: %s, NPV %s\n\n", rep.Base.Factors, optMoneyText(rep.Base.Objective))
+	baseNote := ""
+	if rep.Base.StoppedBeforeBetter() {
+		baseNote = " (the search stopped before it found a plan better than the existing network)"
+	}
+	fmt.Fprintf(w, "Base: %s, NPV %s%s\n\n", rep.Base.Factors, optMoneyText(rep.Base.Objective), baseNote)
 
 	tw := tabwriter.NewWriter(w, 0, 0, 2, ' ', 0)
 	head := []string{"#"}
@@ -336,6 +340,7 @@ func writeSweepText(w io.Writer, rep *scenario.Report) {
 	head = append(head, "status", "NPV", "capex", "base plan NPV", "regret", "plan")
 	fmt.Fprintln(tw, strings.Join(head, "\t"))
 	var cannotCarry, overBudget []string
+	stopped := 0
 	for _, r := range rep.Scenarios {
 		cells := []string{strconv.Itoa(r.Index)}
 		for _, s := range r.Factors {
@@ -363,6 +368,10 @@ func writeSweepText(w io.Writer, rep *scenario.Report) {
 			regret = "inconsistent " + money(*r.Regret)
 		}
 		plan := r.Plan.String()
+		if r.StoppedBeforeBetter() {
+			plan = "none found (stopped)"
+			stopped++
+		}
 		if !r.HasPlan() {
 			plan = "no plan"
 			if r.Error != "" {
@@ -381,6 +390,10 @@ func writeSweepText(w io.Writer, rep *scenario.Report) {
 	}
 	if len(overBudget) > 0 {
 		fmt.Fprintf(w, "The base plan breaks the budget (no regret reported) in: %s.\n", strings.Join(overBudget, "; "))
+	}
+	if stopped > 0 {
+		fmt.Fprintf(w, "None found (stopped), in %d of %d scenarios: the search stopped before it found a plan better than the existing network, which does not show that no upgrade pays; their NPV is the do-nothing NPV and their regret measures nothing. Allow more time (--time-limit).\n",
+			stopped, len(rep.Scenarios))
 	}
 
 	if len(rep.Tornado) > 0 {

@@ -1,12 +1,15 @@
 package main
 
 import (
+	"bytes"
 	"encoding/json"
 	"fmt"
 	"os"
 	"path/filepath"
 	"strings"
 	"testing"
+
+	"netstage/plans/scenario"
 )
 
 // TestSweepDemoGolden is a regression guard on the sweep outputs (tables
@@ -177,5 +180,34 @@ func TestSweepGridCap(t *testing.T) {
 	code, _, errOut := runCLI("sweep", missing, "--vary", "tariff=0.9,1.1", "--max-scenarios", "2")
 	if code != exitBadInput || !strings.Contains(errOut, "no-such-case") {
 		t.Errorf("grid at the cap: exit %d, stderr %q; want the missing case file reported", code, errOut)
+	}
+}
+
+// TestSweepTextStoppedBeforeBetter: scenarios whose search stopped before it
+// found a plan better than the existing network are not shown as "no
+// purchases" with a regret of 0 that reads as a robust plan: the plan
+// column and a note say the search stopped, and so does the base line.
+func TestSweepTextStoppedBeforeBetter(t *testing.T) {
+	npv, zero := 100.0, 0.0
+	rec := func(i int, status string, orders int) scenario.Record {
+		return scenario.Record{Index: i, Status: status, Objective: &npv, Plan: scenario.PlanSummary{Orders: orders, Units: orders, Links: orders},
+			Regret: &zero, RegretStatus: scenario.RegretOK}
+	}
+	rep := &scenario.Report{Case: "c", Base: rec(0, "feasible", 0),
+		Scenarios: []scenario.Record{rec(0, "feasible", 0), rec(1, "optimal", 0), rec(2, "feasible", 1)}}
+	var buf bytes.Buffer
+	writeSweepText(&buf, rep)
+	out := buf.String()
+	for _, want := range []string{
+		"NPV 100 (the search stopped before it found a plan better than the existing network)",
+		"none found (stopped)",
+		"None found (stopped), in 1 of 3 scenarios",
+	} {
+		if !strings.Contains(out, want) {
+			t.Errorf("output lacks %q:\n%s", want, out)
+		}
+	}
+	if strings.Count(out, "none found (stopped)") != 1 || !strings.Contains(out, "no purchases") {
+		t.Errorf("only scenario 0 stopped before a better plan; scenario 1 proved that nothing pays:\n%s", out)
 	}
 }

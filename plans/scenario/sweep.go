@@ -104,6 +104,14 @@ type Record struct {
 // HasPlan reports whether the scenario found a plan.
 func (r *Record) HasPlan() bool { return r.Objective != nil }
 
+// StoppedBeforeBetter reports a scenario whose search a limit stopped
+// before it found a plan better than the existing network (see
+// plans.Result.StoppedBeforeBetter): its plan buys nothing, which is no
+// finding that nothing pays, and its regret measures nothing.
+func (r *Record) StoppedBeforeBetter() bool {
+	return r.Status == string(plans.StatusFeasible) && r.HasPlan() && r.Plan.Orders == 0
+}
+
 // PlanSummary describes a plan in a few numbers.
 type PlanSummary struct {
 	Orders     int   `json:"orders"` // plan rows (item, link, order year)
