@@ -261,8 +261,12 @@ func writeComparison(w io.Writer, c *plans.Case, cmp *scenario.Comparison, break
 	if cmp.Winner != "" {
 		fmt.Fprintf(w, "\n* best single catalog: %s\n", cmp.Winner)
 		if len(cmp.Tied) > 0 {
-			fmt.Fprintf(w, "  tied: %s reach the same NPV; %s comes first only in catalog order\n",
-				strings.Join(cmp.Tied, ", "), cmp.Winner)
+			verb := "reach"
+			if len(cmp.Tied) == 1 {
+				verb = "reaches"
+			}
+			fmt.Fprintf(w, "  tied: %s %s the same NPV; %s comes first only in catalog order\n",
+				strings.Join(cmp.Tied, ", "), verb, cmp.Winner)
 		}
 		if len(cmp.Contenders) > 0 {
 			fmt.Fprintf(w, "  not proven: the search stopped before ruling out that %s could do better (no bound yet, or one above the winner's NPV); a longer --time-limit may settle it\n",

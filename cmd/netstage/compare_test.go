@@ -244,7 +244,7 @@ func TestCompareTiedText(t *testing.T) {
 	writeComparison(&buf, c, cmp, true)
 	out := buf.String()
 	for _, want := range []string{
-		"tied: b.toml reach the same NPV; a.toml comes first only in catalog order",
+		"tied: b.toml reaches the same NPV; a.toml comes first only in catalog order",
 		"b.toml matches a.toml at its list price (NPV 100).",
 		"nothing bought by a.toml, b.toml: the search stopped before it found a plan better than the existing network",
 	} {

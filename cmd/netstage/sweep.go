@@ -392,7 +392,7 @@ func writeSweepText(w io.Writer, rep *scenario.Report) {
 		fmt.Fprintf(w, "The base plan breaks the budget (no regret reported) in: %s.\n", strings.Join(overBudget, "; "))
 	}
 	if stopped > 0 {
-		fmt.Fprintf(w, "None found (stopped), in %d of %d scenarios: the search stopped before it found a plan better than the existing network, which does not show that no upgrade pays; their NPV is the do-nothing NPV and their regret measures nothing. Allow more time (--time-limit).\n",
+		fmt.Fprintf(w, "In %d of %d scenarios the search stopped before it found a plan better than the existing network (\"none found (stopped)\"), which does not show that no upgrade pays: their NPV is the do-nothing NPV and their regret measures nothing. Allow more time (--time-limit).\n",
 			stopped, len(rep.Scenarios))
 	}
 

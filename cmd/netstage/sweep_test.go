@@ -201,13 +201,13 @@ func TestSweepTextStoppedBeforeBetter(t *testing.T) {
 	for _, want := range []string{
 		"NPV 100 (the search stopped before it found a plan better than the existing network)",
 		"none found (stopped)",
-		"None found (stopped), in 1 of 3 scenarios",
+		"In 1 of 3 scenarios the search stopped before it found a plan better than the existing network",
 	} {
 		if !strings.Contains(out, want) {
 			t.Errorf("output lacks %q:\n%s", want, out)
 		}
 	}
-	if strings.Count(out, "none found (stopped)") != 1 || !strings.Contains(out, "no purchases") {
+	if strings.Count(out, "none found (stopped)\n") != 1 || !strings.Contains(out, "no purchases") {
 		t.Errorf("only scenario 0 stopped before a better plan; scenario 1 proved that nothing pays:\n%s", out)
 	}
 }
