@@ -17,6 +17,16 @@ var update = flag.Bool("update", false, "rewrite the golden files under testdata
 // goldenDir is the top-level testdata directory, seen from this package.
 const goldenDir = "../../testdata"
 
+// wantLines reports each of wants that out lacks.
+func wantLines(t *testing.T, out string, wants ...string) {
+	t.Helper()
+	for _, want := range wants {
+		if !strings.Contains(out, want) {
+			t.Errorf("output lacks %q:\n%s", want, out)
+		}
+	}
+}
+
 // checkGolden compares got with the golden file, or rewrites it with -update.
 func checkGolden(t *testing.T, name string, got []byte) {
 	t.Helper()
