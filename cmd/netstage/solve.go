@@ -7,6 +7,7 @@ import (
 	"context"
 	"fmt"
 	"io"
+	"math"
 	"os"
 	"sync"
 	"time"
@@ -205,10 +206,13 @@ func (p *progressPrinter) update(pr plans.Progress) {
 	if pr.HasIncumbent {
 		inc = fmt.Sprintf("%s %s", name, money(sign*pr.Objective))
 	}
-	gap := "-"
-	if pr.HasIncumbent {
+	bound, gap := money(sign*pr.Bound), "-"
+	if math.IsInf(pr.Bound, 0) || math.IsNaN(pr.Bound) {
+		// A large case spends its first minutes in the root LP.
+		bound = "not yet known (first LP running)"
+	} else if pr.HasIncumbent {
 		gap = fixed(100*pr.Gap, 3) + " %"
 	}
 	fmt.Fprintf(p.w, "  %7.1fs  %s  bound %s  gap %s  nodes %d\n",
-		pr.Elapsed.Seconds(), inc, money(sign*pr.Bound), gap, pr.Nodes)
+		pr.Elapsed.Seconds(), inc, bound, gap, pr.Nodes)
 }

@@ -543,6 +543,18 @@ func TestSolveProgress(t *testing.T) {
 	}
 }
 
+// TestProgressWithoutBound: before the first LP is solved (minutes on a
+// large case) the progress line says the bound is not yet known instead of
+// an "unlimited" bound and a "+Inf %" gap.
+func TestProgressWithoutBound(t *testing.T) {
+	var buf bytes.Buffer
+	pp := &progressPrinter{w: &buf}
+	pp.update(plans.Progress{Objective: 100, Bound: math.Inf(1), Gap: math.Inf(1), HasIncumbent: true, Nodes: 1, Elapsed: time.Second})
+	if got := buf.String(); !strings.Contains(got, "NPV 100  bound not yet known (first LP running)  gap -  nodes 1") {
+		t.Errorf("progress without a bound: %q", got)
+	}
+}
+
 // TestSolveStoppedEarly cancels a solve (as Ctrl-C does) and checks that
 // the outcome and the exit code agree with DESIGN.md §4: a plan (optimal,
 // or feasible with its bound and gap) exits 0; no plan (limit) exits 1.
