@@ -96,6 +96,7 @@ func (s *search) run(starts [][]float64) Result {
 	case lp.Unbounded:
 		return s.unboundedOrInfeasible()
 	default:
+		s.nodes = 0 // the root LP did not finish: no node LP was solved
 		if s.limitReached() || r.Status == lp.TimeLimit || r.Status == lp.Cancelled {
 			if r.Status == lp.TimeLimit {
 				s.stopped = TimeLimit

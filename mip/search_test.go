@@ -103,6 +103,23 @@ func TestCancelReturnsBest(t *testing.T) {
 	checkIncumbent(t, m, r)
 }
 
+// TestStoppedBeforeRootLP: a search stopped before its root LP finished
+// (cancelled here, a time limit on a large model) returns its start with
+// no bound and counts no node: Nodes counts node LPs solved, and a
+// planner reading "1 node" would take the root as done.
+func TestStoppedBeforeRootLP(t *testing.T) {
+	m := hardKnapsack(80, 10, 9)
+	ctx, cancel := context.WithCancel(context.Background())
+	cancel()
+	r, err := Solve(ctx, m, Settings{Start: make([]float64, m.NumCols())})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if r.Status != Feasible || r.Stopped != Cancelled || r.Nodes != 0 || !math.IsInf(r.Bound, 0) {
+		t.Errorf("status %v, stopped %v, %d nodes, bound %v; want feasible, cancelled, 0 nodes and no bound", r.Status, r.Stopped, r.Nodes, r.Bound)
+	}
+}
+
 func TestProgressReports(t *testing.T) {
 	m := readSample(t, "p0033")
 	var last Progress
