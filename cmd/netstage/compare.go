@@ -279,8 +279,7 @@ func writeComparison(w io.Writer, c *plans.Case, cmp *scenario.Comparison, break
 			}
 		}
 		if len(idle) > 0 {
-			fmt.Fprintf(w, "  nothing bought by %s: the search stopped before it found a plan better than the existing network, which does not show that no upgrade pays; allow more time\n",
-				strings.Join(idle, ", "))
+			fmt.Fprintf(w, "  nothing bought by %s: %s; allow more time\n", strings.Join(idle, ", "), stoppedBeforeBetterText)
 		}
 	}
 

@@ -420,7 +420,7 @@ func TestWriteTextStoppedBeforeBetter(t *testing.T) {
 	}
 	out := buf.String()
 	wantLines(t, out,
-		"nothing bought: the search stopped before it found a plan better than the existing",
+		"nothing bought: the search stopped before it found a plan better than the existing network, which does not show that no upgrade pays; allow more time",
 		"bound                none: the search stopped before its first LP was solved",
 		"IRR (incremental)    n/a (nothing bought)",
 		"payback year         n/a (nothing bought)")

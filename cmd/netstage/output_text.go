@@ -228,11 +228,14 @@ func writeInfeasibility(w io.Writer, r *plans.Result) {
 	tw.Flush()
 }
 
+// stoppedBeforeBetterText says why a stopped search's plan buys nothing
+// (plans.Result.StoppedBeforeBetter), in solve, compare and sweep alike.
+const stoppedBeforeBetterText = "the search stopped before it found a plan better than the existing network, which does not show that no upgrade pays"
+
 func writePlanTable(w io.Writer, r *plans.Result) {
 	fmt.Fprintln(w, "\nStaged plan by order year")
 	if r.StoppedBeforeBetter() {
-		fmt.Fprintln(w, "  nothing bought: the search stopped before it found a plan better than the existing")
-		fmt.Fprintln(w, "  network, which does not show that no upgrade pays; allow more time (--time-limit)")
+		fmt.Fprintf(w, "  nothing bought: %s; allow more time (--time-limit)\n", stoppedBeforeBetterText)
 		return
 	}
 	if len(r.Plan) == 0 {

@@ -392,8 +392,8 @@ func writeSweepText(w io.Writer, rep *scenario.Report) {
 		fmt.Fprintf(w, "The base plan breaks the budget (no regret reported) in: %s.\n", strings.Join(overBudget, "; "))
 	}
 	if stopped > 0 {
-		fmt.Fprintf(w, "In %d of %d scenarios the search stopped before it found a plan better than the existing network (\"none found (stopped)\"), which does not show that no upgrade pays: their NPV is the do-nothing NPV and their regret measures nothing. Allow more time (--time-limit).\n",
-			stopped, len(rep.Scenarios))
+		fmt.Fprintf(w, "In %d of %d scenarios (\"none found (stopped)\") %s: their NPV is the do-nothing NPV and their regret measures nothing. Allow more time (--time-limit).\n",
+			stopped, len(rep.Scenarios), stoppedBeforeBetterText)
 	}
 
 	if len(rep.Tornado) > 0 {

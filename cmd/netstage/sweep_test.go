@@ -201,7 +201,7 @@ func TestSweepTextStoppedBeforeBetter(t *testing.T) {
 	wantLines(t, out,
 		"NPV 100 (the search stopped before it found a plan better than the existing network)",
 		"none found (stopped)",
-		"In 1 of 3 scenarios the search stopped before it found a plan better than the existing network")
+		"In 1 of 3 scenarios (\"none found (stopped)\") the search stopped before it found a plan better than the existing network")
 	if strings.Count(out, "none found (stopped)\n") != 1 || !strings.Contains(out, "no purchases") {
 		t.Errorf("only scenario 0 stopped before a better plan; scenario 1 proved that nothing pays:\n%s", out)
 	}
