@@ -229,8 +229,12 @@ func writeInfeasibility(w io.Writer, r *plans.Result) {
 }
 
 // stoppedBeforeBetterText says why a stopped search's plan buys nothing
-// (plans.Result.StoppedBeforeBetter), in solve, compare and sweep alike.
-const stoppedBeforeBetterText = "the search stopped before it found a plan better than the existing network, which does not show that no upgrade pays"
+// (plans.Result.StoppedBeforeBetter), in solve, compare and sweep alike;
+// searchStoppedText is its first half, for a short note.
+const (
+	searchStoppedText       = "the search stopped before it found a plan better than the existing network"
+	stoppedBeforeBetterText = searchStoppedText + ", which does not show that no upgrade pays"
+)
 
 func writePlanTable(w io.Writer, r *plans.Result) {
 	fmt.Fprintln(w, "\nStaged plan by order year")

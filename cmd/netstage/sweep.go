@@ -330,7 +330,7 @@ func writeSweepText(w io.Writer, rep *scenario.Report) {
 	fmt.Fprintf(w, "Sweep: %s — %d scenarios (%s; %s)\n", rep.Case, len(rep.Scenarios), strings.Join(names, " × "), rep.Settings)
 	baseNote := ""
 	if rep.Base.StoppedBeforeBetter() {
-		baseNote = " (the search stopped before it found a plan better than the existing network)"
+		baseNote = " (" + searchStoppedText + ")"
 	}
 	fmt.Fprintf(w, "Base: %s, NPV %s%s\n\n", rep.Base.Factors, optMoneyText(rep.Base.Objective), baseNote)
 

@@ -254,26 +254,26 @@ func decision(c *plans.Case, r *plans.Result) string {
 				moneyCur(math.Abs(*r.IncrementalNPV), cur), moreOrLess(*r.IncrementalNPV))
 		}
 		b.WriteString(". ")
-		var parts []string
-		if len(r.Plan) == 0 {
-			// Without purchases the incremental flows are rounding noise:
-			// an IRR or payback of them means nothing.
-		} else if r.IRR != nil {
-			parts = append(parts, "an IRR of "+percent(*r.IRR))
-		}
-		if len(r.Plan) == 0 {
-		} else if r.PaybackInFirstYear() {
-			parts = append(parts, "a cumulative cash flow never below that of doing nothing")
-		} else if r.PaybackYear != nil {
-			parts = append(parts, "payback in "+strconv.Itoa(*r.PaybackYear))
-		} else if len(r.Plan) > 0 {
-			parts = append(parts, "no payback within the horizon")
-		}
-		if len(parts) > 0 {
+		// Without purchases the incremental flows are rounding noise: an
+		// IRR or payback of them means nothing, and there are no upgrades
+		// to speak of.
+		if len(r.Plan) > 0 {
+			var parts []string
+			if r.IRR != nil {
+				parts = append(parts, "an IRR of "+percent(*r.IRR))
+			}
+			switch {
+			case r.PaybackInFirstYear():
+				parts = append(parts, "a cumulative cash flow never below that of doing nothing")
+			case r.PaybackYear != nil:
+				parts = append(parts, "payback in "+strconv.Itoa(*r.PaybackYear))
+			default:
+				parts = append(parts, "no payback within the horizon")
+			}
 			b.WriteString("The upgrades have " + joinAnd(parts) + ". ")
-		}
-		if gain := revenueGain(r); gain >= zeroMoney && len(r.Plan) > 0 {
-			fmt.Fprintf(&b, "They let the network carry more paying traffic: %s more revenue over the horizon than doing nothing. ", moneyCur(gain, cur))
+			if gain := revenueGain(r); gain >= zeroMoney {
+				fmt.Fprintf(&b, "They let the network carry more paying traffic: %s more revenue over the horizon than doing nothing. ", moneyCur(gain, cur))
+			}
 		}
 	}
 	if len(r.Plan) > 0 {
