@@ -16,13 +16,16 @@ import (
 // the set bookkeeping and the rounding. Separation must find rows on
 // these cases, or the test proves nothing.
 func TestSeparatedCutSetsValid(t *testing.T) {
-	found, subsets := 0, 0
+	found, subsets, flows := 0, 0, 0
 	eachRelaxed(t, []synthCase{{7, 3, 1}, {8, 3, 2}, {9, 4, 3}, {8, 4, 4}}, func(t *testing.T, c *Case, m *Model, relax lp.Result) {
 		rows := m.separateCutSets(relax.X)
 		found += len(rows)
 		for _, row := range rows {
-			if strings.HasPrefix(row.Name, "sub") {
+			if strings.HasPrefix(row.Name, "sub") || strings.HasPrefix(row.Name, "flowsub") {
 				subsets++
+			}
+			if strings.HasPrefix(row.Name, "flow") {
+				flows++
 			}
 		}
 		res, err := Solve(context.Background(), c, SolveOptions{Gap: 1e-9})
@@ -54,8 +57,8 @@ func TestSeparatedCutSetsValid(t *testing.T) {
 			t.Errorf("NPV %.2f with separation, %.2f without", *res.Objective, *plain.Objective)
 		}
 	})
-	if found == 0 || subsets == 0 {
-		t.Fatalf("separation found %d violated rows, %d on demand subsets, on these cases: want some of each", found, subsets)
+	if found == 0 || subsets == 0 || flows == 0 {
+		t.Fatalf("separation found %d violated rows, %d on demand subsets and %d with flow terms, on these cases: want some of each", found, subsets, flows)
 	}
-	t.Logf("%d separated rows checked, %d of them on demand subsets", found, subsets)
+	t.Logf("%d separated rows checked, %d of them on demand subsets, %d with flow terms", found, subsets, flows)
 }
