@@ -244,8 +244,8 @@ func (m *Model) crossing(in []bool, t int) crossing {
 // columns take the coefficient of s) bites where the cut's spare capacity
 // sits on links whose traffic cannot use it, which the capacity-only row
 // counts in full (the flow cut-set inequalities of Raack et al. 2011,
-// cited at addCutSets). A variant is made only when some links keep their capacity
-// term and some stand in.
+// cited at addCutSets). A variant is made only when some links keep their
+// capacity term and some stand in.
 func (m *Model) flowCrossings(cs *crossing, in []bool, t int, x []float64) []crossing {
 	c := m.Case
 	if len(cs.links) < 2 || len(cs.cols) == 0 {

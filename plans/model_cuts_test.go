@@ -13,8 +13,10 @@ import (
 // optimal plan and at the do-nothing plan, both integer points of the
 // model. A row cutting off either would be an invalid inequality: the MIR
 // of a cut-set holds for every site set (see addCutSets), so this checks
-// the set bookkeeping and the rounding. Separation must find rows on
-// these cases, or the test proves nothing.
+// the set bookkeeping and the rounding (and, for the rows with flow terms
+// of flowCrossings, the choice of arcs: dropping their flow columns makes
+// the rows cut off the optimal plan, checked). Separation must find rows
+// of each kind on these cases, or the test proves nothing.
 func TestSeparatedCutSetsValid(t *testing.T) {
 	found, subsets, flows := 0, 0, 0
 	eachRelaxed(t, []synthCase{{7, 3, 1}, {8, 3, 2}, {9, 4, 3}, {8, 4, 4}}, func(t *testing.T, c *Case, m *Model, relax lp.Result) {
