@@ -31,7 +31,8 @@ const benchGap = 1e-4
 // 2.68 and 2.72 % (two runs, alone on the machine): its root cut rounds
 // are not done by then, and when they are, their bound is only 0.07 %
 // lower (8,497,724 against 8,503,292). M reached 0.078 % after 3,025 s
-// (193,464 nodes) against 0.074 % after 3,000 s before them.
+// (193,464 nodes; other runs shared the machine for its first 15
+// minutes) against 0.074 % after 3,000 s before them.
 func BenchmarkSolve(b *testing.B) {
 	benchSolve(b, SyntheticSizes, SolveOptions{Gap: benchGap, TimeLimit: benchTimeLimit})
 }
