@@ -413,16 +413,19 @@ const (
 // measured on a busier machine; 48 and 106 ms with the flow rows, measured
 // with a long solve beside it (28 and 67 ms without them in that state).
 //
-// What the flow rows buy, measured on 2026-12-04 with a long solve beside
-// (both builds alike): the 16 synthetic 10-site 7-year cases (seeds 1–16)
-// prove optimality with 4,683 nodes in all against 8,549 (108.7 s against
-// 125.6 s); the root bound after the cut rounds falls on every case tried
+// What the flow rows buy, measured on 2026-12-04: the 16 synthetic
+// 10-site 7-year cases (seeds 1–16) prove optimality with 4,683 nodes in
+// all against 8,549, in 54.8 s against 64.6 s (alone on the machine); the
+// rest was measured with a long solve beside (both builds alike). The
+// root bound after the cut rounds falls on every case tried
 // (10 sites, 7 years, seeds 1–3: 1,725,268 → 1,723,726, 1,609,554 →
 // 1,604,748 and 1,332,267 → 1,330,856, optima 1,715,132, 1,598,939 and
 // 1,328,801; 10 sites, 10 years: 2,160,397 → 2,158,778; 15 sites, 10
 // years: 2,743,266 → 2,740,342; M: 3,051,998 → 3,051,780; L: 8,503,292 →
 // 8,497,724). M's search does the same work per node (BenchmarkSolveNodes:
-// 300 nodes in 30.6 s against 31.6 s).
+// 300 nodes in 30.6 s against 31.6 s). The embedded demo got worse: 134
+// nodes against 70, on another path that stops, within the default gap,
+// at a plan 75 of NPV below the one it stopped at before.
 func (m *Model) separateCutSets(x []float64) []lp.Row {
 	c := m.Case
 	n := len(c.Sites)
