@@ -230,7 +230,8 @@ func (m *Model) crossing(in []bool, t int) crossing {
 
 // flowCrossings returns variants of the crossing cs of the site set marked
 // in in, year t, in which the links across with spare capacity at the LP
-// point x stand in by their flow instead of their capacity: one variant
+// point (linkCap and arcFlow, see loadsAt) stand in by their flow instead
+// of their capacity: one variant
 // for the arcs that leave the set and one for those that enter it. The
 // traffic of the demands across must leave the set over its links (the
 // flow of each source inside, summed over the arcs out, is at least what
@@ -246,14 +247,10 @@ func (m *Model) crossing(in []bool, t int) crossing {
 // counts in full (the flow cut-set inequalities of Raack et al. 2011,
 // cited at addCutSets). A variant is made only when some links keep their
 // capacity term and some stand in.
-func (m *Model) flowCrossings(cs *crossing, in []bool, t int, x []float64) []crossing {
+func (m *Model) flowCrossings(cs *crossing, in []bool, t int, linkCap, arcFlow []float64) []crossing {
 	c := m.Case
 	if len(cs.links) < 2 || len(cs.cols) == 0 {
 		return nil
-	}
-	capacity := slices.Clone(cs.linkBase)
-	for k, j := range cs.cols {
-		capacity[cs.colLink[k]] += cs.coefs[k] * x[j]
 	}
 	var out []crossing
 	for _, leaving := range []bool{true, false} {
@@ -266,13 +263,7 @@ func (m *Model) flowCrossings(cs *crossing, in []bool, t int, x []float64) []cro
 				a++
 			}
 			arcs[i] = a
-			flow := 0.0
-			for si := range m.sources {
-				if j := m.flow[si][a][t]; j >= 0 {
-					flow += x[j]
-				}
-			}
-			if flow < capacity[i]-cutFracTol*(1+capacity[i]) {
+			if arcFlow[a] < linkCap[l]-cutFracTol*(1+linkCap[l]) {
 				stand[i] = true
 				nStand++
 			}
@@ -305,6 +296,31 @@ func (m *Model) flowCrossings(cs *crossing, in []bool, t int, x []float64) []cro
 		out = append(out, v)
 	}
 	return out
+}
+
+// loadsAt sets linkCap[l] to link l's capacity times its ceiling and
+// arcFlow[a] to the flow on arc a (all sources), in year t at the LP point
+// x.
+func (m *Model) loadsAt(x []float64, t int, linkCap, arcFlow []float64) {
+	c := m.Case
+	for li, l := range c.Links {
+		linkCap[li] = l.Ceiling * l.BaseCapacity[t]
+	}
+	for oi := range m.options {
+		o := &m.options[oi]
+		if j := o.unitsInService(t); j >= 0 {
+			l := &c.Links[o.link]
+			linkCap[o.link] += l.Ceiling * c.Items[o.item].Gbps * x[j]
+		}
+	}
+	for a := range arcFlow {
+		arcFlow[a] = 0
+		for si := range m.sources {
+			if j := m.flow[si][a][t]; j >= 0 {
+				arcFlow[a] += x[j]
+			}
+		}
+	}
 }
 
 // mirRows returns the MIR cuts of Σ cs.coefs·y + s + Σ x[cs.gs] ≥ r for
@@ -410,8 +426,8 @@ const (
 // set grows, and a row is built only when x violates it.
 // BenchmarkSeparateCutSets: 8 ms on the synthetic M case, 23 ms on L (50
 // sites, 10 years), before the subset rows; 20 and 64 ms with them,
-// measured on a busier machine; 48 and 106 ms with the flow rows, measured
-// with a long solve beside it (28 and 67 ms without them in that state).
+// measured on a busier machine; 30 and 83 ms with the flow rows, alone on
+// the machine (with a long solve beside it, 28 and 67 ms without them).
 //
 // What the flow rows buy, measured on 2026-12-04: the 16 synthetic
 // 10-site 7-year cases (seeds 1–16) prove optimality with 4,683 nodes in
@@ -447,6 +463,7 @@ func (m *Model) separateCutSets(x []float64) []lp.Row {
 	spare0 := make([]float64, n)
 	memberBuf := make([]int, 0, n)
 	linkCap := make([]float64, len(c.Links))
+	arcFlow := make([]float64, 2*len(c.Links))
 	pair := make([][]float64, n) // served traffic between two sites at x
 	for u := range pair {
 		pair[u] = make([]float64, n)
@@ -454,16 +471,7 @@ func (m *Model) separateCutSets(x []float64) []lp.Row {
 	mask := make([]byte, (n+7)/8) // the set as a bit mask
 	for t := 0; t < c.Horizon; t++ {
 		clear(seen)
-		for li, l := range c.Links {
-			linkCap[li] = l.Ceiling * l.BaseCapacity[t]
-		}
-		for oi := range m.options {
-			o := &m.options[oi]
-			if j := o.unitsInService(t); j >= 0 {
-				l := &c.Links[o.link]
-				linkCap[o.link] += l.Ceiling * c.Items[o.item].Gbps * x[j]
-			}
-		}
+		m.loadsAt(x, t, linkCap, arcFlow)
 		for u := range pair {
 			clear(pair[u])
 		}
@@ -515,7 +523,7 @@ func (m *Model) separateCutSets(x []float64) []lp.Row {
 				if len(members) >= 3 { // singles and pairs are static rows already
 					rows = append(rows, m.crossingRows("sep", &cs, x)...)
 				}
-				for _, fc := range m.flowCrossings(&cs, in, t, x) {
+				for _, fc := range m.flowCrossings(&cs, in, t, linkCap, arcFlow) {
 					rows = append(rows, m.crossingRows("flow", &fc, x)...)
 					rows = append(rows, m.subsetCutSetRows("flowsub", &fc, t, x)...)
 				}

@@ -78,6 +78,7 @@ func TestFlowCrossingsHoldAtLPPoints(t *testing.T) {
 		x := relax.X
 		n := len(c.Sites)
 		in := make([]bool, n)
+		linkCap, arcFlow := make([]float64, len(c.Links)), make([]float64, 2*len(c.Links))
 		sum := func(cols []int) float64 {
 			s := 0.0
 			for _, j := range cols {
@@ -99,8 +100,9 @@ func TestFlowCrossingsHoldAtLPPoints(t *testing.T) {
 				in[v] = mask&(1<<v) != 0
 			}
 			for yr := 0; yr < c.Horizon; yr++ {
+				m.loadsAt(x, yr, linkCap, arcFlow)
 				cs := m.crossing(in, yr)
-				for _, fc := range m.flowCrossings(&cs, in, yr, x) {
+				for _, fc := range m.flowCrossings(&cs, in, yr, linkCap, arcFlow) {
 					variants++
 					fs, cms := slacks(&fc)
 					if fs < -1e-6*(1+fc.forecast) || cms < -1e-6*(1+fc.committed) {
