@@ -15,7 +15,9 @@ import (
 // limit), keeping the NPV stage's routing.
 func (m *Model) decode(ctx context.Context, res *Result, xi []float64, base *baselineSolution, tieBreakBy time.Time) error {
 	c := m.Case
-	lr := m.lexFromBaseline(xi, base)
+	// The plan is xi's decisions, which the LPs below keep fixed.
+	ps := m.purchases(xi)
+	lr := m.lexFromBaseline(ps, base)
 	if lr == nil {
 		var err error
 		if lr, err = solveLex(ctx, m.fixIntegers(xi), tieBreakBy, m.kmObjective()); err != nil {
@@ -30,7 +32,6 @@ func (m *Model) decode(ctx context.Context, res *Result, xi []float64, base *bas
 	}
 	x := lr.x
 	res.x = x
-	ps := m.purchases(x)
 	served := m.servedValues(x)
 
 	res.Plan = m.planRows(ps)
@@ -73,9 +74,9 @@ func (m *Model) decode(ctx context.Context, res *Result, xi []float64, base *bas
 	return nil
 }
 
-// lexFromBaseline answers the decode LPs for a point xi that buys nothing,
-// when the baseline carried every committed Gbps (nil otherwise). The LP
-// with xi's decisions fixed is then the baseline LP less its shortfall
+// lexFromBaseline answers the decode LPs for a point whose purchases ps
+// are none, when the baseline carried every committed Gbps (nil
+// otherwise). The LP with that point's decisions fixed is then the baseline LP less its shortfall
 // columns, which are zero at the baseline's optimum: the baseline's point
 // and first-stage duals are optimal for it, and its last stage already
 // chose the fewest Gbps·km at that NPV (the shortfall stage in between
@@ -84,8 +85,8 @@ func (m *Model) decode(ctx context.Context, res *Result, xi []float64, base *bas
 // without two LPs from scratch, which on a 100-site case took 35 s, more
 // than the reserve the search leaves for decoding. Only the capacity rows'
 // duals are filled in: they are all that decoding reads.
-func (m *Model) lexFromBaseline(xi []float64, base *baselineSolution) *lexResult {
-	if base == nil || len(base.shortfall) > 0 || base.dual == nil || len(m.purchases(xi)) > 0 {
+func (m *Model) lexFromBaseline(ps []purchase, base *baselineSolution) *lexResult {
+	if base == nil || len(base.shortfall) > 0 || base.dual == nil || len(ps) > 0 {
 		return nil
 	}
 	x := m.startFromBaseline(base)
@@ -257,9 +258,10 @@ func (m *Model) demandRows(x []float64, served [][]float64, cash []CashflowRow) 
 func (m *Model) linkRoom(x []float64, cash []CashflowRow) [][]bool {
 	c := m.Case
 	load := arcLoads(m, x)
-	capy := m.capacityAfter(m.purchases(x))
+	ps := m.purchases(x)
+	capy := m.capacityAfter(ps)
 	built := make([]bool, len(c.Links))
-	for _, p := range m.purchases(x) {
+	for _, p := range ps {
 		if p.item < 0 {
 			built[p.link] = true
 		}

@@ -36,7 +36,7 @@ func TestDecodeFromBaseline(t *testing.T) {
 			t.Fatalf("seed %d: test input: the baseline falls short of committed traffic", seed)
 		}
 		xi := m.startFromBaseline(base)
-		got := m.lexFromBaseline(xi, base)
+		got := m.lexFromBaseline(m.purchases(xi), base)
 		if got == nil {
 			t.Fatalf("seed %d: no answer from the baseline for a plan that buys nothing", seed)
 		}
@@ -92,13 +92,13 @@ func TestDecodeFromBaseline(t *testing.T) {
 	}
 	xi := m.startFromBaseline(base)
 	xi[m.options[0].col[0]] = 1
-	if m.lexFromBaseline(xi, base) != nil {
+	if m.lexFromBaseline(m.purchases(xi), base) != nil {
 		t.Error("an answer from the baseline for a plan that buys a unit")
 	}
 	xi[m.options[0].col[0]] = 0
 	short := *base
 	short.shortfall = []ShortfallRow{{}}
-	if m.lexFromBaseline(xi, &short) != nil {
+	if m.lexFromBaseline(m.purchases(xi), &short) != nil {
 		t.Error("an answer from the baseline when it falls short of committed traffic")
 	}
 }
