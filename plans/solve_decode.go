@@ -76,15 +76,16 @@ func (m *Model) decode(ctx context.Context, res *Result, xi []float64, base *bas
 
 // lexFromBaseline answers the decode LPs for a point whose purchases ps
 // are none, when the baseline carried every committed Gbps (nil
-// otherwise). The LP with that point's decisions fixed is then the baseline LP less its shortfall
-// columns, which are zero at the baseline's optimum: the baseline's point
-// and first-stage duals are optimal for it, and its last stage already
-// chose the fewest Gbps·km at that NPV (the shortfall stage in between
-// held it at zero). So the do-nothing plan — the answer of a large case
-// whose time limit stops the search before it finds better — is decoded
-// without two LPs from scratch, which on a 100-site case took 35 s, more
-// than the reserve the search leaves for decoding. Only the capacity rows'
-// duals are filled in: they are all that decoding reads.
+// otherwise). The LP with that point's decisions fixed is then the
+// baseline LP less its shortfall columns, which are zero at the
+// baseline's optimum: the baseline's point and first-stage duals are
+// optimal for it, and its last stage already chose the fewest Gbps·km at
+// that NPV (the shortfall stage in between held it at zero). So the
+// do-nothing plan — the answer of a large case whose time limit stops the
+// search before it finds better — is decoded without two LPs from
+// scratch, which on a 100-site case took 35 s, more than the reserve the
+// search leaves for decoding. Only the capacity rows' duals are filled
+// in: they are all that decoding reads.
 func (m *Model) lexFromBaseline(ps []purchase, base *baselineSolution) *lexResult {
 	if base == nil || len(base.shortfall) > 0 || base.dual == nil || len(ps) > 0 {
 		return nil
