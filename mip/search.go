@@ -451,16 +451,24 @@ func (s *search) complete(y []float64) ([]float64, *lp.Basis, bool) {
 
 // callHeuristic asks the caller's Heuristic for candidates, takes the
 // answer of the helper goroutine started at the last call point (waiting
-// for it), and starts a new one when there is work for it: Improve, when
-// the incumbent changed since Improve last saw it, then the sub-MIP of the
-// incumbent and x (rins.go), when prepareRINS offers one.
+// for it, unless the search has a time limit: then only if it is ready),
+// and starts a new one when none runs and there is work for it: Improve,
+// when the incumbent changed since Improve last saw it, then the sub-MIP
+// of the incumbent and x (rins.go), when prepareRINS offers one.
 func (s *search) callHeuristic(x []float64) {
 	if s.set.Heuristic != nil {
 		for _, c := range s.set.Heuristic(append([]float64(nil), x...)) {
 			s.tryCandidate(c)
 		}
 	}
-	s.joinHelper(false)
+	if s.deadline.IsZero() {
+		s.joinHelper(false)
+	} else if s.pollHelper(); s.helper != nil {
+		// With a time limit, where the search stops depends on timing
+		// already: it does not wait for a helper still at work (the
+		// caller's Improve may use the time left), and starts no other.
+		return
+	}
 	if s.incX == nil || s.pastTime() {
 		return
 	}
@@ -516,7 +524,9 @@ type helperAnswer struct {
 // joinHelper waits for the helper goroutine (Improve, then the sub-MIP),
 // if one runs, and tries its answers. With stop its context is cancelled
 // first (the search is ending at a time limit or by cancellation), and so
-// it is when the time limit passes while the search waits.
+// it is when the search has a time limit (it is called then only at the
+// search's end: a helper may use all the time left, see callHeuristic) or
+// when the time limit passes while the search waits.
 //
 // The helper runs beside the search between two call points (on large
 // models the root cut rounds, on others a stretch of nodes), but without a
@@ -527,7 +537,7 @@ func (s *search) joinHelper(stop bool) {
 	if s.helper == nil {
 		return
 	}
-	if stop {
+	if stop || !s.deadline.IsZero() {
 		s.stopHelper()
 	}
 	var limit <-chan time.Time

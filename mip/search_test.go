@@ -931,3 +931,33 @@ func TestSeparateInTree(t *testing.T) {
 		t.Errorf("with the row: %d rows entered at nodes, %d nodes; want 1, fewer than %d", s.sepCuts, r.Nodes, plain.Nodes)
 	}
 }
+
+// TestImproveNoWaitUnderTimeLimit: with a time limit the search does not
+// wait for an Improve still at work, neither at a call point nor at its
+// end. Improve here runs until its context ends; the search must still
+// prove the knapsack optimal (the proof needs nodes past the next call
+// point) and end, stopping Improve, long before its 20 s limit (it takes
+// milliseconds; waiting at either place would take the whole limit).
+// Without a time limit the search waits, so that its path does not
+// depend on timing (TestImproveTimingIndependent).
+func TestImproveNoWaitUnderTimeLimit(t *testing.T) {
+	m := hardKnapsack(40, 5, 3)
+	m.Columns()
+	calls := 0
+	set := Settings{RelGap: 1e-9, TimeLimit: 20 * time.Second, HeuristicFreq: 1}
+	set.Improve = func(ctx context.Context, _ []float64, _ *lp.Basis) []float64 {
+		calls++
+		<-ctx.Done()
+		return nil
+	}
+	start := time.Now()
+	r, err := Solve(context.Background(), m, set)
+	if err != nil {
+		t.Fatal(err)
+	}
+	checkIncumbent(t, m, r)
+	if took := time.Since(start); r.Status != Optimal || r.Nodes < 10 || calls != 1 || took > set.TimeLimit/2 {
+		t.Errorf("status %v after %d nodes and %v, Improve called %d times; want optimal, more than a few nodes, one call that never ended on its own, and far less than the limit",
+			r.Status, r.Nodes, took, calls)
+	}
+}

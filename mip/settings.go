@@ -163,16 +163,19 @@ type Settings struct {
 	// beside the search, and its answer is taken at the next call point
 	// (the search waits for it there) or when the search ends: the path
 	// does not depend on how long it takes. With a time limit (where the
-	// search stops depends on timing already), an answer ready between
-	// two root cut rounds is taken there too: on large models the rounds
-	// may outlast it by most of the limit. The answer is checked like a
-	// Heuristic candidate; when it becomes the incumbent, Improve gets it
-	// again at once (a caller that stopped short can go on; one that
-	// finished should answer nil at once). One Improve runs at a time, but
+	// search stops depends on timing already), the search does not wait:
+	// it takes the answer at the first call point, or between two root
+	// cut rounds, after it is ready (on large models the rounds may
+	// outlast it by most of the limit), and until then starts no other
+	// Improve or sub-MIP; an Improve may then use the time left, and its
+	// context is cancelled when the search ends. The answer is checked
+	// like a Heuristic candidate; when it becomes the incumbent, Improve
+	// gets it again at once (a caller that stopped short can go on; one
+	// that finished should answer nil at once). One Improve runs at a time, but
 	// beside the other callbacks (Heuristic, Separate, Progress): state it
 	// shares with them must be safe for that. ctx is cancelled when the
-	// search stops at its time limit or is cancelled; an answer found by
-	// then is still taken.
+	// search stops at its time limit or is cancelled (or, with a time
+	// limit, ends); an answer found by then is still taken.
 	// basis, when not nil, is an optimal basis of the model's LP with the
 	// integer columns fixed at the incumbent's values (a warm start for
 	// the caller's own LPs).
