@@ -48,7 +48,10 @@
 // on its unit counts (solve_improve.go): moves of one unit — one more or one
 // less from an order year on, an order a year later or earlier — ranked by
 // the reduced costs of the LP with the decisions fixed and judged by
-// re-solving that LP, so that traffic re-routes around each change.
+// re-solving that LP, so that traffic re-routes around each change. With
+// a time limit, once no move pays, the local search re-plans one region
+// at a time (the links at a site and its neighbours) by a sub-MIP with the
+// rest of the plan fixed, beside the search, up to the limit.
 // Solve then fixes the integer decisions and solves two LPs: the NPV again
 // (its capacity-row duals give the value of one more Gbps per link and
 // year) and, holding that NPV, the fewest Gbps·km, so the routing reported

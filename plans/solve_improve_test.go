@@ -2,6 +2,7 @@ package plans
 
 import (
 	"context"
+	"fmt"
 	"math"
 	"testing"
 	"time"
@@ -21,6 +22,23 @@ func fixedLP(t *testing.T, m *Model, x []float64) lp.Result {
 	return r
 }
 
+// roundedUpStart returns the rounding heuristic's plan that rounds every
+// unit count of the LP relaxation up (more capacity than the LP used, so
+// a local search has something to gain) and its best completion, or nil
+// and the reason when there is none.
+func roundedUpStart(t *testing.T, m *Model, relax lp.Result) ([]float64, lp.Result, string) {
+	t.Helper()
+	start := m.roundUpHeuristic(relax.X)
+	if len(start) == 0 {
+		return nil, lp.Result{}, "the heuristic found no candidate plan within the budget"
+	}
+	from := fixedLP(t, m, start[0])
+	if from.Status != lp.Optimal {
+		return nil, from, fmt.Sprintf("the rounded-up plan has no feasible routing (%v)", from.Status)
+	}
+	return start[0], from, ""
+}
+
 // TestImprovePlan starts the local search from the heuristic's plan that
 // rounds every unit count of the LP relaxation up (more capacity than the
 // LP used, so there is something to gain) and checks what comes back: a
@@ -31,16 +49,12 @@ func fixedLP(t *testing.T, m *Model, x []float64) lp.Result {
 func TestImprovePlan(t *testing.T) {
 	improved := 0
 	eachRelaxed(t, []synthCase{{8, 4, 1}, {10, 4, 2}, {9, 5, 3}, {12, 5, 4}}, func(t *testing.T, c *Case, m *Model, relax lp.Result) {
-		start := m.roundUpHeuristic(relax.X)
-		if len(start) == 0 {
-			t.Skip("the heuristic found no candidate plan within the budget")
-		}
-		from := fixedLP(t, m, start[0])
-		if from.Status != lp.Optimal {
-			t.Skipf("the rounded-up plan has no feasible routing (%v)", from.Status)
+		start, from, why := roundedUpStart(t, m, relax)
+		if start == nil {
+			t.Skip(why)
 		}
 		im := m.newImprover(time.Time{})
-		z := im.improve(context.Background(), start[0], nil)
+		z := im.improve(context.Background(), start, nil)
 		if z == nil {
 			t.Logf("no improving move from −NPV %.2f", from.Objective)
 			return
@@ -128,4 +142,105 @@ func checkImproved(t *testing.T, c *Case, m *Model, z []float64, from lp.Result)
 		t.Errorf("improved NPV %.2f above the proven optimum %.2f", -obj, *res.Objective)
 	}
 	return obj, *res.Objective
+}
+
+// TestRegionNeighbourhoods checks the regions offered to the search's
+// sub-MIP heuristic on two synthetic cases: the region of site v holds the
+// unit and build columns of exactly the links with an end at v or at a
+// site linked to v, and every integer column of no link (vendor tiers);
+// every integer column of the model is in some region.
+func TestRegionNeighbourhoods(t *testing.T) {
+	for _, tc := range []synthCase{{8, 4, 1}, {12, 5, 4}} {
+		c, err := loadSynthetic(t, tc.sites, tc.years, tc.seed)
+		if err != nil {
+			t.Fatal(err)
+		}
+		m, err := BuildModel(c, BuildOptions{})
+		if err != nil {
+			t.Fatal(err)
+		}
+		linkOf := map[int]int{} // integer column → its link
+		for _, o := range m.options {
+			for _, j := range o.col {
+				if j >= 0 {
+					linkOf[j] = o.link
+				}
+			}
+		}
+		for _, b := range m.builds {
+			for _, j := range b.col {
+				if j >= 0 {
+					linkOf[j] = b.link
+				}
+			}
+		}
+		hoods := m.regionNeighbourhoods()
+		if len(hoods) != len(c.Sites) {
+			t.Fatalf("%v: %d regions for %d sites", tc, len(hoods), len(c.Sites))
+		}
+		covered := map[int]bool{}
+		for v, hood := range hoods {
+			near := map[int]bool{v: true}
+			for _, l := range c.Links {
+				if l.A == v || l.B == v {
+					near[l.A], near[l.B] = true, true
+				}
+			}
+			in := map[int]bool{}
+			for _, j := range hood {
+				in[j] = true
+				covered[j] = true
+			}
+			for j, isInt := range m.LP.Integer {
+				if !isInt {
+					if in[j] {
+						t.Errorf("%v: region of site %d holds continuous column %s", tc, v, m.LP.ColName[j])
+					}
+					continue
+				}
+				l, onLink := linkOf[j]
+				want := !onLink || near[c.Links[l].A] || near[c.Links[l].B]
+				if in[j] != want {
+					t.Errorf("%v: region of site %d: column %s in it %v, want %v", tc, v, m.LP.ColName[j], in[j], want)
+				}
+			}
+		}
+		for j, isInt := range m.LP.Integer {
+			if isInt && !covered[j] {
+				t.Errorf("%v: integer column %s is in no region", tc, m.LP.ColName[j])
+			}
+		}
+	}
+}
+
+// TestReplanRegions starts the regional re-plans from the plan that rounds
+// every unit count of the LP relaxation up, on cases where the local
+// search has room: a region's sub-MIP must return a point of the MIP
+// better than the start's own best completion and no better than the
+// proven optimum (checkImproved), on some case. Without a deadline the
+// improver does not re-plan at all.
+func TestReplanRegions(t *testing.T) {
+	improved := 0
+	eachRelaxed(t, []synthCase{{8, 4, 1}, {10, 4, 2}}, func(t *testing.T, c *Case, m *Model, relax lp.Result) {
+		start, from, why := roundedUpStart(t, m, relax)
+		if start == nil {
+			t.Fatal("test input: " + why)
+		}
+		x := append([]float64(nil), from.X...)
+		if m.newImprover(time.Time{}).replan(context.Background(), x) != nil {
+			t.Error("re-planned without a deadline")
+		}
+		im := m.newImprover(time.Now().Add(time.Minute))
+		z := im.replan(context.Background(), x)
+		if z == nil {
+			t.Logf("no region improves −NPV %.2f", from.Objective)
+			return
+		}
+		improved++
+		obj, optimum := checkImproved(t, c, m, z, from)
+		t.Logf("NPV %.2f → %.2f after %d regions (optimum %.2f)", -from.Objective, -obj, im.nextRegion, optimum)
+	})
+	if improved == 0 {
+		t.Fatal("no regional re-plan improved a start plan")
+	}
 }
