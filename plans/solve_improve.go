@@ -660,3 +660,56 @@ func (im *improver) replan(ctx context.Context, x []float64) []float64 {
 	}
 	return nil
 }
+
+// regionNeighbourhoods returns, for each site, the integer columns of the
+// plan in its region: the unit and build columns of every link with an
+// end at the site or at one of its neighbours, and the integer columns
+// that belong to no link (vendor tiers), which a change of purchases may
+// move. The improver re-plans one region at a time with the rest of the
+// plan fixed (improver.replan), and so finds changes of many units around
+// a site that neither the rounding nor its own one- and two-unit moves
+// reach.
+func (m *Model) regionNeighbourhoods() [][]int {
+	c := m.Case
+	linkCols := make([][]int, len(c.Links))
+	onLink := make([]bool, m.LP.NumCols())
+	for oi := range m.options {
+		o := &m.options[oi]
+		for _, j := range o.col {
+			if j >= 0 {
+				linkCols[o.link] = append(linkCols[o.link], j)
+				onLink[j] = true
+			}
+		}
+	}
+	for _, b := range m.builds {
+		for _, j := range b.col {
+			if j >= 0 {
+				linkCols[b.link] = append(linkCols[b.link], j)
+				onLink[j] = true
+			}
+		}
+	}
+	var shared []int
+	for j, isInt := range m.LP.Integer {
+		if isInt && !onLink[j] {
+			shared = append(shared, j)
+		}
+	}
+	atSite := c.linksAtSites()
+	out := make([][]int, 0, len(c.Sites))
+	for v := range c.Sites {
+		near := map[int]bool{v: true}
+		for _, l := range atSite[v] {
+			near[c.Links[l].A], near[c.Links[l].B] = true, true
+		}
+		hood := append([]int(nil), shared...)
+		for l, link := range c.Links {
+			if near[link.A] || near[link.B] {
+				hood = append(hood, linkCols[l]...)
+			}
+		}
+		out = append(out, hood)
+	}
+	return out
+}

@@ -144,8 +144,8 @@ func checkImproved(t *testing.T, c *Case, m *Model, z []float64, from lp.Result)
 	return obj, *res.Objective
 }
 
-// TestRegionNeighbourhoods checks the regions offered to the search's
-// sub-MIP heuristic on two synthetic cases: the region of site v holds the
+// TestRegionNeighbourhoods checks the regions that the improver re-plans
+// (replan) on two synthetic cases: the region of site v holds the
 // unit and build columns of exactly the links with an end at v or at a
 // site linked to v, and every integer column of no link (vendor tiers);
 // every integer column of the model is in some region.
@@ -226,7 +226,7 @@ func TestReplanRegions(t *testing.T) {
 		if start == nil {
 			t.Fatal("test input: " + why)
 		}
-		x := append([]float64(nil), from.X...)
+		x := from.X
 		if m.newImprover(time.Time{}).replan(context.Background(), x) != nil {
 			t.Error("re-planned without a deadline")
 		}
