@@ -611,12 +611,13 @@ func (im *improver) shifts(y, d []float64) []shiftMove {
 // deadline: with a time limit mip does not wait for the improver at its
 // call points, so the re-plans use time beside the search; without one
 // they would hold the search up (and proofs and goldens keep their path).
-// Measured on 2026-12-04 on the synthetic cases (one run each): the
-// 50-site case at 600 s ended at a plan of 8,301,728 and a gap of 2.30 %,
-// against 8,288,791 (every 600 s run without) and 2.46 %; M (25 sites, 7 years) at 60 s at a gap of 0.45 %
-// against 0.49 %, and 20 sites over 10 years at 0.93 % against 1.02 and
-// 1.17 % (two runs). The 50-site case at 60 s is unchanged (2.69 %): its
-// local search settles only near the end.
+// Measured on 2026-12-04 on the synthetic cases: the 50-site case at
+// 600 s ended at plans of 8,301,728 and 8,301,745 and a gap of 2.30 %
+// (two runs), against 8,288,791 (every 600 s run without) and 2.46 %; M
+// (25 sites, 7 years) at 60 s at a gap of 0.45 % against 0.49 %, and 20
+// sites over 10 years at 0.93 % against 1.02 and 1.17 % (one run with,
+// two without). The 50-site case at 60 s is unchanged (2.69 %): its local
+// search settles only near the end.
 func (im *improver) replan(ctx context.Context, x []float64) []float64 {
 	if im.deadline.IsZero() {
 		return nil
