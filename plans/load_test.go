@@ -521,6 +521,52 @@ func TestWarnings(t *testing.T) {
 	}
 }
 
+// TestBuildBudgetWarning: a build is paid in full in its order year, so a
+// candidate link whose build cost is above the capex cap of every year in
+// which it could be ordered and still serve (each year's cap, and the
+// cumulative cap) can never be built; check and solve say so. The "at
+// most" figure is the largest such cap, worked out by hand for each case
+// (ready by month 9: 20 months of lead time serve a year after the order,
+// so the horizon's last year, 2032, cannot be the order year).
+func TestBuildBudgetWarning(t *testing.T) {
+	const msg = `candidate link "BC" costs EUR 1,500 to build, more than the capex budget of any year it could be ordered in (at most `
+	tests := []struct {
+		name, budget string
+		lead         int
+		want         string // "" for no such warning
+	}{
+		{"every year below", "capex_per_year = 1000", 0, msg + "1,000)"},
+		{"one year enough", "capex_per_year = [1000, 2000, 1000]", 0, ""},
+		{"enough only in a year too late to serve", "capex_per_year = [1000, 1200, 2000]", 20, msg + "1,200)"},
+		{"cumulative cap below", "cumulative = 1400", 0, msg + "1,400)"},
+		{"cumulative cap below the years'", "capex_per_year = 3000\ncumulative = 1400", 0, msg + "1,400)"},
+		{"no budget", "", 0, ""},
+	}
+	for _, tc := range tests {
+		t.Run(tc.name, func(t *testing.T) {
+			text := strings.Replace(baseCase, "capex_per_year = 1000", tc.budget, 1)
+			text = strings.Replace(text, "km = 20\ncapacity_gbps = 10",
+				fmt.Sprintf("km = 20\ncandidate = true\nbuild_cost = 1500\nbook_life = 10\nlead_months = %d", tc.lead), 1)
+			_, warns, err := decodeTexts(text, map[string]string{"cat.toml": baseCatalog})
+			if err != nil {
+				t.Fatal(err)
+			}
+			var got []string
+			for _, w := range warns {
+				if w.Key == "links.build_cost" {
+					got = append(got, w.Msg)
+				}
+			}
+			switch {
+			case tc.want == "" && len(got) != 0:
+				t.Errorf("got %q, want no build-cost warning", got)
+			case tc.want != "" && (len(got) != 1 || !strings.HasPrefix(got[0], tc.want)):
+				t.Errorf("got %q, want one build-cost warning starting %q", got, tc.want)
+			}
+		})
+	}
+}
+
 func TestCostMode(t *testing.T) {
 	caseText := strings.NewReplacer("tariff = 100\n", "", "tariff_erosion = 0.2\n", "").Replace(baseCase)
 	c, warns, err := decodeTexts(caseText, map[string]string{"cat.toml": baseCatalog})

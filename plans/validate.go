@@ -9,6 +9,7 @@ import (
 	"time"
 
 	"netstage/catalog"
+	"netstage/plans/numfmt"
 )
 
 // horizonOK reports whether the first year and horizon decoded, so that
@@ -299,6 +300,9 @@ func (d *decoder) warnings(c *Case) {
 		if l.Candidate != nil && l.Candidate.InService[0] >= c.Horizon {
 			d.src.WarnAt(d.linkAt[i], "links.lead_months", fmt.Sprintf("candidate link %q takes %d months: even built in %d it would not serve within the horizon",
 				l.ID, l.Candidate.LeadMonths, c.FirstYear))
+		} else if most, ok := c.buildBudget(l.Candidate); ok && l.Candidate.BuildCost > most {
+			d.src.WarnAt(d.linkAt[i], "links.build_cost", fmt.Sprintf("candidate link %q costs %s %s to build, more than the capex budget of any year it could be ordered in (at most %s): no plan within the budget can build it",
+				l.ID, c.Currency, numfmt.Money(l.Candidate.BuildCost), numfmt.Money(most)))
 		}
 	}
 	for ii, it := range c.Items {
@@ -353,6 +357,30 @@ func (d *decoder) warnings(c *Case) {
 				l.ID, 100*u, c.FirstYear, 100*l.Ceiling))
 		}
 	}
+}
+
+// buildBudget returns the largest capex the budget allows in any year in
+// which the candidate link cand could be ordered and still serve within
+// the horizon (the lesser of that year's cap and the cumulative cap), and
+// false when some such year is uncapped or there is none. A build is paid
+// in full in its order year, so one that costs more than this can never be
+// part of a plan within the budget.
+func (c *Case) buildBudget(cand *Candidate) (float64, bool) {
+	if cand == nil {
+		return 0, false
+	}
+	most, any := 0.0, false
+	for tau, s := range cand.InService {
+		if s >= c.Horizon {
+			continue
+		}
+		limit := c.Budget.Cumulative
+		if yc, ok := c.Budget.YearCap(tau); ok {
+			limit = math.Min(limit, yc)
+		}
+		most, any = math.Max(most, limit), true
+	}
+	return most, any && !math.IsInf(most, 1)
 }
 
 // FirstYearUtilisation estimates each link's busy-hour utilisation in the
