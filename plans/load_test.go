@@ -567,6 +567,56 @@ func TestBuildBudgetWarning(t *testing.T) {
 	}
 }
 
+// TestUnitBudgetWarning: a module one unit of which costs more than the
+// capex budget of every year it could be ordered in (and still serve), on
+// its shortest link and after its vendor's largest volume discount, is
+// never bought; check and solve say so. Prices and years by hand: the
+// base item costs 1,000 a unit, and with 12 months of lead time (ready by
+// month 9) an order serves the next year, so 2030 and 2031 are its order
+// years and 2032 is not; the budget is 1,000 a year.
+func TestUnitBudgetWarning(t *testing.T) {
+	const msg = `one unit of item "m" of vendor "v" costs more than the capex budget of any year it could be ordered in`
+	tests := []struct {
+		name, budget, catalog, tail string
+		want                        string // "" for no such warning
+	}{
+		{"at the budget", "", "capex = 1000", "", ""},
+		{"above every year", "", "capex = 1500", "", "(closest: EUR 1,500 in 2030 against a budget of 1,000)"},
+		// link AB (10 km) is the shortest: 950 + 10·10; on BC it would be 1,150
+		{"priced on the shortest link", "", "capex = 950\ncapex_per_km = 10", "", "(closest: EUR 1,050 in 2030 against a budget of 1,000)"},
+		// 1,500 eroded by 40 % is 900 in 2031
+		{"eroded within the budget", "", "capex = 1500\nerosion = 0.4", "", ""},
+		// 1,500 less the larger discount, 40 %, is 900
+		{"discounted within the budget", "", "capex = 1500", "\n[[tiers]]\nvendor = \"v\"\nbasis = \"spend\"\nthreshold = 3000\ndiscount = 0.1\n\n[[tiers]]\nvendor = \"v\"\nbasis = \"spend\"\nthreshold = 5000\ndiscount = 0.4\n", ""},
+		{"within only in a year too late to serve", "capex_per_year = [1000, 1400, 2000]", "capex = 1500", "", "(closest: EUR 1,500 in 2031 against a budget of 1,400)"},
+	}
+	for _, tc := range tests {
+		t.Run(tc.name, func(t *testing.T) {
+			text := baseCase
+			if tc.budget != "" {
+				text = strings.Replace(text, "capex_per_year = 1000", tc.budget, 1)
+			}
+			cat := strings.Replace(baseCatalog, "capex = 1000", tc.catalog, 1) + tc.tail
+			_, warns, err := decodeTexts(text, map[string]string{"cat.toml": cat})
+			if err != nil {
+				t.Fatal(err)
+			}
+			var got []string
+			for _, w := range warns {
+				if w.Key == "items.capex" {
+					got = append(got, w.Msg)
+				}
+			}
+			switch {
+			case tc.want == "" && len(got) != 0:
+				t.Errorf("got %q, want no unit-price warning", got)
+			case tc.want != "" && (len(got) != 1 || !strings.HasPrefix(got[0], msg) || !strings.Contains(got[0], tc.want)):
+				t.Errorf("got %q, want one unit-price warning containing %q", got, tc.want)
+			}
+		})
+	}
+}
+
 func TestCostMode(t *testing.T) {
 	caseText := strings.NewReplacer("tariff = 100\n", "", "tariff_erosion = 0.2\n", "").Replace(baseCase)
 	c, warns, err := decodeTexts(caseText, map[string]string{"cat.toml": baseCatalog})

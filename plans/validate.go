@@ -4,6 +4,7 @@ import (
 	"container/heap"
 	"fmt"
 	"math"
+	"slices"
 	"sort"
 	"strings"
 	"time"
@@ -328,6 +329,10 @@ func (d *decoder) warnings(c *Case) {
 			warn("items.slots", fmt.Sprintf("item %q of vendor %q needs %d slots per unit, more than any link it fits has free",
 				it.ID, v.ID, it.SlotsPerUnit))
 		}
+		if tau, price, over := c.unitOverBudget(ii); over {
+			warn("items.capex", fmt.Sprintf("one unit of item %q of vendor %q costs more than the capex budget of any year it could be ordered in, even on its shortest link and after the vendor's largest volume discount (closest: %s %s in %d against a budget of %s): no plan within the budget buys it",
+				it.ID, v.ID, c.Currency, numfmt.Money(price), c.Year(tau), numfmt.Money(c.capexLimit(tau))))
+		}
 	}
 	var free []int
 	paying := 0
@@ -359,28 +364,71 @@ func (d *decoder) warnings(c *Case) {
 	}
 }
 
+// capexLimit returns the most capex the budget allows in year index tau:
+// the lesser of that year's cap and the cumulative cap (+Inf for none).
+func (c *Case) capexLimit(tau int) float64 {
+	limit := c.Budget.Cumulative
+	if yc, ok := c.Budget.YearCap(tau); ok {
+		limit = math.Min(limit, yc)
+	}
+	return limit
+}
+
 // buildBudget returns the largest capex the budget allows in any year in
 // which the candidate link cand could be ordered and still serve within
-// the horizon (the lesser of that year's cap and the cumulative cap), and
-// false when some such year is uncapped or there is none. A build is paid
-// in full in its order year, so one that costs more than this can never be
-// part of a plan within the budget.
+// the horizon (capexLimit), and false when some such year is uncapped or
+// there is none. A build is paid in full in its order year, so one that
+// costs more than this can never be part of a plan within the budget.
 func (c *Case) buildBudget(cand *Candidate) (float64, bool) {
 	if cand == nil {
 		return 0, false
 	}
 	most, any := 0.0, false
 	for tau, s := range cand.InService {
-		if s >= c.Horizon {
-			continue
+		if s < c.Horizon {
+			most, any = math.Max(most, c.capexLimit(tau)), true
 		}
-		limit := c.Budget.Cumulative
-		if yc, ok := c.Budget.YearCap(tau); ok {
-			limit = math.Min(limit, yc)
-		}
-		most, any = math.Max(most, limit), true
 	}
 	return most, any && !math.IsInf(most, 1)
+}
+
+// unitOverBudget reports whether one unit of module item ii costs more
+// than the capex budget in every year it could be ordered in and still
+// serve within the horizon, on every link it fits, even after its
+// vendor's largest volume discount (volume discounts apply to all units,
+// so no unit is cheaper than that); such an item is never bought within
+// the budget. It also returns the year index and the unit price, on the
+// cheapest such link, where the price comes closest to the budget.
+func (c *Case) unitOverBudget(ii int) (closest int, price float64, over bool) {
+	it := &c.Items[ii]
+	if it.Kind != Module {
+		return 0, 0, false
+	}
+	maxDiscount := 0.0
+	for _, tr := range c.Vendors[it.Vendor].Tiers {
+		maxDiscount = math.Max(maxDiscount, tr.Discount)
+	}
+	minKM := math.Inf(1)
+	for _, l := range c.Links {
+		if slices.Contains(l.Items, ii) {
+			minKM = math.Min(minKM, l.KM)
+		}
+	}
+	closest, margin := -1, math.Inf(1)
+	for tau, s := range it.InService {
+		if s >= c.Horizon || math.IsInf(minKM, 1) {
+			continue
+		}
+		p := (1 - maxDiscount) * it.Capex(tau, minKM)
+		limit := c.capexLimit(tau)
+		if p <= limit {
+			return 0, 0, false
+		}
+		if p-limit < margin {
+			closest, price, margin = tau, p, p-limit
+		}
+	}
+	return closest, price, closest >= 0
 }
 
 // FirstYearUtilisation estimates each link's busy-hour utilisation in the
