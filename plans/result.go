@@ -1,6 +1,7 @@
 package plans
 
 import (
+	"fmt"
 	"math"
 	"strings"
 )
@@ -335,4 +336,38 @@ func (r *Result) PaybackInFirstYear() bool {
 // large case with a short time limit the first LP alone can take longer.
 func (r *Result) StoppedBeforeBetter() bool {
 	return r.Status == StatusFeasible && len(r.Plan) == 0
+}
+
+// HorizonEndNote cautions about the purchases that enter service in the
+// horizon's last year, or returns "" when the plan has none. The model
+// weighs such a purchase against one year of traffic and, where the case
+// credits salvage, the book value left at the horizon; the years after it,
+// which pay for it in practice, lie outside the plan. So the horizon as
+// much as the network decides it, and next year's plan, whose horizon
+// reaches past it, should look at it again. Leases are left out: a fee
+// paid year by year is weighed against the traffic of the same years.
+func (r *Result) HorizonEndNote() string {
+	if len(r.Cashflow) == 0 {
+		return ""
+	}
+	last := r.Cashflow[len(r.Cashflow)-1]
+	n := 0
+	for _, p := range r.Plan {
+		if p.InService == last.Year && p.Kind != KindLease {
+			n++
+		}
+	}
+	if n == 0 {
+		return ""
+	}
+	what, each, them := "1 purchase enters", "it", "it"
+	if n > 1 {
+		what, each, them = fmt.Sprintf("%d purchases enter", n), "each", "them"
+	}
+	weighed := "that one year of traffic"
+	if last.Salvage > 0 {
+		weighed += " and the book value credited as salvage at the horizon"
+	}
+	return fmt.Sprintf("%s service in %d, the horizon's last year: the plan weighs %s against nothing but %s. "+
+		"Review %s in next year's plan, whose horizon reaches past %s, before ordering.", what, last.Year, each, weighed, them, them)
 }

@@ -10,6 +10,7 @@ import (
 	"strconv"
 	"strings"
 	"text/tabwriter"
+	"unicode/utf8"
 
 	"netstage/plans"
 )
@@ -265,6 +266,32 @@ func writePlanTable(w io.Writer, r *plans.Result) {
 			money(p.ListCapex), money(p.Capex), money(p.Opex))
 	}
 	tw.Flush()
+	if note := r.HorizonEndNote(); note != "" {
+		writeWrapped(w, "  note: ", "        ", note)
+	}
+}
+
+// noteWidth is the width at which writeWrapped breaks lines.
+const noteWidth = 80
+
+// writeWrapped prints text word by word in lines of at most noteWidth
+// characters (a longer word gets a line of its own), the first line after
+// first and the others after indent.
+func writeWrapped(w io.Writer, first, indent, text string) {
+	line := first
+	fresh := true // nothing but the prefix on line yet
+	for _, word := range strings.Fields(text) {
+		if !fresh && utf8.RuneCountInString(line)+1+utf8.RuneCountInString(word) > noteWidth {
+			fmt.Fprintln(w, line)
+			line, fresh = indent, true
+		}
+		if !fresh {
+			line += " "
+		}
+		line += word
+		fresh = false
+	}
+	fmt.Fprintln(w, line)
 }
 
 func writeCashflowTable(w io.Writer, r *plans.Result) {

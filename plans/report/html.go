@@ -129,7 +129,8 @@ const htmlSource = `<!DOCTYPE html>
 {{end}}<tr class="stage"><td>{{.Year}}</td><td colspan="5">stage total (budget {{.Budget}})</td><td class="num">{{.Capex}}</td><td colspan="2"></td></tr>
 {{end}}<tr class="total"><td colspan="6">Total capex</td><td class="num">{{.PlanTotal}}</td><td colspan="2"></td></tr>
 </tbody></table></div>
-{{else}}<p>The plan buys nothing.</p>{{end}}
+{{if .HorizonNote}}<p class="note" id="horizon-end">{{.HorizonNote}}</p>
+{{end}}{{else}}<p>The plan buys nothing.</p>{{end}}
 </section>
 
 <section id="cashflow">

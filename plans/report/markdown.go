@@ -107,6 +107,9 @@ func writeMarkdown(w io.Writer, v *view) error {
 			}
 			m.row("**Total**", "", "", "", "", "", "**"+v.PlanTotal+"**", "", "")
 			m.printf("\n")
+			if v.HorizonNote != "" {
+				m.printf("%s\n\n", v.HorizonNote)
+			}
 		}
 
 		m.printf("## Cash flow\n\n")

@@ -432,6 +432,10 @@ func TestHTMLSectionsAndCharts(t *testing.T) {
 	if !strings.Contains(page, "review") || !strings.Contains(page, "finance and engineering") {
 		t.Error("html lacks the caution about review by finance and engineering")
 	}
+	// The demo buys two modules that enter service in its last year.
+	if note := r.HorizonEndNote(); note == "" || !strings.Contains(page, `<p class="note" id="horizon-end">`+html.EscapeString(note)+`</p>`) {
+		t.Errorf("html lacks the note on purchases in the horizon's last year (%q)", note)
+	}
 }
 
 // TestNoCoordinates: without site coordinates the map is skipped with a

@@ -34,6 +34,7 @@ type view struct {
 
 	Stages        []stage
 	PlanTotal     string
+	HorizonNote   string // Result.HorizonEndNote
 	Cash          []cashRow
 	CashTotal     cashRow
 	HasPenalty    bool
@@ -158,6 +159,7 @@ func buildView(c *plans.Case, r *plans.Result) (*view, error) {
 		})
 	}
 	v.Warnings = append(v.Warnings, r.Warnings...)
+	v.HorizonNote = r.HorizonEndNote()
 	v.MapNote = mapNote(c)
 	v.Caution = "This plan is decision support, not a decision. It rests on a traffic " +
 		"forecast, tariffs and vendor prices that will turn out differently, and on " +
