@@ -533,13 +533,13 @@ func TestBuildBudgetWarning(t *testing.T) {
 	tests := []struct {
 		name, budget string
 		lead         int
-		want         string // "" for no such warning
+		want         string // the end of the message; "" for no such warning
 	}{
-		{"every year below", "capex_per_year = 1000", 0, msg + "1,000)"},
+		{"every year below", "capex_per_year = 1000", 0, "1,000)"},
 		{"one year enough", "capex_per_year = [1000, 2000, 1000]", 0, ""},
-		{"enough only in a year too late to serve", "capex_per_year = [1000, 1200, 2000]", 20, msg + "1,200)"},
-		{"cumulative cap below", "cumulative = 1400", 0, msg + "1,400)"},
-		{"cumulative cap below the years'", "capex_per_year = 3000\ncumulative = 1400", 0, msg + "1,400)"},
+		{"enough only in a year too late to serve", "capex_per_year = [1000, 1200, 2000]", 20, "1,200)"},
+		{"cumulative cap below", "cumulative = 1400", 0, "1,400)"},
+		{"cumulative cap below the years'", "capex_per_year = 3000\ncumulative = 1400", 0, "1,400)"},
 		{"no budget", "", 0, ""},
 	}
 	for _, tc := range tests {
@@ -547,23 +547,31 @@ func TestBuildBudgetWarning(t *testing.T) {
 			text := strings.Replace(baseCase, "capex_per_year = 1000", tc.budget, 1)
 			text = strings.Replace(text, "km = 20\ncapacity_gbps = 10",
 				fmt.Sprintf("km = 20\ncandidate = true\nbuild_cost = 1500\nbook_life = 10\nlead_months = %d", tc.lead), 1)
-			_, warns, err := decodeTexts(text, map[string]string{"cat.toml": baseCatalog})
-			if err != nil {
-				t.Fatal(err)
-			}
-			var got []string
-			for _, w := range warns {
-				if w.Key == "links.build_cost" {
-					got = append(got, w.Msg)
-				}
-			}
-			switch {
-			case tc.want == "" && len(got) != 0:
-				t.Errorf("got %q, want no build-cost warning", got)
-			case tc.want != "" && (len(got) != 1 || !strings.HasPrefix(got[0], tc.want)):
-				t.Errorf("got %q, want one build-cost warning starting %q", got, tc.want)
-			}
+			checkKeyedWarning(t, text, baseCatalog, "links.build_cost", msg+tc.want, tc.want)
 		})
+	}
+}
+
+// checkKeyedWarning decodes caseText, with catText as cat.toml, and checks
+// its warnings under key: none when want is "", otherwise exactly one,
+// whose message starts with prefix and contains want.
+func checkKeyedWarning(t *testing.T, caseText, catText, key, prefix, want string) {
+	t.Helper()
+	_, warns, err := decodeTexts(caseText, map[string]string{"cat.toml": catText})
+	if err != nil {
+		t.Fatal(err)
+	}
+	var got []string
+	for _, w := range warns {
+		if w.Key == key {
+			got = append(got, w.Msg)
+		}
+	}
+	switch {
+	case want == "" && len(got) != 0:
+		t.Errorf("got %q, want no %s warning", got, key)
+	case want != "" && (len(got) != 1 || !strings.HasPrefix(got[0], prefix) || !strings.Contains(got[0], want)):
+		t.Errorf("got %q, want one %s warning starting %q and containing %q", got, key, prefix, want)
 	}
 }
 
@@ -597,22 +605,7 @@ func TestUnitBudgetWarning(t *testing.T) {
 				text = strings.Replace(text, "capex_per_year = 1000", tc.budget, 1)
 			}
 			cat := strings.Replace(baseCatalog, "capex = 1000", tc.catalog, 1) + tc.tail
-			_, warns, err := decodeTexts(text, map[string]string{"cat.toml": cat})
-			if err != nil {
-				t.Fatal(err)
-			}
-			var got []string
-			for _, w := range warns {
-				if w.Key == "items.capex" {
-					got = append(got, w.Msg)
-				}
-			}
-			switch {
-			case tc.want == "" && len(got) != 0:
-				t.Errorf("got %q, want no unit-price warning", got)
-			case tc.want != "" && (len(got) != 1 || !strings.HasPrefix(got[0], msg) || !strings.Contains(got[0], tc.want)):
-				t.Errorf("got %q, want one unit-price warning containing %q", got, tc.want)
-			}
+			checkKeyedWarning(t, text, cat, "items.capex", msg, tc.want)
 		})
 	}
 }

@@ -809,20 +809,14 @@ func (m *Model) budgetUpper(limit float64) float64 {
 	return limit / moneyScale
 }
 
-// yearLimit is the most the capex of order year tau may be: its yearly
-// budget or the cumulative cap, whichever is less (+Inf without either,
-// and in the elastic and free-budget models, whose budgets give). Rows
-// and bounds that rest on the budgets use it.
+// yearLimit is the most the capex of order year tau may be: the case's
+// capexLimit, or +Inf in the elastic and free-budget models, whose budgets
+// give. Rows and bounds that rest on the budgets use it.
 func (m *Model) yearLimit(tau int) float64 {
 	if m.opts.elastic || m.opts.freeBudgets {
 		return math.Inf(1)
 	}
-	b := m.Case.Budget
-	limit := b.Cumulative
-	if yc, ok := b.YearCap(tau); ok {
-		limit = math.Min(limit, yc)
-	}
-	return limit
+	return m.Case.capexLimit(tau)
 }
 
 // fixUnreachableTiers fixes at 0 the choice of each tier of vy that the

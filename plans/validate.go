@@ -366,6 +366,7 @@ func (d *decoder) warnings(c *Case) {
 
 // capexLimit returns the most capex the budget allows in year index tau:
 // the lesser of that year's cap and the cumulative cap (+Inf for none).
+// The model's budget rows and fixings take it through Model.yearLimit.
 func (c *Case) capexLimit(tau int) float64 {
 	limit := c.Budget.Cumulative
 	if yc, ok := c.Budget.YearCap(tau); ok {
