@@ -9,6 +9,7 @@ import (
 	"os/exec"
 	"path/filepath"
 	"regexp"
+	"slices"
 	"strconv"
 	"testing"
 
@@ -117,7 +118,11 @@ func crossCheck(t *testing.T, cbc string, c *Case) *Result {
 //   - no tariffs (cost mode: every demand committed, the present cost
 //     minimised);
 //   - a tight yearly budget and no tax (budget rows that bind; no tax
-//     shield in the unit costs).
+//     shield in the unit costs);
+//   - a candidate link cheap enough to build (the synthetic cases' build
+//     costs are above their budgets, so their build columns stay at 0): the
+//     build decision, its gating rows and its cash flows; the plan must
+//     build it.
 //
 // The cases have 8 sites and 5 years, so that every plan buys something.
 // Before this test was written, 38 cases of 4 to 6 sites and 3 to 5 years
@@ -129,24 +134,33 @@ func TestCrossCheckCBCVariants(t *testing.T) {
 		name  string
 		edits [][2]string // regexp, replacement, applied to case.toml
 		check func(c *Case) bool
+		kind  string // a kind of plan row the plan must hold ("": any purchase)
+		seeds []int64
 	}
 	variants := []variant{
 		{"mid-year", [][2]string{{`discounting = "end_of_year"`, `discounting = "mid_year"`}},
-			func(c *Case) bool { return c.MidYear }},
+			func(c *Case) bool { return c.MidYear }, "", []int64{101, 105}},
 		{"one-vendor-cumulative", [][2]string{{`(?m)^\[case\]$`, "[case]\none_vendor = \"network\""}, {`(?m)^capex_per_year = .*$`, "$0\ncumulative = 200000"}},
-			func(c *Case) bool { return c.OneVendor == OneVendorNetwork && c.Budget.Cumulative == 200000 }},
+			func(c *Case) bool { return c.OneVendor == OneVendorNetwork && c.Budget.Cumulative == 200000 }, "", []int64{102, 106}},
 		{"cost-mode", [][2]string{{`(?m)^tariff.*\n`, ""}},
-			func(c *Case) bool { return c.CostMode() }},
+			func(c *Case) bool { return c.CostMode() }, "", []int64{103, 107}},
 		{"tight-budget-no-tax", [][2]string{{`(?m)^capex_per_year = .*$`, "capex_per_year = 50000"}, {`(?m)^tax_rate = .*$`, "tax_rate = 0"}},
-			func(c *Case) bool { return c.Finance.TaxRate == 0 && c.Budget.Yearly[0] == 50000 }},
+			func(c *Case) bool { return c.Finance.TaxRate == 0 && c.Budget.Yearly[0] == 50000 }, "", []int64{104, 108}},
+		{"affordable-build", [][2]string{{`(?m)^build_cost = .*$`, "build_cost = 10000"}, {`(?m)^opex = .*$`, "opex = 1000"}},
+			func(c *Case) bool {
+				for _, l := range c.Links {
+					if l.Candidate != nil && l.Candidate.BuildCost == 10000 && l.Candidate.Opex == 1000 {
+						return true
+					}
+				}
+				return false
+			}, KindBuild, []int64{105, 110}},
 	}
 	if testing.Short() {
-		t.Skip("the full suite runs it (about 20 s with CBC)")
+		t.Skip("the full suite runs it (about 25 s with CBC)")
 	}
-	const perVariant = 2
-	for k, v := range variants {
-		for i := 0; i < perVariant; i++ {
-			seed := int64(101 + k + len(variants)*i)
+	for _, v := range variants {
+		for _, seed := range v.seeds {
 			sites, years := 8, 5
 			t.Run(fmt.Sprintf("%s-%d-sites-%d-years-seed-%d", v.name, sites, years, seed), func(t *testing.T) {
 				path := writeSynthetic(t, sites, years, seed)
@@ -173,8 +187,12 @@ func TestCrossCheckCBCVariants(t *testing.T) {
 				}
 				// A plan that buys nothing would leave the variant's rows
 				// and columns idle.
-				if res := crossCheck(t, cbc, c); len(res.Plan) == 0 {
+				res := crossCheck(t, cbc, c)
+				if len(res.Plan) == 0 {
 					t.Error("the plan buys nothing: choose another seed")
+				}
+				if v.kind != "" && !slices.ContainsFunc(res.Plan, func(p PlanRow) bool { return p.Kind == v.kind }) {
+					t.Errorf("the plan holds no %s: choose another seed", v.kind)
 				}
 			})
 		}
