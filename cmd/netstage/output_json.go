@@ -79,6 +79,9 @@ func writeJSON(w io.Writer, r *plans.Result, opts jsonOptions) error {
 		return fmt.Errorf("re-read result: %w", err)
 	}
 	tree["notice"] = decisionSupportNote
+	// The caution printed under the staged plan ("" when no purchase
+	// enters service in the horizon's last year).
+	tree["horizon_end_note"] = r.HorizonEndNote()
 	if opts.hideEffort {
 		if s, ok := tree["solver"].(map[string]any); ok {
 			for _, k := range []string{"seconds", "nodes", "iterations", "rows", "columns", "integers"} {
