@@ -173,9 +173,10 @@ type Settings struct {
 	// gets it again at once (a caller that stopped short can go on; one
 	// that finished should answer nil at once). One Improve runs at a
 	// time, but beside the other callbacks (Heuristic, Separate,
-	// Progress): state it shares with them must be safe for that. ctx is cancelled when the
-	// search stops at its time limit or is cancelled (or, with a time
-	// limit, ends); an answer found by then is still taken.
+	// Progress): state it shares with them must be safe for that. ctx is
+	// cancelled when the search stops at its time limit or is cancelled
+	// (or, with a time limit, ends); an answer found by then is still
+	// taken.
 	// basis, when not nil, is an optimal basis of the model's LP with the
 	// integer columns fixed at the incumbent's values (a warm start for
 	// the caller's own LPs).

@@ -125,6 +125,18 @@ func (b Budget) YearCap(i int) (float64, bool) {
 	return v, !math.IsInf(v, 1)
 }
 
+// limit returns the most capex the budget allows in year index i: the
+// lesser of that year's cap and the cumulative cap (+Inf for neither).
+// The model's budget rows and fixings take it through Model.yearLimit;
+// check's budget warnings read it directly.
+func (b Budget) limit(i int) float64 {
+	limit := b.Cumulative
+	if yc, ok := b.YearCap(i); ok {
+		limit = math.Min(limit, yc)
+	}
+	return limit
+}
+
 // SalvageMethod says how equipment still in its book life at the horizon is
 // valued.
 type SalvageMethod int

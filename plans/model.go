@@ -810,13 +810,13 @@ func (m *Model) budgetUpper(limit float64) float64 {
 }
 
 // yearLimit is the most the capex of order year tau may be: the case's
-// capexLimit, or +Inf in the elastic and free-budget models, whose budgets
-// give. Rows and bounds that rest on the budgets use it.
+// Budget.limit, or +Inf in the elastic and free-budget models, whose
+// budgets give. Rows and bounds that rest on the budgets use it.
 func (m *Model) yearLimit(tau int) float64 {
 	if m.opts.elastic || m.opts.freeBudgets {
 		return math.Inf(1)
 	}
-	return m.Case.capexLimit(tau)
+	return m.Case.Budget.limit(tau)
 }
 
 // fixUnreachableTiers fixes at 0 the choice of each tier of vy that the

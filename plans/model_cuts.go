@@ -232,11 +232,10 @@ func (m *Model) crossing(in []bool, t int) crossing {
 // in in, year t, in which the links across with spare capacity at the LP
 // point (linkCap and arcFlow, see loadsAt) stand in by their flow instead
 // of their capacity: one variant for the arcs that leave the set and one
-// for those that enter it. The
-// traffic of the demands across must leave the set over its links (the
-// flow of each source inside, summed over the arcs out, is at least what
-// it sends out) and, carried both ways, enter it too, so for either
-// direction
+// for those that enter it. The traffic of the demands across must leave
+// the set over its links (the flow of each source inside, summed over the
+// arcs out, is at least what it sends out) and, carried both ways, enter
+// it too, so for either direction
 //
 //	Σ_{j on E1} a_j·y_j + Σ_{a of E2} f_a + s ≥ F − Σ_{E1} ceiling·base,
 //

@@ -331,7 +331,7 @@ func (d *decoder) warnings(c *Case) {
 		}
 		if tau, price, over := c.unitOverBudget(ii); over {
 			warn("items.capex", fmt.Sprintf("one unit of item %q of vendor %q costs more than the capex budget of any year it could be ordered in, even on its shortest link and after the vendor's largest volume discount (closest: %s %s in %d against a budget of %s): no plan within the budget buys it",
-				it.ID, v.ID, c.Currency, numfmt.Money(price), c.Year(tau), numfmt.Money(c.capexLimit(tau))))
+				it.ID, v.ID, c.Currency, numfmt.Money(price), c.Year(tau), numfmt.Money(c.Budget.limit(tau))))
 		}
 	}
 	var free []int
@@ -364,20 +364,9 @@ func (d *decoder) warnings(c *Case) {
 	}
 }
 
-// capexLimit returns the most capex the budget allows in year index tau:
-// the lesser of that year's cap and the cumulative cap (+Inf for none).
-// The model's budget rows and fixings take it through Model.yearLimit.
-func (c *Case) capexLimit(tau int) float64 {
-	limit := c.Budget.Cumulative
-	if yc, ok := c.Budget.YearCap(tau); ok {
-		limit = math.Min(limit, yc)
-	}
-	return limit
-}
-
 // buildBudget returns the largest capex the budget allows in any year in
 // which the candidate link cand could be ordered and still serve within
-// the horizon (capexLimit), and false when some such year is uncapped or
+// the horizon (Budget.limit), and false when some such year is uncapped or
 // there is none. A build is paid in full in its order year, so one that
 // costs more than this can never be part of a plan within the budget.
 func (c *Case) buildBudget(cand *Candidate) (float64, bool) {
@@ -387,7 +376,7 @@ func (c *Case) buildBudget(cand *Candidate) (float64, bool) {
 	most, any := 0.0, false
 	for tau, s := range cand.InService {
 		if s < c.Horizon {
-			most, any = math.Max(most, c.capexLimit(tau)), true
+			most, any = math.Max(most, c.Budget.limit(tau)), true
 		}
 	}
 	return most, any && !math.IsInf(most, 1)
@@ -421,7 +410,7 @@ func (c *Case) unitOverBudget(ii int) (closest int, price float64, over bool) {
 			continue
 		}
 		p := (1 - maxDiscount) * it.Capex(tau, minKM)
-		limit := c.capexLimit(tau)
+		limit := c.Budget.limit(tau)
 		if p <= limit {
 			return 0, 0, false
 		}
