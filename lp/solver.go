@@ -582,6 +582,11 @@ func (s *Solver) Solve(ctx context.Context) Result {
 	if st != NumericalTrouble && st != Cancelled {
 		s.warm = true
 	}
+	if st == ObjectiveCutoff {
+		// The dual simplex keeps the reduced costs up to date but not the
+		// row multipliers; the cutoff's dual bound is worth their values.
+		s.computeDuals()
+	}
 	return s.result(st)
 }
 
