@@ -46,6 +46,12 @@
 //     depth 3 or less the caller's cuts are also separated anew, up to a
 //     hundred more. Each node stores only its own bound changes, chained
 //     to its parent's.
+//   - Proofs (proofs.go): a node whose LP bound reaches the cutoff, or a
+//     strong-branching child that does, leaves an inequality over the
+//     integer columns, aggregated from its LP's row multipliers and
+//     reduced costs, that every point better than the incumbent
+//     satisfies; before its LP each node checks the pool of such proofs,
+//     which prunes it or tightens its bounds.
 //   - Branching: reliability branching — pseudocosts with the product score,
 //     strong branching with an iteration cap on columns whose pseudocosts
 //     have fewer than 4 observations (common practice is about 8; 4 was
@@ -83,7 +89,10 @@
 // Meyer, Math. Programming 7, 1974), infeasible otherwise.
 //
 // References: Achterberg, Koch and Martin, "Branching rules revisited",
-// Oper. Res. Letters 33, 2005 (reliability branching); Nemhauser and
+// Oper. Res. Letters 33, 2005 (reliability branching); Witzig, Berthold
+// and Heinz, "Experiments with conflict analysis in mixed integer
+// programming", CPAIOR 2017 (proofs from the LP's multipliers, there
+// called dual proofs; from memory); Nemhauser and
 // Wolsey, Integer and Combinatorial Optimization, 1988 (Gomory mixed-integer
 // and cover inequalities).
 package mip

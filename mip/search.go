@@ -165,6 +165,9 @@ func (s *search) nextID() int { s.ids++; return s.ids }
 
 // finish turns the search state into a Result.
 func (s *search) finish() Result {
+	if proofUseHook != nil {
+		proofUseHook(s.proofPrunes, s.proofFixes)
+	}
 	s.joinHelper(s.stopped == TimeLimit || s.stopped == Cancelled)
 	if s.stopped == Finished || s.stopped == LPFailure {
 		if s.queue.Len() == 0 {

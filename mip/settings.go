@@ -202,6 +202,9 @@ type Settings struct {
 	NoHeuristics      bool
 	// NoRINS turns off the sub-MIP heuristic (rins.go).
 	NoRINS bool
+	// NoProofs turns off the proofs learnt from nodes pruned by their
+	// bound (proofs.go).
+	NoProofs bool
 
 	// Priority, when set (one value per column), orders the integer
 	// columns for branching: a node branches on a fractional column of the

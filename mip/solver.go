@@ -147,6 +147,12 @@ type search struct {
 
 	downLocks, upLocks []int
 
+	proofs      []proof // learnt from pruned nodes (proofs.go)
+	proofNZ     int
+	proofD      []float64 // scratch for learnProof
+	proofPrunes int       // nodes pruned by a proof before their LP
+	proofFixes  int       // bounds tightened by proofs
+
 	rootObj    float64
 	rootRedCst []float64 // root reduced costs, for global fixing when the incumbent improves
 	rootX      []float64

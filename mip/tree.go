@@ -95,6 +95,10 @@ func (s *search) processNode(nd *node, warm bool) (kids []*node, ok bool) {
 	if !s.prop.propagate(s.lo, s.up, changed, nil) {
 		return nil, true
 	}
+	if !s.applyProofs() {
+		s.notePruned(s.pruneLimit())
+		return nil, true
+	}
 	s.syncBounds()
 	if !warm && nd.basis != nil {
 		_ = s.lps.SetBasis(nd.basis.unpack(s.lps.NumRows()))
@@ -120,6 +124,7 @@ func (s *search) processNode(nd *node, warm bool) (kids []*node, ok bool) {
 		case lp.Infeasible:
 			return nil, true
 		case lp.ObjectiveCutoff:
+			s.learnProof(r)
 			s.notePruned(limit)
 			return nil, true
 		case lp.TimeLimit:
@@ -149,6 +154,7 @@ func (s *search) processNode(nd *node, warm bool) (kids []*node, ok bool) {
 		first = false
 		bound := math.Max(p.roundBound(r.Objective), nd.bound)
 		if bound >= s.pruneLimit() {
+			s.learnProof(r)
 			s.notePruned(bound)
 			return nil, true
 		}
@@ -316,6 +322,12 @@ func (s *search) chooseBranch(r lp.Result, frac []int, bound float64) branchChoi
 			s.lps.SetColBounds(j, lo, up)
 			downDead := rd.Status == lp.Infeasible || rd.Status == lp.ObjectiveCutoff
 			upDead := ru.Status == lp.Infeasible || ru.Status == lp.ObjectiveCutoff
+			if rd.Status == lp.ObjectiveCutoff {
+				s.learnChildProof(rd, j, lo, fl)
+			}
+			if ru.Status == lp.ObjectiveCutoff {
+				s.learnChildProof(ru, j, fl+1, up)
+			}
 			if rd.Status == lp.TimeLimit || rd.Status == lp.Cancelled || ru.Status == lp.TimeLimit || ru.Status == lp.Cancelled {
 				break
 			}
