@@ -52,7 +52,9 @@ type Result struct {
 	Objective *float64 `json:"objective"`
 	// Bound is a proven upper bound on the NPV (nil when none is known).
 	Bound *float64 `json:"bound"`
-	// Gap is |Bound − Objective| / max(|Objective|, 1) (nil without both).
+	// Gap is |Bound − Objective| / max(|Objective|, 1) (nil without both);
+	// for status optimal it is at most the gap asked for, where rounding
+	// in the recomputed NPV would put it a hair above.
 	Gap *float64 `json:"gap"`
 
 	// BaselineNPV is the NPV of the do-nothing plan, with its SLA penalty
