@@ -26,17 +26,17 @@ const benchGap = 1e-4
 // depends on timing) and at 600 s with 2.58 % (plan 8,288,791, bound
 // 8,502,388); CBC 2.10.8 on L's exported MPS stopped after 1,500 s of CPU
 // at 3.5 % (plan 8,231,483, found at 1,358 s; bound 8,522,099, its root's),
-// and the npm WebAssembly build of HiGHS 1.15.3 aborted on it. With the
-// flow cut-set rows of the separation, the same day, L ends its 60 s at
-// 2.68 and 2.72 % (two runs, alone on the machine): its root cut rounds
-// are not done by then, and when they are, their bound is only 0.07 %
-// lower (8,497,724 against 8,503,292). M reached 0.078 % after 3,025 s
-// (193,464 nodes; other runs shared the machine for its first 15
-// minutes) against 0.074 % after 3,000 s before them. The npm WebAssembly
-// build of HiGHS 1.15.3 proved M optimal at its default gap (model status
-// 7, optimal) in 1,817 s on its exported MPS, at 3,032,489.48, netstage's
-// best M plan (2026-12-04, one core, alone on the machine but for idle
-// shells), and CBC 2.10.8 had 0.53 % after 1,800 s.
+// and the npm WebAssembly build of HiGHS (package highs 1.15.3, HiGHS
+// 1.15.1) aborted on it. With the flow cut-set rows of the separation,
+// the same day, L ends its 60 s at 2.68 and 2.72 % (two runs, alone on
+// the machine): its root cut rounds are not done by then, and when they
+// are, their bound is only 0.07 % lower (8,497,724 against 8,503,292). M
+// reached 0.078 % after 3,025 s (193,464 nodes; other runs shared the
+// machine for its first 15 minutes) against 0.074 % after 3,000 s before
+// them. The same HiGHS build proved M optimal at its default gap (model
+// status 7, optimal) in 1,817 s on its exported MPS, at 3,032,489.48,
+// netstage's best M plan (2026-12-04, one core, alone on the machine but
+// for idle shells), and CBC 2.10.8 had 0.53 % after 1,800 s.
 func BenchmarkSolve(b *testing.B) {
 	benchSolve(b, SyntheticSizes, SolveOptions{Gap: benchGap, TimeLimit: benchTimeLimit})
 }
