@@ -50,8 +50,9 @@
 //     strong-branching child that does, leaves an inequality over the
 //     integer columns, aggregated from its LP's row multipliers and
 //     reduced costs, that every point better than the incumbent
-//     satisfies; before its LP each node checks the pool of such proofs,
-//     which prunes it or tightens its bounds.
+//     satisfies; an infeasible one leaves one from its LP's ray that
+//     every feasible point satisfies. Before its LP each node checks the
+//     pool of such proofs, which prunes it or tightens its bounds.
 //   - Branching: reliability branching — pseudocosts with the product score,
 //     strong branching with an iteration cap on columns whose pseudocosts
 //     have fewer than 4 observations (common practice is about 8; 4 was

@@ -50,32 +50,42 @@ func integerPoints(m *lp.Model) (xs [][]float64, objs []float64) {
 
 // correlatedKnapsack builds a binary program of 14 to 16 columns: two
 // knapsack rows whose profits follow the weights closely, a kind that
-// needs a real tree (the textbook hard case for branch-and-bound).
-func correlatedKnapsack(rng *rand.Rand) *lp.Model {
+// needs a real tree (the textbook hard case for branch-and-bound), and
+// with withCover a row of a third weight to reach.
+func correlatedKnapsack(rng *rand.Rand, withCover bool) *lp.Model {
 	m := lp.NewModel("knapsack")
 	m.Sense = lp.Maximize
 	n := 14 + rng.Intn(3)
 	w1 := make([]float64, n)
 	w2 := make([]float64, n)
+	w3 := make([]float64, n)
 	cols := make([]int, n)
-	sum1, sum2 := 0.0, 0.0
+	sum1, sum2, sum3 := 0.0, 0.0, 0.0
 	for j := 0; j < n; j++ {
 		w1[j] = float64(10 + rng.Intn(90))
 		w2[j] = float64(10 + rng.Intn(90))
+		w3[j] = float64(10 + rng.Intn(90))
 		sum1 += w1[j]
 		sum2 += w2[j]
+		sum3 += w3[j]
 		cols[j] = j
 		m.AddIntCol("x", w1[j]+w2[j]+float64(rng.Intn(11)), 0, 1)
 	}
 	m.AddRow("w1", math.Inf(-1), math.Round(sum1/2), cols, w1)
 	m.AddRow("w2", math.Inf(-1), math.Round(sum2/2), cols, w2)
+	if withCover {
+		// A third weight that the chosen items must reach: branches that
+		// drop too many items are infeasible.
+		m.AddRow("w3", math.Round(sum3*0.4), math.Inf(1), cols, w3)
+	}
 	return m
 }
 
 // TestProofsAgainstEnumeration checks every proof the search learns on
 // small random MIPs against all their integer points: each point whose
 // best completion is better than the cutoff in force when the proof was
-// learnt must satisfy it (proofs.go states why it must). It also checks
+// learnt must satisfy it, and every feasible point a proof from an
+// infeasible LP (proofs.go states why they must). It also checks
 // that the proofs were learnt and used in numbers, so that the check does
 // not pass empty, and that the answers match enumeration.
 func TestProofsAgainstEnumeration(t *testing.T) {
@@ -85,12 +95,12 @@ func TestProofsAgainstEnumeration(t *testing.T) {
 	}
 	var got []learnt
 	proofHook = func(pf proof, cutoff float64) { got = append(got, learnt{pf, cutoff}) }
-	checked, models, prunes, fixes := 0, 0, 0, 0
+	checked, models, prunes, fixes, farkas := 0, 0, 0, 0, 0
 	proofUseHook = func(p, f int) { prunes += p; fixes += f }
 	defer func() { proofHook, proofUseHook = nil, nil }()
 	for seed := 1; seed <= 60; seed++ {
 		rng := rand.New(rand.NewSource(int64(seed)))
-		m := correlatedKnapsack(rng)
+		m := correlatedKnapsack(rng, seed%3 != 0)
 		want, wantObj := bruteForce(m)
 		if want != Optimal {
 			continue
@@ -111,10 +121,13 @@ func TestProofsAgainstEnumeration(t *testing.T) {
 		models++
 		xs, objs := integerPoints(m)
 		for _, l := range got {
-			rhs := l.cutoff + l.pf.base
+			rhs := l.pf.rhs(l.cutoff)
+			if l.pf.farkas {
+				farkas++
+			}
 			for k, x := range xs {
-				if objs[k] > l.cutoff-1e-9*math.Max(1, math.Abs(l.cutoff)) {
-					continue
+				if !l.pf.farkas && objs[k] > l.cutoff-1e-9*math.Max(1, math.Abs(l.cutoff)) {
+					continue // an objective proof binds better points only
 				}
 				act := 0.0
 				for q, j := range l.pf.idx {
@@ -127,8 +140,8 @@ func TestProofsAgainstEnumeration(t *testing.T) {
 			}
 		}
 	}
-	t.Logf("%d models with proofs, %d point checks, %d nodes pruned and %d bounds tightened by proofs", models, checked, prunes, fixes)
-	if models < 20 || checked < 100 || prunes+fixes == 0 {
-		t.Errorf("too little exercised: %d models with proofs, %d point checks, %d prunes, %d fixes", models, checked, prunes, fixes)
+	t.Logf("%d models with proofs (%d proofs from infeasible LPs), %d point checks, %d nodes pruned and %d bounds tightened by proofs", models, farkas, checked, prunes, fixes)
+	if models < 20 || checked < 100 || prunes+fixes == 0 || farkas < 10 {
+		t.Errorf("too little exercised: %d models with proofs, %d from infeasible LPs, %d point checks, %d prunes, %d fixes", models, farkas, checked, prunes, fixes)
 	}
 }

@@ -122,6 +122,7 @@ func (s *search) processNode(nd *node, warm bool) (kids []*node, ok bool) {
 		switch r.Status {
 		case lp.Optimal:
 		case lp.Infeasible:
+			s.learnProof(r)
 			return nil, true
 		case lp.ObjectiveCutoff:
 			s.learnProof(r)
@@ -322,10 +323,10 @@ func (s *search) chooseBranch(r lp.Result, frac []int, bound float64) branchChoi
 			s.lps.SetColBounds(j, lo, up)
 			downDead := rd.Status == lp.Infeasible || rd.Status == lp.ObjectiveCutoff
 			upDead := ru.Status == lp.Infeasible || ru.Status == lp.ObjectiveCutoff
-			if rd.Status == lp.ObjectiveCutoff {
+			if downDead {
 				s.learnChildProof(rd, j, lo, fl)
 			}
-			if ru.Status == lp.ObjectiveCutoff {
+			if upDead {
 				s.learnChildProof(ru, j, fl+1, up)
 			}
 			if rd.Status == lp.TimeLimit || rd.Status == lp.Cancelled || ru.Status == lp.TimeLimit || ru.Status == lp.Cancelled {
