@@ -28,14 +28,19 @@ import (
 // Measured on the synthetic planning cases of 10 sites over 7 years (seeds
 // 1 to 16, proved to 1e-4, 2026-12-04): 3,583 nodes in all against 4,683
 // without proofs (4,084 with proofs from tree nodes only, not from
-// strong-branching children); no seed took more nodes. On the 25-site
-// 7-year case the first 3,000 nodes learnt 368 proofs of about 800
-// columns each, which tightened 31,427 bounds and pruned 4 nodes; over
-// the first 1,000 s its bound per node was about the same as without
-// them. The proofs from rays matter where budgets bind: the synthetic
-// 15-site 6-year cases of seeds 13 and 5 with a budget of 20,000 a year
-// proved in 208 and 162 nodes, against 561 and 1,049 with the objective
-// proofs alone and 673 and 989 without proofs.
+// strong-branching children); no seed took more nodes. The proofs from
+// rays matter where budgets bind: the synthetic 15-site 6-year cases of
+// seeds 13 and 5 with a budget of 20,000 a year proved in 208 and 162
+// nodes, against 561 and 1,049 with the objective proofs alone and 673
+// and 989 without proofs. On the 25-site 7-year case (M) the proofs run
+// to about 800 columns: its first 3,000 nodes learnt 368 of them, which
+// tightened 31,427 bounds and pruned 4 nodes, and took 82 to 87 s against
+// 80 s without (the checks at each node); over 2,400 s beside a run
+// without them, the bound per node was 60 to 80 better and the nodes
+// per second 11 % fewer, so the bound per second was worse. Hence
+// maxProofLen: at 400, M learns none and takes the path it took before,
+// while the cases above keep their gains (the 16 proofs take the same
+// 3,583 nodes; the budget cases 194 and 179).
 type proof struct {
 	idx  []int
 	val  []float64
@@ -55,10 +60,11 @@ func (pf *proof) rhs(limit float64) float64 {
 }
 
 // Proof pool limits: a proof is kept only when it has at most
-// maxProofLen columns, and the pool keeps the newest proofs up to
+// maxProofLen columns (longer ones cost more to check at every node than
+// they prune, see above), and the pool keeps the newest proofs up to
 // maxProofNonzeros nonzeros in all.
 const (
-	maxProofLen      = 2000
+	maxProofLen      = 400
 	maxProofNonzeros = 200000
 	// proofRelTol weakens a proof's right-hand side by this share of the
 	// magnitudes that went into it, against rounding in y and d.
