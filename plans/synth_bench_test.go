@@ -84,12 +84,54 @@ const benchNodes = 300
 // reports the gap, nodes, iterations and model size beside time and
 // allocations.
 func benchSolve(b *testing.B, sizes []SyntheticSize, opts SolveOptions) {
+	cases := make([]benchCase, len(sizes))
+	for k, sz := range sizes {
+		cases[k] = benchCase{name: sz.Name, sites: sz.Sites, years: sz.Years, seed: 1}
+	}
+	benchSolveCases(b, cases, opts)
+}
+
+// benchCase is a synthetic case of a benchmark, with an optional edit
+// applied after loading.
+type benchCase struct {
+	name         string
+	sites, years int
+	seed         int64
+	edit         func(*Case)
+}
+
+// BenchmarkSolveTightBudget proves two synthetic 15-site 6-year cases
+// (seeds 13 and 5) whose yearly capex budget is cut to 20,000, so that it
+// binds: infeasible node LPs are common there, unlike in the other
+// benchmark cases. Measured 2026-12-05, alone on the machine: 194 and 199
+// nodes, 2.6 and 2.2 s, against 753 and 1,805 nodes, 9.1 and 14.4 s,
+// before the search learnt proofs from pruned and infeasible nodes
+// (mip/proofs.go; build ec01997). CBC 2.10.8 takes 8 nodes on each of
+// the same cases edited in case.toml, 0.7 and 0.5 s (see DEVELOPERS.md).
+// Run: go test -run '^$' -bench SolveTightBudget -benchtime 1x ./plans
+func BenchmarkSolveTightBudget(b *testing.B) {
+	tight := func(c *Case) {
+		for i := range c.Budget.Yearly {
+			c.Budget.Yearly[i] = 20000
+		}
+	}
+	benchSolveCases(b, []benchCase{
+		{name: "15x6-seed13", sites: 15, years: 6, seed: 13, edit: tight},
+		{name: "15x6-seed5", sites: 15, years: 6, seed: 5, edit: tight},
+	}, SolveOptions{Gap: benchGap, TimeLimit: benchTimeLimit})
+}
+
+// benchSolveCases runs benchSolve's measurement on the given cases.
+func benchSolveCases(b *testing.B, cases []benchCase, opts SolveOptions) {
 	opts.SecondCore = true // as netstage solve runs
-	for _, sz := range sizes {
-		b.Run(sz.Name, func(b *testing.B) {
-			c, _, err := Load(writeSynthetic(b, sz.Sites, sz.Years, 1))
+	for _, sz := range cases {
+		b.Run(sz.name, func(b *testing.B) {
+			c, _, err := Load(writeSynthetic(b, sz.sites, sz.years, sz.seed))
 			if err != nil {
 				b.Fatal(err)
+			}
+			if sz.edit != nil {
+				sz.edit(c)
 			}
 			b.ReportAllocs()
 			b.ResetTimer()
@@ -102,7 +144,7 @@ func benchSolve(b *testing.B, sizes []SyntheticSize, opts SolveOptions) {
 			}
 			b.StopTimer()
 			if res.Status != StatusOptimal && res.Status != StatusFeasible {
-				b.Fatalf("%s: status %s", sz.Name, res.Status)
+				b.Fatalf("%s: status %s", sz.name, res.Status)
 			}
 			if res.Gap != nil {
 				b.ReportMetric(*res.Gap, "gap")
