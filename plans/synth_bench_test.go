@@ -106,8 +106,9 @@ type benchCase struct {
 // benchmark cases. Measured 2026-12-05, alone on the machine: 194 and 199
 // nodes, 2.6 and 2.2 s, against 753 and 1,805 nodes, 9.1 and 14.4 s,
 // before the search learnt proofs from pruned and infeasible nodes
-// (mip/proofs.go; build ec01997). CBC 2.10.8 takes 8 nodes on each of
-// the same cases edited in case.toml, 0.7 and 0.5 s (see DEVELOPERS.md).
+// (mip/proofs.go; build ec01997). With the budget cut in case.toml
+// instead (capex_per_year = 20000), netstage takes 194 and 179 nodes and
+// CBC 2.10.8 8 on each, 0.7 and 0.5 s (see DEVELOPERS.md).
 // Run: go test -run '^$' -bench SolveTightBudget -benchtime 1x ./plans
 func BenchmarkSolveTightBudget(b *testing.B) {
 	tight := func(c *Case) {
