@@ -21,18 +21,7 @@ import (
 // the optimum in the model's sense.
 func bruteForce(m *lp.Model) (Status, float64) {
 	n := m.NumCols()
-	var ints, conts []int
-	for j := 0; j < n; j++ {
-		if m.Integer[j] {
-			ints = append(ints, j)
-		} else {
-			conts = append(conts, j)
-		}
-	}
-	sign := 1.0
-	if m.Sense == lp.Maximize {
-		sign = -1
-	}
+	ints, conts, sign := splitColumns(m)
 	best := math.Inf(1)
 	found := false
 	x := make([]float64, n)
@@ -66,6 +55,23 @@ func bruteForce(m *lp.Model) (Status, float64) {
 		return Infeasible, 0
 	}
 	return Optimal, sign*best + m.Constant
+}
+
+// splitColumns lists m's integer and continuous columns, with the sign
+// that turns its objective into a minimisation.
+func splitColumns(m *lp.Model) (ints, conts []int, sign float64) {
+	for j := 0; j < m.NumCols(); j++ {
+		if m.Integer[j] {
+			ints = append(ints, j)
+		} else {
+			conts = append(conts, j)
+		}
+	}
+	sign = 1
+	if m.Sense == lp.Maximize {
+		sign = -1
+	}
+	return ints, conts, sign
 }
 
 // continuousLP minimises sign·c·x over the continuous columns with the
@@ -283,7 +289,7 @@ func randomMIP(rng *rand.Rand) *lp.Model {
 
 // TestRandomAgainstBruteForce compares the search with enumeration on tiny
 // random MIPs (fixed seeds), cycling through setting variants so that cuts,
-// strong branching and heuristics are each on and off somewhere, and
+// strong branching, heuristics and proofs are each on and off somewhere, and
 // giving every third case random branching priorities.
 func TestRandomAgainstBruteForce(t *testing.T) {
 	count := 1000
@@ -294,7 +300,7 @@ func TestRandomAgainstBruteForce(t *testing.T) {
 		{RelGap: 1e-9, AbsGap: 1e-9},
 		{RelGap: 1e-9, AbsGap: 1e-9, NoCuts: true},
 		{RelGap: 1e-9, AbsGap: 1e-9, NoStrongBranching: true, NoHeuristics: true},
-		{RelGap: 1e-9, AbsGap: 1e-9, NoCuts: true, NoStrongBranching: true},
+		{RelGap: 1e-9, AbsGap: 1e-9, NoCuts: true, NoStrongBranching: true, NoProofs: true},
 	}
 	tally := map[Status]int{}
 	for seed := 1; seed <= count; seed++ {

@@ -85,34 +85,32 @@ func (s *search) learnProof(r lp.Result) {
 	if s.set.NoProofs || len(y) != len(s.rows) || (!farkas && math.IsInf(s.pruneLimit(), 1)) {
 		return
 	}
-	d := s.proofD[:0]
+	d := append(s.proofD[:0], p.obj...)
 	if farkas {
 		// A ray proves that no x in the node's box has A·x within the row
 		// bounds: the same aggregation without the objective.
-		d = append(d, make([]float64, p.n)...)
-	} else {
-		d = append(d, p.obj...)
+		clear(d)
 	}
 	k, mag := 0.0, 0.0
-	for i, y := range y {
-		if y == 0 {
+	for i, yi := range y {
+		if yi == 0 {
 			continue
 		}
 		row := s.rows[i]
 		side := row.lower
-		if y < 0 {
+		if yi < 0 {
 			side = row.upper
 		}
 		if math.IsInf(side, 0) {
-			if math.Abs(y) > 1e-9 {
+			if math.Abs(yi) > 1e-9 {
 				return // a multiplier on a side the row does not have
 			}
 			continue
 		}
-		k += y * side
-		mag += math.Abs(y * side)
+		k += yi * side
+		mag += math.Abs(yi * side)
 		for q, j := range row.idx {
-			d[j] -= y * row.val[q]
+			d[j] -= yi * row.val[q]
 		}
 	}
 	s.proofD = d

@@ -14,21 +14,9 @@ import (
 // best objective of a completion in the search's internal sense
 // (minimisation, constant included).
 func integerPoints(m *lp.Model) (xs [][]float64, objs []float64) {
-	n := m.NumCols()
-	var ints, conts []int
-	for j := 0; j < n; j++ {
-		if m.Integer[j] {
-			ints = append(ints, j)
-		} else {
-			conts = append(conts, j)
-		}
-	}
-	sign := 1.0
-	if m.Sense == lp.Maximize {
-		sign = -1
-	}
+	ints, conts, sign := splitColumns(m)
 	rows := m.Rows()
-	x := make([]float64, n)
+	x := make([]float64, m.NumCols())
 	var rec func(k int)
 	rec = func(k int) {
 		if k < len(ints) {

@@ -203,7 +203,7 @@ type Settings struct {
 	// NoRINS turns off the sub-MIP heuristic (rins.go).
 	NoRINS bool
 	// NoProofs turns off the proofs learnt from nodes pruned by their
-	// bound (proofs.go).
+	// bound or infeasible (proofs.go).
 	NoProofs bool
 
 	// Priority, when set (one value per column), orders the integer

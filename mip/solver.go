@@ -147,7 +147,7 @@ type search struct {
 
 	downLocks, upLocks []int
 
-	proofs      []proof // learnt from pruned nodes (proofs.go)
+	proofs      []proof // learnt from pruned and infeasible nodes (proofs.go)
 	proofNZ     int
 	proofD      []float64 // scratch for learnProof
 	proofPrunes int       // nodes pruned by a proof before their LP
