@@ -572,7 +572,10 @@ func (s *Solver) RestoreState(st *State) {
 // ReducedCost ≥ 0, at its upper bound ≤ 0; a row at its lower bound (a
 // binding ≥ row) has Dual ≥ 0, at its upper bound ≤ 0. For a maximisation
 // every one of these signs flips. Values not Optimal (limits, cutoff) are
-// those of the last iterate.
+// those of the last iterate, with one exception: after a limit Dual and
+// ReducedCost may belong to an earlier basis, as the dual simplex keeps
+// only the reduced costs current (at a cutoff they are recomputed for the
+// final basis).
 func (s *Solver) Solve(ctx context.Context) Result {
 	if ctx == nil {
 		ctx = context.Background()

@@ -202,49 +202,28 @@ func (s *search) learnChildProof(r lp.Result, j int, lo, up float64) {
 
 // applyProofs checks the pool against the current domain (s.lo, s.up):
 // it reports false when a proof shows that no better point lies in it,
-// and otherwise tightens integer bounds the proofs imply, propagating each
-// tightening through the rows.
+// and otherwise tightens the integer bounds the proofs imply (each proof
+// is a row Σ val·x ≤ rhs to the propagator), propagating each tightening
+// through the model's rows.
 func (s *search) applyProofs() bool {
 	if len(s.proofs) == 0 {
 		return true
 	}
 	limit := s.pruneLimit()
+	var changed []int
+	note := func(j int) {
+		changed = append(changed, j)
+		s.proofFixes++
+	}
 	for round := 0; round < 3; round++ {
-		var changed []int
+		changed = changed[:0]
 		for _, pf := range s.proofs {
 			if !pf.farkas && math.IsInf(limit, 1) {
 				continue
 			}
-			rhs := pf.rhs(limit)
-			minAct, _, minInf, _ := rowActivity(pf.idx, pf.val, s.lo, s.up)
-			if minInf > 0 {
-				continue
-			}
-			slack := rhs - minAct
-			if slack < -infeasTol*math.Max(1, math.Abs(rhs)) {
+			if !s.prop.propagateRow(pf.idx, pf.val, math.Inf(-1), pf.rhs(limit), s.lo, s.up, note) {
 				s.proofPrunes++
 				return false
-			}
-			for q, j := range pf.idx {
-				a := pf.val[q]
-				if s.lo[j] == s.up[j] {
-					continue
-				}
-				if a > 0 {
-					nu := math.Floor(s.lo[j] + math.Max(slack, 0)/a + boundTol)
-					if nu < s.up[j] {
-						s.up[j] = math.Max(nu, s.lo[j])
-						changed = append(changed, j)
-						s.proofFixes++
-					}
-				} else {
-					nl := math.Ceil(s.up[j] - math.Max(slack, 0)/(-a) - boundTol)
-					if nl > s.lo[j] {
-						s.lo[j] = math.Min(nl, s.up[j])
-						changed = append(changed, j)
-						s.proofFixes++
-					}
-				}
 			}
 		}
 		if len(changed) == 0 {

@@ -373,13 +373,13 @@ func (c *Case) buildBudget(cand *Candidate) (float64, bool) {
 	if cand == nil {
 		return 0, false
 	}
-	most, any := 0.0, false
+	most, found := 0.0, false
 	for tau, s := range cand.InService {
 		if s < c.Horizon {
-			most, any = math.Max(most, c.Budget.limit(tau)), true
+			most, found = math.Max(most, c.Budget.limit(tau)), true
 		}
 	}
-	return most, any && !math.IsInf(most, 1)
+	return most, found && !math.IsInf(most, 1)
 }
 
 // unitOverBudget reports whether one unit of module item ii costs more
@@ -404,9 +404,12 @@ func (c *Case) unitOverBudget(ii int) (closest int, price float64, over bool) {
 			minKM = math.Min(minKM, l.KM)
 		}
 	}
+	if math.IsInf(minKM, 1) {
+		return 0, 0, false // fits no link (loading refuses such an item)
+	}
 	closest, margin := -1, math.Inf(1)
 	for tau, s := range it.InService {
-		if s >= c.Horizon || math.IsInf(minKM, 1) {
+		if s >= c.Horizon {
 			continue
 		}
 		p := (1 - maxDiscount) * it.Capex(tau, minKM)
