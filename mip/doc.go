@@ -24,7 +24,11 @@
 //     tightened where the row is redundant at one of the column's values
 //     (same integer points, tighter LP); incumbents are always checked
 //     against the caller's untouched model.
-//   - Root: activity-based bound propagation, the LP relaxation, rounds of
+//   - Root: activity-based bound propagation, then once more with the
+//     continuous columns tightened too (on a copy: the integer columns keep
+//     what a chain of rows through continuous columns implies, such as a
+//     budget over spend columns that each cover priced units), the LP
+//     relaxation, rounds of
 //     sequentially lifted knapsack cover cuts on the rows and Gomory
 //     mixed-integer cuts on tableau rows (at most maxGomoryNonzeros
 //     nonzeros: denser rows slow every later iteration), plus the caller's own cuts

@@ -5,9 +5,9 @@ import "math"
 // propagator tightens integer column bounds from row activities: for a row
 // L ≤ a·x ≤ U, each term a_j·x_j is bounded by U minus the smallest
 // activity of the other terms (and by L minus the largest). Continuous
-// columns take part in activities but keep their bounds, so that the LP sees
-// no tiny tightenings. An extra objective row c·x ≤ cutoff is used when a
-// cutoff is set.
+// columns take part in activities but keep their bounds (unless continuous
+// is set), so that the LP sees no tiny tightenings. An extra objective row
+// c·x ≤ cutoff is used when a cutoff is set.
 type propagator struct {
 	p      *problem
 	inRow  []bool // row queued
@@ -15,6 +15,9 @@ type propagator struct {
 	cutoff float64 // objective cutoff (internal sense, constant removed); +Inf for none
 	objIdx []int   // the objective as a row, built on first use
 	objVal []float64
+	// continuous makes propagateRow tighten continuous columns too (see
+	// impliedBounds); off, they keep their bounds.
+	continuous bool
 }
 
 // infeasTol is the relative amount by which a row's activity range must
@@ -174,7 +177,7 @@ func (pr *propagator) propagateRow(idx []int, val []float64, rl, ru float64, lo,
 		return true
 	}
 	for k, j := range idx {
-		if !p.isInt[j] || lo[j] == up[j] {
+		if lo[j] == up[j] || !p.isInt[j] && !pr.continuous {
 			continue
 		}
 		a := val[k]
@@ -201,9 +204,9 @@ func (pr *propagator) propagateRow(idx []int, val []float64, rl, ru float64, lo,
 			if ok {
 				lim := (ru - res) / a
 				if a > 0 {
-					newUp = math.Min(newUp, math.Floor(lim+boundTol*math.Max(1, math.Abs(lim))))
+					newUp = math.Min(newUp, pr.roundUp(j, lim))
 				} else {
-					newLo = math.Max(newLo, math.Ceil(lim-boundTol*math.Max(1, math.Abs(lim))))
+					newLo = math.Max(newLo, pr.roundLo(j, lim))
 				}
 			}
 		}
@@ -218,10 +221,18 @@ func (pr *propagator) propagateRow(idx []int, val []float64, rl, ru float64, lo,
 			if ok {
 				lim := (rl - res) / a
 				if a > 0 {
-					newLo = math.Max(newLo, math.Ceil(lim-boundTol*math.Max(1, math.Abs(lim))))
+					newLo = math.Max(newLo, pr.roundLo(j, lim))
 				} else {
-					newUp = math.Min(newUp, math.Floor(lim+boundTol*math.Max(1, math.Abs(lim))))
+					newUp = math.Min(newUp, pr.roundUp(j, lim))
 				}
+			}
+		}
+		if !p.isInt[j] {
+			// a continuous column takes only tightenings worth having:
+			// small steps would repeat round after round
+			newLo, newUp = worthwhile(lo[j], up[j], newLo, newUp)
+			if newLo > newUp && newLo-newUp <= boundTol*math.Max(1, math.Abs(newUp)) {
+				newLo = newUp
 			}
 		}
 		if newLo > newUp {
@@ -245,6 +256,71 @@ func (pr *propagator) propagateRow(idx []int, val []float64, rl, ru float64, lo,
 			canUp = !math.IsInf(ru, 1) && minInf <= 1
 			canLo = !math.IsInf(rl, -1) && maxInf <= 1
 			tightened(j)
+		}
+	}
+	return true
+}
+
+// roundUp turns a limit on column j from above into its new upper bound:
+// rounded down for an integer column, with slack boundTol either way.
+func (pr *propagator) roundUp(j int, lim float64) float64 {
+	if pr.p.isInt[j] {
+		return math.Floor(lim + boundTol*math.Max(1, math.Abs(lim)))
+	}
+	return lim + boundTol*math.Max(1, math.Abs(lim))
+}
+
+// roundLo is roundUp for a limit from below.
+func (pr *propagator) roundLo(j int, lim float64) float64 {
+	if pr.p.isInt[j] {
+		return math.Ceil(lim - boundTol*math.Max(1, math.Abs(lim)))
+	}
+	return lim - boundTol*math.Max(1, math.Abs(lim))
+}
+
+// minContinuousStep is the least tightening of a continuous bound that
+// propagation takes, as a share of the old domain's width (or of the
+// new bound's size when the old one was infinite).
+const minContinuousStep = 1e-3
+
+// worthwhile keeps the new bounds of a continuous column only where they
+// tighten the old ones by minContinuousStep or more.
+func worthwhile(lo, up, newLo, newUp float64) (float64, float64) {
+	width := up - lo
+	step := func(nw float64) float64 {
+		if math.IsInf(width, 1) {
+			return minContinuousStep * math.Max(1, math.Abs(nw))
+		}
+		return minContinuousStep * math.Max(width, 1e-9)
+	}
+	if newLo > lo && newLo-lo < step(newLo) {
+		newLo = lo
+	}
+	if newUp < up && up-newUp < step(newUp) {
+		newUp = up
+	}
+	return newLo, newUp
+}
+
+// impliedBounds tightens the integer columns of lo/up by a propagation that
+// also tightens the continuous columns on a copy of the domain: a chain of
+// rows through continuous columns (a budget row over spend columns, each
+// the sum of priced unit columns) then bounds the integer columns at its
+// end, which propagation over integer columns alone cannot do. The
+// continuous bounds are not kept, so the LP sees the model's own. It
+// returns false, changing nothing, when it finds the domain empty.
+func (pr *propagator) impliedBounds(lo, up []float64) bool {
+	clo := append([]float64(nil), lo...)
+	cup := append([]float64(nil), up...)
+	pr.continuous = true
+	ok := pr.propagate(clo, cup, nil, nil)
+	pr.continuous = false
+	if !ok {
+		return false
+	}
+	for j, isInt := range pr.p.isInt {
+		if isInt {
+			lo[j], up[j] = clo[j], cup[j]
 		}
 	}
 	return true

@@ -75,6 +75,10 @@ func (s *search) run(starts [][]float64) Result {
 	if !s.prop.propagate(s.glo, s.gup, nil, nil) {
 		return s.result(Infeasible)
 	}
+	// Through continuous columns too. Should it find the domain empty, the
+	// root LP is left to say so: its tolerances are the continuous
+	// columns' own.
+	s.prop.impliedBounds(s.glo, s.gup)
 	copy(s.lo, s.glo)
 	copy(s.up, s.gup)
 	s.syncBounds()

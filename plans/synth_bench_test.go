@@ -103,12 +103,15 @@ type benchCase struct {
 // BenchmarkSolveTightBudget proves two synthetic 15-site 6-year cases
 // (seeds 13 and 5) whose yearly capex budget is cut to 20,000, so that it
 // binds: infeasible node LPs are common there, unlike in the other
-// benchmark cases. Measured 2026-12-05, alone on the machine: 194 and 199
-// nodes, 2.6 and 2.2 s, against 753 and 1,805 nodes, 9.1 and 14.4 s,
-// before the search learnt proofs from pruned and infeasible nodes
-// (mip/proofs.go; build ec01997). With the budget cut in case.toml
-// instead (capex_per_year = 20000), netstage takes 194 and 179 nodes and
-// CBC 2.10.8 8 on each, 0.7 and 0.5 s (see DEVELOPERS.md).
+// benchmark cases. Measured 2026-12-05, alone on the machine: 13 and 14
+// nodes, 0.38 and 0.41 s, since the root propagation follows the budget
+// rows through the continuous spend columns to the unit columns
+// (mip.propagator.impliedBounds); 194 and 199 nodes, 2.6 and 2.2 s before
+// that, and 753 and 1,805 nodes, 9.1 and 14.4 s, before the search learnt
+// proofs from pruned and infeasible nodes (mip/proofs.go; build ec01997).
+// With the budget cut in case.toml instead (capex_per_year = 20000),
+// netstage takes 13 nodes on each, 0.47 and 0.59 s (194 and 179 nodes
+// before), and CBC 2.10.8 8 on each, 0.7 and 0.5 s (see DEVELOPERS.md).
 // Run: go test -run '^$' -bench SolveTightBudget -benchtime 1x ./plans
 func BenchmarkSolveTightBudget(b *testing.B) {
 	tight := func(c *Case) {
