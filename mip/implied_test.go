@@ -82,6 +82,16 @@ func TestImpliedBoundsChain(t *testing.T) {
 	if pr.continuous {
 		t.Error("impliedBounds left the propagator tightening continuous columns")
 	}
+
+	// Three units of y1 cost 90, over the budget: the chain finds the
+	// domain empty, and impliedBounds reports it and changes nothing.
+	lo[y1], up[y1], up[y2] = 3, 5, 5
+	if pr.impliedBounds(lo, up) {
+		t.Error("impliedBounds accepted y1 ≥ 3 under a budget of 70 at 30 a unit")
+	}
+	if lo[y1] != 3 || up[y1] != 5 || up[y2] != 5 {
+		t.Errorf("a failed impliedBounds changed the domain: y1 [%v, %v], y2 up %v", lo[y1], up[y1], up[y2])
+	}
 }
 
 // TestImpliedBoundsAgainstEnumeration checks the tightening on random
