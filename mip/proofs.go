@@ -30,17 +30,18 @@ import (
 // without proofs (4,084 with proofs from tree nodes only, not from
 // strong-branching children); no seed took more nodes. The proofs from
 // rays matter where budgets bind: the synthetic 15-site 6-year cases of
-// seeds 13 and 5 with a budget of 20,000 a year proved in 208 and 162
+// seeds 13 and 5 with a budget of 20,000 a year proved in 194 and 179
 // nodes, against 561 and 1,049 with the objective proofs alone and 673
-// and 989 without proofs. On the 25-site 7-year case (M) the proofs run
-// to about 800 columns: its first 3,000 nodes learnt 368 of them, which
-// tightened 31,427 bounds and pruned 4 nodes, and took 82 to 87 s against
-// 80 s without (the checks at each node); over 2,400 s beside a run
-// without them, the bound per node was 60 to 80 better and the nodes
-// per second 11 % fewer, so the bound per second was worse. Hence
-// maxProofLen: at 400, M learns none and takes the path it took before,
-// while the cases above keep their gains (the 16 proofs take the same
-// 3,583 nodes; the budget cases 194 and 179).
+// and 989 without proofs (since 2026-12-05 the root propagation bounds
+// the units the budget cannot pay for, and they take 13 nodes each). On
+// the 25-site 7-year case (M) the proofs run to about 800 columns: its
+// first 3,000 nodes learnt 368 of them, which tightened 31,427 bounds and
+// pruned 4 nodes, and took 82 to 87 s against 80 s without (the checks
+// at each node); over 2,400 s beside a run without them, the bound per
+// node was 60 to 80 better and the nodes per second 11 % fewer, so the
+// bound per second was worse. Hence maxProofLen: at 400, M learns none
+// and takes the path it took before, while the cases above keep their
+// gains.
 type proof struct {
 	idx  []int
 	val  []float64

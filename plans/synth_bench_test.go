@@ -36,7 +36,9 @@ const benchGap = 1e-4
 // them. The same HiGHS build proved M optimal at its default gap (model
 // status 7, optimal) in 1,817 s on its exported MPS, at 3,032,489.48,
 // netstage's best M plan (2026-12-04, one core, alone on the machine but
-// for idle shells), and CBC 2.10.8 had 0.53 % after 1,800 s.
+// for idle shells; reproduced 2026-12-05 in 1,969 s and 25,689 nodes
+// with CBC on the other core), and CBC 2.10.8 had 0.53 % after 1,800 s
+// (0.52 % on 2026-12-05: plan 3,029,680, bound 3,045,332).
 func BenchmarkSolve(b *testing.B) {
 	benchSolve(b, SyntheticSizes, SolveOptions{Gap: benchGap, TimeLimit: benchTimeLimit})
 }
@@ -103,9 +105,10 @@ type benchCase struct {
 // BenchmarkSolveTightBudget proves two synthetic 15-site 6-year cases
 // (seeds 13 and 5) and the M case (25 sites, 7 years, seed 1) whose
 // yearly capex budget is cut to 20,000, so that it binds: infeasible node
-// LPs are common there, unlike in the other benchmark cases. Measured 2026-12-05, alone on the machine: 13 and 14
-// nodes, 0.38 and 0.41 s, since the root propagation follows the budget
-// rows through the continuous spend columns to the unit columns
+// LPs are common there, unlike in the other benchmark cases. Measured
+// 2026-12-05, alone on the machine: 13 and 14 nodes, 0.35 to 0.38 and
+// 0.41 to 0.44 s (three runs), since the root propagation follows the
+// budget rows through the continuous spend columns to the unit columns
 // (mip.propagator.impliedBounds); 194 and 199 nodes, 2.6 and 2.2 s before
 // that, and 753 and 1,805 nodes, 9.1 and 14.4 s, before the search learnt
 // proofs from pruned and infeasible nodes (mip/proofs.go; build ec01997).
@@ -113,9 +116,10 @@ type benchCase struct {
 // netstage takes 13 nodes on each, 0.47 and 0.59 s (194 and 179 nodes
 // before), and CBC 2.10.8 8 on each, 0.7 and 0.5 s (see DEVELOPERS.md).
 // The 25-site case proves in 722 nodes, 20.7 s (CBC 2.10.8 on its
-// exported MPS: 726 nodes, 19.5 s, same optimum); the build before the
-// implied bounds, run with one core for 120 s beside another solve, had
-// a gap of 0.40 % left (980 nodes) where this build proved it in 40 s.
+// exported MPS: 726 nodes, 19.5 s; HiGHS 1.15.1, npm WebAssembly: 23.5 s;
+// same optimum); the build before the implied bounds, run with one core
+// for 120 s beside another solve, had a gap of 0.40 % left (980 nodes)
+// where this build proved it in 40 s.
 // Run: go test -run '^$' -bench SolveTightBudget -benchtime 1x ./plans
 func BenchmarkSolveTightBudget(b *testing.B) {
 	tight := func(c *Case) {
