@@ -23,7 +23,10 @@
 //   - Presolve: coefficients of binary columns in one-sided rows are
 //     tightened where the row is redundant at one of the column's values
 //     (same integer points, tighter LP); incumbents are always checked
-//     against the caller's untouched model.
+//     against the caller's untouched model. Integer columns that an
+//     equality over other integer columns fixes (findImplied) are left
+//     free when a candidate's continuous part is completed by LP, so a
+//     candidate that left them stale is not lost.
 //   - Root: activity-based bound propagation, then once more with the
 //     continuous columns tightened too (on a copy: the integer columns keep
 //     what a chain of rows through continuous columns implies, such as a

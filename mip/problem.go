@@ -25,6 +25,10 @@ type problem struct {
 	cols     *lp.Sparse
 	nInt     int
 
+	// implied marks the integer columns that the other integer columns
+	// fix (see findImplied): a candidate's completion leaves them free.
+	implied []bool
+
 	// objStep > 0 when every integer point has an objective in
 	// constant + objStep·ℤ (integer costs on integer columns only); node
 	// bounds may then be rounded up to that lattice.
@@ -79,7 +83,46 @@ func newProblem(m *lp.Model, intTol float64) (*problem, bool) {
 	p.rows = w.Rows()
 	p.cols = w.Columns()
 	p.objStep = objectiveStep(p.obj, p.isInt)
+	p.implied = findImplied(p)
 	return p, feasible
+}
+
+// findImplied marks the integer columns whose value the other integer
+// columns fix: a column in one row only, with coefficient ±1, where that
+// row is an equality with an integer side over integer columns with
+// integer coefficients, none of them marked. Once the others take integer
+// values the row leaves such a column one value, an integer. A candidate
+// point whose rounding left it stale is then completed with it free
+// (complete) instead of being lost. Nil when there are none.
+func findImplied(p *problem) []bool {
+	var implied []bool
+	isWhole := func(v float64) bool { return math.Abs(v-math.Round(v)) <= 1e-12*math.Max(1, math.Abs(v)) }
+	for j := 0; j < p.n; j++ {
+		if !p.isInt[j] || p.cols.Start[j+1]-p.cols.Start[j] != 1 {
+			continue
+		}
+		q := p.cols.Start[j]
+		i, a := p.cols.Index[q], p.cols.Value[q]
+		if math.Abs(a) != 1 || p.rowLower[i] != p.rowUpper[i] || !isWhole(p.rowLower[i]) {
+			continue
+		}
+		ok := true
+		for r := p.rows.Start[i]; r < p.rows.Start[i+1]; r++ {
+			k := p.rows.Index[r]
+			if k != j && (!p.isInt[k] || !isWhole(p.rows.Value[r]) || (implied != nil && implied[k])) {
+				ok = false
+				break
+			}
+		}
+		if !ok {
+			continue
+		}
+		if implied == nil {
+			implied = make([]bool, p.n)
+		}
+		implied[j] = true
+	}
+	return implied
 }
 
 // objectiveStep returns the gcd of the objective coefficients when all of

@@ -394,8 +394,9 @@ func (s *search) tryCandidate(x []float64) bool {
 	return true
 }
 
-// complete fixes the integer columns of y and solves the LP over the
-// continuous ones. It returns the completed point and the LP's optimal
+// complete fixes the integer columns of y, except those an equality sets
+// from the others (problem.implied), and solves the LP over the rest. It
+// returns the completed point and the LP's optimal
 // basis when the point is feasible.
 func (s *search) complete(y []float64) ([]float64, *lp.Basis, bool) {
 	p := s.p
@@ -418,6 +419,11 @@ func (s *search) complete(y []float64) ([]float64, *lp.Basis, bool) {
 	}
 	for j := 0; j < p.n; j++ {
 		if p.isInt[j] {
+			if p.implied != nil && p.implied[j] {
+				// Its row sets it from the others (findImplied).
+				s.completion.SetColBounds(j, p.work.ColLower[j], p.work.ColUpper[j])
+				continue
+			}
 			v := y[j]
 			if v < p.work.ColLower[j] || v > p.work.ColUpper[j] {
 				return nil, nil, false
@@ -446,7 +452,11 @@ func (s *search) complete(y []float64) ([]float64, *lp.Basis, bool) {
 	}
 	z := append([]float64(nil), r.X...)
 	for j := 0; j < p.n; j++ {
-		if p.isInt[j] {
+		switch {
+		case !p.isInt[j]:
+		case p.implied != nil && p.implied[j]:
+			z[j] = math.Round(z[j]) // whole, its row says, up to the LP's rounding
+		default:
 			z[j] = y[j]
 		}
 	}

@@ -961,3 +961,45 @@ func TestImproveNoWaitUnderTimeLimit(t *testing.T) {
 			r.Status, r.Nodes, took, calls)
 	}
 }
+
+// TestImpliedCompletion: a column that an equality row over integer
+// columns fixes (k = y1 + 2·y2) is found by findImplied, and a start that
+// left it stale is completed with it free, not lost. By construction: max
+// 5·y1 + 4·y2 with 6·y1 + 4·y2 ≤ 9 has its integer optimum 8 at y2 = 2,
+// where k = 4; the LP optimum (y2 = 2.25) is fractional, so with one node
+// and no heuristics the search has only the start. Columns that an
+// equality does not fix whole stay unmarked: q, equal to a continuous
+// column, and r, in two rows.
+func TestImpliedCompletion(t *testing.T) {
+	m := lp.NewModel("implied")
+	m.Sense = lp.Maximize
+	y1 := m.AddIntCol("y1", 5, 0, 3)
+	y2 := m.AddIntCol("y2", 4, 0, 3)
+	k := m.AddIntCol("k", 0, 0, 9)
+	q := m.AddIntCol("q", 0, 0, 9)
+	z := m.AddCol("z", 0, 0, 9)
+	r := m.AddIntCol("r", 0, 0, 9)
+	m.AddRow("knap", -lp.Inf, 9, []int{y1, y2}, []float64{6, 4})
+	m.AddRow("count", 0, 0, []int{k, y1, y2}, []float64{1, -1, -2})
+	m.AddRow("cont", 0, 0, []int{q, z}, []float64{1, -1})
+	m.AddRow("r1", 0, 0, []int{r, y1}, []float64{1, -1})
+	m.AddRow("r2", -lp.Inf, 3, []int{r, y2}, []float64{1, 1})
+	p, ok := newProblem(m, DefaultIntTol)
+	if !ok {
+		t.Fatal("newProblem: infeasible bounds")
+	}
+	for j, want := range []bool{false, false, true, false, false, false} {
+		if got := p.implied != nil && p.implied[j]; got != want {
+			t.Errorf("column %s: implied %v, want %v", m.ColName[j], got, want)
+		}
+	}
+	start := []float64{0, 2, 0, 0, 0, 0} // k left at 0: violates "count"
+	res, err := Solve(context.Background(), m, Settings{Start: start, NodeLimit: 1, NoHeuristics: true, NoCuts: true})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if res.X == nil || res.Objective != 8 || res.X[k] != 4 {
+		t.Fatalf("status %v objective %v x %v: want the start completed to k = 4, objective 8", res.Status, res.Objective, res.X)
+	}
+	checkIncumbent(t, m, res)
+}
