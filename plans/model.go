@@ -34,6 +34,7 @@ const moneyScale = 1000
 //	spend   S[v,τ,g,k] ≥ 0         per vendor-year: G·(tiers+1) continuous, list spend in thousands
 //	count   N[v,τ,k] ≥ 0           per vendor-year: tiers+1   continuous, units (unit-based tiers only)
 //	vendor  w[g,v] ∈ {0,1}         per one-vendor group: its vendors  integer, g's chosen vendor ([case] one_vendor)
+//	steps   k[l,t] ∈ ℤ             ≤ |links|·T                integer, capacity in service in steps (addSteps)
 //
 // Rows:
 //
@@ -49,6 +50,7 @@ const moneyScale = 1000
 //	one vendor    Σ_v w[g,v] ≤ 1; y[o,last] ≤ max·w[g,vendor(o)]     per one-vendor group: 1 + its options
 //	cut-set       MIR roundings of site, linked-pair and ball cuts ≤ 6·(3·|sites| + |links|)·T
 //	              (see addCutSets)
+//	steps         k[l,t] − Σ_o (Gbps_o/g_l)·y[o, in service by t] = 0   one per step column
 //
 // So a case with n sites, m links, K demands and T years has about
 // 2·n·m·T flow columns and n²·T conservation rows: polynomial, never one
@@ -88,6 +90,8 @@ type Model struct {
 	shortfall [][]int
 	elastic   []elasticSlack
 
+	// steps lists the capacity step columns (model_steps.go).
+	steps []step
 	// cutRows lists the cut-set rows.
 	cutRows []int
 	// vendorChoices holds the one-vendor choices ([case] one_vendor).
@@ -171,6 +175,10 @@ type BuildOptions struct {
 	// NoCutSets leaves out the cut-set inequalities (valid inequalities:
 	// the optimum is the same, the search usually longer).
 	NoCutSets bool
+	// NoSteps leaves out the capacity step columns (model_steps.go: an
+	// exact reformulation, so the optimum is the same; the search usually
+	// longer).
+	NoSteps bool
 
 	// baseline builds the do-nothing LP: no purchases, committed traffic
 	// that cannot be carried becomes shortfall charged the SLA penalty.
@@ -320,6 +328,9 @@ func BuildModel(c *Case, opts BuildOptions) (*Model, error) {
 	}
 	if !opts.NoCutSets && !opts.baseline && !opts.elastic {
 		m.addCutSets()
+	}
+	if !opts.NoSteps && !opts.baseline {
+		m.addSteps()
 	}
 	uniqueNames(m.LP.ColName)
 	uniqueNames(m.LP.RowName)
@@ -781,7 +792,8 @@ func (m *Model) addElastic() {
 }
 
 // branchPriority returns the branching priorities of the model's columns
-// (mip Settings.Priority): 1 for the tier choices z, 0 for the rest. The
+// (mip Settings.Priority): 2 for the tier choices z, 1 for the capacity
+// steps (addSteps), 0 for the rest. The
 // relaxation takes a tier at a fractional z and so earns its discount on
 // any spend, which no plan below the threshold gets; branching on z first
 // removes that gain where the plan does not reach the tier. Measured with
@@ -794,8 +806,11 @@ func (m *Model) branchPriority() []int {
 	pr := make([]int, m.LP.NumCols())
 	for _, vy := range m.tiers {
 		for _, j := range vy.choice {
-			pr[j] = 1
+			pr[j] = 2
 		}
+	}
+	for _, st := range m.steps {
+		pr[st.col] = 1
 	}
 	return pr
 }

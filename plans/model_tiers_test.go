@@ -114,7 +114,8 @@ func budgetedSynthetic(t *testing.T) (*Case, *Model) {
 
 // TestTierChoicesBranchedFirst: the branching priorities mark exactly the
 // tier choices (columns z_<vendor>_<year>_<choice>, one per tier and one
-// for no discount, per vendor with tiers and order year), and they change
+// for no discount, per vendor with tiers and order year) with 2 and the
+// capacity steps (k_<link>_<year>, model_steps.go) with 1, and they change
 // the search, not its answer: the synthetic S case (10 sites, 5 years)
 // solved to a gap of 1e-9 with and without them, by mip alone, has the
 // same optimum (after trees of 406 nodes with them and 348 without, on
@@ -131,19 +132,26 @@ func TestTierChoicesBranchedFirst(t *testing.T) {
 	for _, vy := range m.tiers {
 		want += len(c.Vendors[vy.vendor].Tiers) + 1
 	}
-	marked := 0
+	marked, steps := 0, 0
 	for j, p := range pr {
 		name := m.LP.ColName[j]
 		isChoice := strings.HasPrefix(name, "z_") && m.LP.Integer[j]
-		if (p == 1) != isChoice || (p != 0 && p != 1) {
+		isStep := strings.HasPrefix(name, "k_") && m.LP.Integer[j]
+		if (p == 2) != isChoice || (p == 1) != isStep || p < 0 || p > 2 {
 			t.Errorf("column %s: priority %d", name, p)
 		}
-		if p == 1 {
+		if p == 2 {
 			marked++
+		}
+		if p == 1 {
+			steps++
 		}
 	}
 	if want == 0 || marked != want {
 		t.Fatalf("%d columns marked, want the %d tier choices (none in the test input?)", marked, want)
+	}
+	if steps != len(m.steps) || steps == 0 {
+		t.Fatalf("%d step columns marked, want the model's %d (none in the test input?)", steps, len(m.steps))
 	}
 	solve := func(prio []int) mip.Result {
 		r, err := mip.Solve(context.Background(), m.LP, mip.Settings{RelGap: 1e-9, Priority: prio})

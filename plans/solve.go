@@ -96,7 +96,7 @@ func Solve(ctx context.Context, c *Case, opts SolveOptions) (*Result, error) {
 	if len(opts.StartPlan) > 0 {
 		set.Start = m.startFromPlan(ctx, opts.StartPlan, time.Duration(maxStartShare*float64(opts.TimeLimit)))
 	}
-	if len(m.tiers) > 0 {
+	if len(m.tiers) > 0 || len(m.steps) > 0 {
 		set.Priority = m.branchPriority()
 	}
 	if opts.Progress != nil {
@@ -413,6 +413,12 @@ func (m *Model) fixIntegers(x []float64) *lp.Model {
 			fixed.ColLower[j], fixed.ColUpper[j] = v, v
 			fixed.Integer[j] = false
 		}
+	}
+	// The step columns follow the units through their rows: fixing them
+	// at a value x did not update would make the LP infeasible.
+	for _, st := range m.steps {
+		fixed.ColLower[st.col], fixed.ColUpper[st.col] = m.LP.ColLower[st.col], m.LP.ColUpper[st.col]
+		fixed.Integer[st.col] = false
 	}
 	// With the units fixed the cut-set rows are redundant (valid for every
 	// integer point, so for this one), but a redundant row that happens to

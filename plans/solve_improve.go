@@ -102,8 +102,15 @@ func (m *Model) newImprover(deadline time.Time) *improver {
 			}
 		}
 	}
+	isStep := make([]bool, m.LP.NumCols())
+	for _, st := range m.steps {
+		isStep[st.col] = true
+	}
 	for j, isInt := range m.LP.Integer {
-		if isInt {
+		// The step columns follow the units through their rows (and mip
+		// completes a candidate with them free): fixing them would pin
+		// the capacity every move changes.
+		if isInt && !isStep[j] {
 			im.intCols = append(im.intCols, j)
 		}
 	}
