@@ -40,9 +40,9 @@
 //     without the served traffic — at most 6·(3n + m)·T rows;
 //   - at most m·T integer step columns, each with the row that makes it
 //     the capacity a link has gained by a year in steps of the gcd of its
-//     items' Gbps (model_steps.go): they change no plan and no bound, but
-//     the search branches on a link's capacity right after the tier
-//     binaries, before the unit columns.
+//     items' Gbps (model_steps.go): they change no plan and not the LP
+//     relaxation, but the search branches on a link's capacity right
+//     after the tier binaries, before the unit columns.
 //
 // The objective coefficient of a unit of capex ordered in year τ and in
 // service from year s with book life L is −DF_τ + τ_tax·Σ DF_t/L over its

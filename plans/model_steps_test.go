@@ -8,7 +8,8 @@ import (
 	"netstage/mip"
 )
 
-// TestStepRows checks the capacity step rows against the case alone: on
+// TestStepRows checks the capacity step rows against the case alone: one
+// for each link and year with two or more unit columns in service; on
 // the synthetic cases every item is a 100G or 400G module or a 100G lease,
 // so each link's step is 100 Gbps and a step column counts its link's
 // units in service in 100G steps: weight 1 for a 100G unit, 4 for a 400G
@@ -26,8 +27,24 @@ func TestStepRows(t *testing.T) {
 		if err != nil {
 			t.Fatal(err)
 		}
-		if len(m.steps) == 0 {
-			t.Fatalf("%v: no step columns", sc)
+		// One step column for each link and year with two or more unit
+		// columns in service.
+		want := 0
+		for l := range c.Links {
+			for yr := 0; yr < c.Horizon; yr++ {
+				n := 0
+				for oi := range m.options {
+					if m.options[oi].link == l && m.options[oi].unitsInService(yr) >= 0 {
+						n++
+					}
+				}
+				if n >= 2 {
+					want++
+				}
+			}
+		}
+		if len(m.steps) != want || want == 0 {
+			t.Fatalf("%v: %d step columns, want %d", sc, len(m.steps), want)
 		}
 		for _, st := range m.steps {
 			for i, j := range st.units {
