@@ -38,7 +38,14 @@ const benchGap = 1e-4
 // netstage's best M plan (2026-12-04, one core, alone on the machine but
 // for idle shells; reproduced 2026-12-05 in 1,969 s and 25,689 nodes
 // with CBC on the other core), and CBC 2.10.8 had 0.53 % after 1,800 s
-// (0.52 % on 2026-12-05: plan 3,029,680, bound 3,045,332).
+// (0.52 % on 2026-12-05: plan 3,029,680, bound 3,045,332). With the
+// capacity steps (model_steps.go, 2026-12-05, alone on the machine): S
+// 0.32 s (5 nodes), M 0.32 % after 60 s (2,031 nodes; 0.43 % before), L
+// 2.62 % (its root rounds unfinished, as before). Without a time limit,
+// on one core (GOMAXPROCS=1) beside other work, netstage solve proved M
+// optimal in 2,134 s and 169,823 nodes (NPV 3,032,448, bound
+// 3,032,752); the build before the steps took 4,260 s and 315,831 nodes
+// on the same terms.
 func BenchmarkSolve(b *testing.B) {
 	benchSolve(b, SyntheticSizes, SolveOptions{Gap: benchGap, TimeLimit: benchTimeLimit})
 }
@@ -119,7 +126,9 @@ type benchCase struct {
 // exported MPS: 726 nodes, 19.5 s; HiGHS 1.15.1, npm WebAssembly: 23.5 s;
 // same optimum); the build before the implied bounds, run with one core
 // for 120 s beside another solve, had a gap of 0.40 % left (980 nodes)
-// where this build proved it in 40 s.
+// where this build proved it in 40 s. With the capacity steps
+// (model_steps.go, 2026-12-05, alone): 7 and 8 nodes, 0.32 and 0.43 s,
+// and 546 nodes, 20.7 s on the 25-site case.
 // Run: go test -run '^$' -bench SolveTightBudget -benchtime 1x ./plans
 func BenchmarkSolveTightBudget(b *testing.B) {
 	tight := func(c *Case) {
