@@ -4,6 +4,7 @@ import (
 	"context"
 	"fmt"
 	"math"
+	"strings"
 	"testing"
 
 	"netstage/lp"
@@ -100,11 +101,14 @@ func df(r float64, t int) float64 { return math.Pow(1+r, -float64(t)) }
 
 // bruteForce solves a tiny MIP by enumerating every integer point within
 // the bounds and solving the LP of the rest: the independent oracle for
-// the first-principles cases (STYLE.md: brute force on tiny MIPs).
+// the first-principles cases (STYLE.md: brute force on tiny MIPs). The
+// capacity step columns (k_…, model_steps.go) are left to the LP: their
+// equality rows make them whole once the units are, and enumerating them
+// too multiplied the points by their ranges for nothing.
 func bruteForce(ctx context.Context, m *lp.Model, s mip.Settings) (mip.Result, error) {
 	var ints []int
 	for j, isInt := range m.Integer {
-		if isInt {
+		if isInt && !strings.HasPrefix(m.ColName[j], "k_") {
 			ints = append(ints, j)
 		}
 	}
