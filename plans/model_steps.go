@@ -51,29 +51,34 @@ func (m *Model) addSteps() {
 			continue
 		}
 		for t := 0; t < c.Horizon; t++ {
-			var cols []int
-			var vals []float64
+			st := step{link: l, year: t}
 			most := 0.0
 			for _, oi := range opts {
 				o := &m.options[oi]
 				if j := o.unitsInService(t); j >= 0 {
 					w := c.Items[o.item].Gbps / float64(g)
-					cols, vals = append(cols, j), append(vals, -w)
+					st.units, st.weights = append(st.units, j), append(st.weights, w)
 					most += w * m.LP.ColUpper[j]
 				}
 			}
-			if len(cols) < 2 {
+			if len(st.units) < 2 {
 				continue
 			}
-			k := m.LP.AddIntCol(fmt.Sprintf("k_%s_%d", c.Links[l].ID, c.Year(t)), 0, 0, most)
-			m.steps = append(m.steps, step{col: k, link: l, year: t, units: cols, weights: vals})
-			m.LP.AddRow(fmt.Sprintf("steps_%s_%d", c.Links[l].ID, c.Year(t)), 0, 0, append(cols[:len(cols):len(cols)], k), append(vals[:len(vals):len(vals)], 1))
+			st.col = m.LP.AddIntCol(fmt.Sprintf("k_%s_%d", c.Links[l].ID, c.Year(t)), 0, 0, most)
+			m.steps = append(m.steps, st)
+			cols := append(append([]int(nil), st.units...), st.col)
+			vals := make([]float64, 0, len(cols))
+			for _, w := range st.weights {
+				vals = append(vals, -w)
+			}
+			vals = append(vals, 1)
+			m.LP.AddRow(fmt.Sprintf("steps_%s_%d", c.Links[l].ID, c.Year(t)), 0, 0, cols, vals)
 		}
 	}
 }
 
 // step is the capacity step column of a link and year: col =
-// Σ −weights·x[units].
+// Σ weights·x[units], each weight a unit's Gbps over the link's step.
 type step struct {
 	col, link, year int
 	units           []int

@@ -52,7 +52,7 @@ func TestStepRows(t *testing.T) {
 				if o.link != st.link || o.unitsInService(st.year) != j {
 					t.Errorf("%s: %s is not a unit column of its link in service that year", m.LP.ColName[st.col], m.LP.ColName[j])
 				}
-				if want := -c.Items[o.item].Gbps / 100; st.weights[i] != want {
+				if want := c.Items[o.item].Gbps / 100; st.weights[i] != want {
 					t.Errorf("%s: weight %g on %s, want %g", m.LP.ColName[st.col], st.weights[i], m.LP.ColName[j], want)
 				}
 			}
