@@ -288,9 +288,10 @@ func randomMIP(rng *rand.Rand) *lp.Model {
 }
 
 // TestRandomAgainstBruteForce compares the search with enumeration on tiny
-// random MIPs (fixed seeds), cycling through setting variants so that cuts,
-// strong branching, heuristics and proofs are each on and off somewhere, and
-// giving every third case random branching priorities.
+// random MIPs (fixed seeds), cycling through setting variants so that cuts
+// (c-MIR among them), strong branching, heuristics and proofs are each on
+// and off somewhere, and giving every third case random branching
+// priorities.
 func TestRandomAgainstBruteForce(t *testing.T) {
 	count := 1000
 	if testing.Short() {
@@ -299,7 +300,7 @@ func TestRandomAgainstBruteForce(t *testing.T) {
 	variants := []Settings{
 		{RelGap: 1e-9, AbsGap: 1e-9},
 		{RelGap: 1e-9, AbsGap: 1e-9, NoCuts: true},
-		{RelGap: 1e-9, AbsGap: 1e-9, NoStrongBranching: true, NoHeuristics: true},
+		{RelGap: 1e-9, AbsGap: 1e-9, NoStrongBranching: true, NoHeuristics: true, CMIR: true},
 		{RelGap: 1e-9, AbsGap: 1e-9, NoCuts: true, NoStrongBranching: true, NoProofs: true},
 	}
 	tally := map[Status]int{}

@@ -13,7 +13,7 @@ type cut struct {
 	idx          []int
 	val          []float64
 	lower, upper float64
-	kind         string // "cover", "gomory" or "caller": which pool cuts may re-enter the LP in the tree (poolToLP), and whether the slack is integral
+	kind         string // "cover", "gomory", "cmir" or "caller": which pool cuts may re-enter the LP in the tree (poolToLP), and whether the slack is integral
 
 	lpRow int // row index in the LP, −1 when only in the pool
 	age   int // consecutive rounds the cut was slack

@@ -34,7 +34,9 @@
 //     relaxation, rounds of
 //     sequentially lifted knapsack cover cuts on the rows and Gomory
 //     mixed-integer cuts on tableau rows (at most maxGomoryNonzeros
-//     nonzeros: denser rows slow every later iteration), plus the caller's own cuts
+//     nonzeros: denser rows slow every later iteration), aggregated
+//     complemented mixed-integer rounding (c-MIR) cuts on sums of up to six
+//     tight rows (cmir.go; with Settings.CMIR), plus the caller's own cuts
 //     (Settings.Separate), with a small pool that ages slack cuts out of
 //     the LP; reduced-cost fixing of the global domain whenever
 //     the incumbent improves; rounding and diving heuristics (a rounding
@@ -47,8 +49,8 @@
 //   - Nodes: each node LP is warm-started from its parent's basis by the
 //     dual simplex, with the incumbent (minus the allowed gap) as objective
 //     cutoff; bounds are propagated on rows and on the objective cutoff,
-//     reduced costs fix columns inside the subtree, and pool cuts (covers
-//     and the caller's, not Gomory's) that the node's LP point violates
+//     reduced costs fix columns inside the subtree, and pool cuts (covers,
+//     c-MIR and the caller's, not Gomory's) that the node's LP point violates
 //     re-enter the LP, up to a hundred over the tree; at the nodes of
 //     depth 3 or less the caller's cuts are also separated anew, up to a
 //     hundred more. Each node stores only its own bound changes, chained
@@ -102,5 +104,7 @@
 // programming", CPAIOR 2017 (proofs from the LP's multipliers, there
 // called dual proofs; from memory); Nemhauser and
 // Wolsey, Integer and Combinatorial Optimization, 1988 (Gomory mixed-integer
-// and cover inequalities).
+// and cover inequalities); Marchand and Wolsey, "Aggregation and mixed
+// integer rounding to solve MIPs", Oper. Res. 49, 2001 (c-MIR; from
+// memory).
 package mip

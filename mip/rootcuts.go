@@ -88,6 +88,9 @@ func (s *search) rootCuts(r lp.Result) lp.Result {
 				}
 			}
 		}
+		if s.set.CMIR {
+			found = s.separateCMIR(found, x)
+		}
 		found = s.callerCuts(found, x)
 		if len(found) == 0 {
 			break

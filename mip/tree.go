@@ -536,7 +536,7 @@ func (s *search) strongAllowed() bool {
 	return float64(s.sbIters) < strongShare*float64(s.nodeLPIters)+strongOffset
 }
 
-// poolToLP adds the pool's cover cuts and the caller's cuts (both
+// poolToLP adds the pool's cover, c-MIR and caller's cuts (all
 // globally valid) that the node's LP point x violates, up to maxTreeCuts
 // over the whole tree, and reports whether it added any. The caller's
 // cuts are mostly ones the root rounds aged out of the LP; back where a
@@ -550,7 +550,7 @@ func (s *search) poolToLP(x []float64) bool {
 		if s.treeCuts+len(back) >= maxTreeCuts {
 			break
 		}
-		if c.lpRow >= 0 || (c.kind != "cover" && c.kind != "caller") || c.efficacy(x) <= minEfficacy {
+		if c.lpRow >= 0 || (c.kind != "cover" && c.kind != "caller" && c.kind != "cmir") || c.efficacy(x) <= minEfficacy {
 			continue
 		}
 		back = append(back, c)

@@ -1,0 +1,432 @@
+package mip
+
+import (
+	"math"
+	"sort"
+)
+
+// Aggregated c-MIR cuts (complemented mixed-integer rounding, Marchand &
+// Wolsey 2001): a row that is tight at the LP point is summed with up to
+// cmirMaxAggr other tight rows, each chosen to eliminate the continuous
+// column of the sum that lies furthest inside its bounds; after each
+// step the sum, with its columns shifted to their nearest bounds (integer
+// columns complemented towards the nearer one), is divided by candidate
+// divisors and rounded. On a network model the sums follow paths: a
+// capacity row, then conservation rows that carry one source's flow from
+// arc to arc. The cuts are valid for every integer point of the global
+// domain because they use only the model's rows and the global bounds.
+const (
+	// cmirMaxAggr caps the rows added to a starting row (common practice
+	// is five or six).
+	cmirMaxAggr = 5
+	// cmirMaxStarts caps the starting rows tried per round: rows with a
+	// fractional integer column, the largest share of them first.
+	cmirMaxStarts = 500
+	// cmirMaxDivisors caps the divisors tried per sum.
+	cmirMaxDivisors = 8
+	// cmirMinFrac and cmirMaxFrac bound the fractional part of the divided
+	// right-hand side: near 0 the rounding gains nothing, near 1 the cut
+	// has huge coefficients on the continuous part.
+	cmirMinFrac, cmirMaxFrac = 0.05, 0.95
+	// cmirMaxNonzeros drops longer cuts (see maxGomoryNonzeros).
+	cmirMaxNonzeros = 150
+	// cmirSlackTol is the slack, relative to the row's scale, below which a
+	// row counts as tight.
+	cmirSlackTol = 1e-6
+)
+
+// cmirTerm is one column of a sum in bound-shifted form: t = x − bound
+// (comp false) or t = bound − x (comp true), with coefficient a on t.
+type cmirTerm struct {
+	col   int
+	a     float64
+	bound float64
+	comp  bool
+	isInt bool
+	t     float64 // value of t at the LP point
+	width float64 // upper − lower (+Inf when unbounded)
+}
+
+// cmirSep holds the work arrays of one separation call.
+type cmirSep struct {
+	s       *search
+	x       []float64
+	act     []float64 // row activities at x (model rows)
+	coef    []float64 // dense sum, by column
+	touched []int
+	inSum   []bool
+	used    []bool // rows already in the sum
+}
+
+// separateCMIR appends to found the aggregated c-MIR cuts that x violates.
+func (s *search) separateCMIR(found []*cut, x []float64) []*cut {
+	p := s.p
+	sep := &cmirSep{
+		s: s, x: x,
+		act:   make([]float64, p.m),
+		coef:  make([]float64, p.n),
+		inSum: make([]bool, p.n),
+		used:  make([]bool, p.m),
+	}
+	type start struct {
+		row   int
+		score float64
+	}
+	var starts []start
+	for i := 0; i < p.m; i++ {
+		ri := s.rows[i]
+		a, frac := 0.0, 0
+		for k, j := range ri.idx {
+			a += ri.val[k] * x[j]
+			if p.isInt[j] {
+				if f := x[j] - math.Floor(x[j]); f > 1e-3 && f < 1-1e-3 {
+					frac++
+				}
+			}
+		}
+		sep.act[i] = a
+		if frac > 0 && (sep.tight(i, 1) || sep.tight(i, -1)) {
+			starts = append(starts, start{i, float64(frac) / float64(len(ri.idx))})
+		}
+	}
+	sort.SliceStable(starts, func(a, b int) bool { return starts[a].score > starts[b].score })
+	if len(starts) > cmirMaxStarts {
+		starts = starts[:cmirMaxStarts]
+	}
+	for _, st := range starts {
+		for _, sign := range []float64{1, -1} {
+			if !sep.tight(st.row, sign) {
+				continue
+			}
+			if c := sep.fromStart(st.row, sign); c != nil {
+				found = s.addFound(found, c, x)
+			}
+		}
+	}
+	return found
+}
+
+// side returns the right-hand side of sign·row ≤ side (+Inf when that
+// side is open).
+func (sep *cmirSep) side(i int, sign float64) float64 {
+	ri := sep.s.rows[i]
+	if sign > 0 {
+		return ri.upper
+	}
+	return -ri.lower
+}
+
+// slack returns side − sign·activity of row i.
+func (sep *cmirSep) slack(i int, sign float64) float64 {
+	return sep.side(i, sign) - sign*sep.act[i]
+}
+
+// tight reports whether the side sign of row i is finite and holds with
+// equality at the LP point (within cmirSlackTol).
+func (sep *cmirSep) tight(i int, sign float64) bool {
+	b := sep.side(i, sign)
+	return !math.IsInf(b, 1) && sep.slack(i, sign) <= cmirSlackTol*math.Max(1, math.Abs(b))
+}
+
+// add adds mult·row i to the sum and returns mult times its side.
+func (sep *cmirSep) add(i int, mult float64) float64 {
+	ri := sep.s.rows[i]
+	for k, j := range ri.idx {
+		if !sep.inSum[j] {
+			sep.inSum[j] = true
+			sep.touched = append(sep.touched, j)
+		}
+		sep.coef[j] += mult * ri.val[k]
+	}
+	sep.used[i] = true
+	if mult > 0 {
+		return mult * ri.upper
+	}
+	return mult * ri.lower
+}
+
+// fromStart builds sums from sign·row start and returns the first
+// violated cut found, or nil.
+func (sep *cmirSep) fromStart(start int, sign float64) *cut {
+	s, p := sep.s, sep.s.p
+	var rowsUsed []int
+	defer func() {
+		for _, j := range sep.touched {
+			sep.coef[j] = 0
+			sep.inSum[j] = false
+		}
+		sep.touched = sep.touched[:0]
+		for _, i := range rowsUsed {
+			sep.used[i] = false
+		}
+	}()
+	b := sep.add(start, sign)
+	rowsUsed = append(rowsUsed, start)
+	for aggr := 0; ; aggr++ {
+		if c := sep.cutFromSum(b); c != nil {
+			return c
+		}
+		if aggr == cmirMaxAggr {
+			return nil
+		}
+		// The continuous column furthest inside its bounds.
+		best, bestDist := -1, 1e-6
+		for _, j := range sep.touched {
+			if p.isInt[j] || math.Abs(sep.coef[j]) < 1e-9 {
+				continue
+			}
+			d := math.Min(sep.x[j]-s.glo[j], s.gup[j]-sep.x[j])
+			if d > bestDist {
+				best, bestDist = j, d
+			}
+		}
+		if best < 0 {
+			return nil
+		}
+		// The tightest unused row through it, on the side that cancels it.
+		row, rowMult, rowSlack := -1, 0.0, math.Inf(1)
+		for q := p.cols.Start[best]; q < p.cols.Start[best+1]; q++ {
+			i := p.cols.Index[q]
+			if i >= p.m || sep.used[i] {
+				continue
+			}
+			a := s.rows[i].val[rowPos(s.rows[i].idx, best)]
+			if a == 0 {
+				continue
+			}
+			mult := -sep.coef[best] / a
+			sl := sep.slack(i, math.Copysign(1, mult))
+			if math.IsInf(sep.side(i, math.Copysign(1, mult)), 1) {
+				continue
+			}
+			scale := math.Max(1, math.Abs(sep.side(i, math.Copysign(1, mult))))
+			if sl/scale < rowSlack || (sl/scale == rowSlack && len(s.rows[i].idx) < len(s.rows[row].idx)) {
+				row, rowMult, rowSlack = i, mult, sl/scale
+			}
+		}
+		if row < 0 || rowSlack > 1e-3 {
+			return nil
+		}
+		b += sep.add(row, rowMult)
+		sep.coef[best] = 0
+		rowsUsed = append(rowsUsed, row)
+	}
+}
+
+// rowPos returns the position of column j in the index list idx (−1 when
+// absent).
+func rowPos(idx []int, j int) int {
+	for k, c := range idx {
+		if c == j {
+			return k
+		}
+	}
+	return -1
+}
+
+// cutFromSum tries divisors and complementations on the current sum
+// Σ coef·x ≤ b and returns the most efficacious violated cut, or nil.
+func (sep *cmirSep) cutFromSum(b float64) *cut {
+	s, p := sep.s, sep.s.p
+	lo, up, x := s.glo, s.gup, sep.x
+	terms := make([]cmirTerm, 0, len(sep.touched))
+	nInt := 0
+	for _, j := range sep.touched {
+		a := sep.coef[j]
+		if math.Abs(a) < 1e-9 {
+			continue
+		}
+		if lo[j] == up[j] {
+			b -= a * lo[j]
+			continue
+		}
+		tm := cmirTerm{col: j, isInt: p.isInt[j], width: up[j] - lo[j]}
+		useUpper := false
+		switch {
+		case math.IsInf(lo[j], -1) && math.IsInf(up[j], 1):
+			return nil
+		case math.IsInf(lo[j], -1):
+			useUpper = true
+		case math.IsInf(up[j], 1):
+		default:
+			useUpper = up[j]-x[j] < x[j]-lo[j]
+		}
+		if tm.isInt && math.IsInf(lo[j], -1) {
+			return nil
+		}
+		if useUpper {
+			tm.bound, tm.comp, tm.a, tm.t = up[j], true, -a, up[j]-x[j]
+			b -= a * up[j]
+		} else {
+			tm.bound, tm.a, tm.t = lo[j], a, x[j]-lo[j]
+			b -= a * lo[j]
+		}
+		if tm.isInt && tm.bound != math.Round(tm.bound) {
+			tm.isInt = false // treated as continuous: a relaxation
+		}
+		if tm.isInt {
+			nInt++
+		}
+		terms = append(terms, tm)
+	}
+	if nInt == 0 {
+		return nil
+	}
+	// Divisors: the coefficients of the integer columns strictly inside
+	// their bounds, largest value first.
+	var divs []float64
+	seen := map[float64]bool{}
+	order := make([]int, 0, len(terms))
+	for k, tm := range terms {
+		if tm.isInt && tm.t > 1e-6 && tm.t < tm.width-1e-6 {
+			order = append(order, k)
+		}
+	}
+	sort.SliceStable(order, func(a, c int) bool { return terms[order[a]].t > terms[order[c]].t })
+	for _, k := range order {
+		d := math.Abs(terms[k].a)
+		if d > 1e-6 && !seen[d] && len(divs) < cmirMaxDivisors {
+			seen[d] = true
+			divs = append(divs, d)
+		}
+	}
+	best, bestEff := 0.0, 1e-4
+	for _, d := range divs {
+		if eff := mirEfficacy(terms, b, d); eff > bestEff {
+			best, bestEff = d, eff
+		}
+	}
+	if best == 0 {
+		return nil
+	}
+	for _, f := range []float64{2, 4, 8} {
+		if eff := mirEfficacy(terms, b, best/f); eff > bestEff {
+			best, bestEff = best/f, eff
+		}
+	}
+	// Complement integer columns one at a time where that helps.
+	for _, k := range order {
+		tm := &terms[k]
+		if math.IsInf(tm.width, 1) {
+			continue
+		}
+		old := *tm
+		nb := flipTerm(tm, b)
+		if eff := mirEfficacy(terms, nb, best); eff > bestEff {
+			bestEff, b = eff, nb
+		} else {
+			*tm = old
+		}
+	}
+	return mirCut(terms, b, best, lo, up)
+}
+
+// flipTerm complements the integer term tm to its other bound and returns
+// the sum's new right-hand side.
+func flipTerm(tm *cmirTerm, b float64) float64 {
+	// a·t = a·(x − l) = a·(u − l) − a·(u − x): the new term is −a on
+	// t' = u − x and the right-hand side loses a·(u − l); likewise back.
+	b -= tm.a * tm.width
+	tm.a = -tm.a
+	tm.t = tm.width - tm.t
+	if tm.comp {
+		tm.bound -= tm.width
+	} else {
+		tm.bound += tm.width
+	}
+	tm.comp = !tm.comp
+	return b
+}
+
+// mirRound returns the coefficient in the MIR (with f0 the fractional
+// part of the divided right-hand side) of a term whose divided coefficient
+// is a: F(a) = ⌊a⌋ + max(0, frac(a) − f0)/(1 − f0) for an integer column,
+// min(0, a)/(1 − f0) for a continuous one.
+func mirRound(a, f0 float64, isInt bool) float64 {
+	if isInt {
+		fl := math.Floor(a)
+		fa := a - fl
+		return fl + math.Max(0, fa-f0)/(1-f0)
+	}
+	if a < 0 {
+		return a / (1 - f0)
+	}
+	return 0
+}
+
+// mirEfficacy returns the efficacy of the MIR of the terms with divisor d
+// (0 when there is no such cut).
+func mirEfficacy(terms []cmirTerm, b, d float64) float64 {
+	beta := b / d
+	f0 := beta - math.Floor(beta)
+	if f0 < cmirMinFrac || f0 > cmirMaxFrac {
+		return 0
+	}
+	lhs, norm := 0.0, 0.0
+	for _, tm := range terms {
+		g := mirRound(tm.a/d, f0, tm.isInt)
+		lhs += g * tm.t
+		norm += g * g
+	}
+	if norm == 0 {
+		return 0
+	}
+	return (lhs - math.Floor(beta)) / math.Sqrt(norm)
+}
+
+// mirCut returns the MIR of the terms with divisor d in the columns' own
+// space, scaled so that its largest coefficient is 1; terms below 1e-9 of
+// the largest are dropped, the right-hand side relaxed by their bounds.
+func mirCut(terms []cmirTerm, b, d float64, lo, up []float64) *cut {
+	beta := b / d
+	f0 := beta - math.Floor(beta)
+	rhs := math.Floor(beta)
+	coef := map[int]float64{}
+	for _, tm := range terms {
+		g := mirRound(tm.a/d, f0, tm.isInt)
+		if g == 0 {
+			continue
+		}
+		// g·t with t = x − bound or bound − x.
+		if tm.comp {
+			coef[tm.col] -= g
+			rhs -= g * tm.bound
+		} else {
+			coef[tm.col] += g
+			rhs += g * tm.bound
+		}
+	}
+	if len(coef) == 0 || len(coef) > cmirMaxNonzeros {
+		return nil
+	}
+	cols := make([]int, 0, len(coef))
+	maxAbs := 0.0
+	for j, v := range coef {
+		cols = append(cols, j)
+		maxAbs = math.Max(maxAbs, math.Abs(v))
+	}
+	sort.Ints(cols)
+	if maxAbs == 0 {
+		return nil
+	}
+	c := &cut{lower: math.Inf(-1), kind: "cmir", lpRow: -1}
+	for _, j := range cols {
+		v := coef[j]
+		if math.Abs(v) <= 1e-9*maxAbs {
+			// v·x ≥ v·lo (v > 0) or v·up (v < 0): drop it, relaxing rhs.
+			m := lo[j]
+			if v < 0 {
+				m = up[j]
+			}
+			if math.IsInf(m, 0) {
+				return nil
+			}
+			rhs -= v * m
+			continue
+		}
+		c.idx = append(c.idx, j)
+		c.val = append(c.val, v/maxAbs)
+	}
+	c.upper = rhs / maxAbs
+	return c
+}

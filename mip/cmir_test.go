@@ -1,0 +1,160 @@
+package mip
+
+import (
+	"context"
+	"fmt"
+	"math"
+	"math/rand"
+	"testing"
+
+	"netstage/lp"
+)
+
+// smallDesign returns a random capacity-design MIP in the shape of the
+// planning models, small enough to enumerate: a few sites on a ring with
+// a chord, flow per arc and direction (continuous), whole modules per link
+// (integer, 0 to 2, of size cap), and demands from site 0 served between a
+// committed and a forecast amount, for revenue. Capacity rows hold each
+// direction's flow to base + cap·modules; conservation rows are
+// equalities.
+func smallDesign(rng *rand.Rand) *lp.Model {
+	m := lp.NewModel("design")
+	m.Sense = lp.Maximize
+	sites := 4 + rng.Intn(2)
+	type link struct{ a, b int }
+	var links []link
+	for v := 0; v < sites; v++ {
+		links = append(links, link{v, (v + 1) % sites})
+	}
+	links = append(links, link{0, 2})
+	capSize := float64(3 + rng.Intn(5))
+	flows := make([][2]int, len(links))
+	for l, ln := range links {
+		mod := m.AddIntCol(fmt.Sprintf("y%d", l), -float64(2+rng.Intn(6)), 0, 2)
+		base := float64(rng.Intn(3))
+		for d := 0; d < 2; d++ {
+			flows[l][d] = m.AddCol(fmt.Sprintf("f%d_%d", l, d), -0.01*float64(1+rng.Intn(3)), 0, lp.Inf)
+			m.AddRow(fmt.Sprintf("cap%d_%d", l, d), math.Inf(-1), base, []int{flows[l][d], mod}, []float64{1, -capSize})
+		}
+		_ = ln
+	}
+	served := make([]int, sites)
+	for v := 1; v < sites; v++ {
+		forecast := float64(1 + rng.Intn(6))
+		committed := 0.0
+		if rng.Intn(2) == 0 {
+			committed = math.Floor(forecast * rng.Float64())
+		}
+		served[v] = m.AddCol(fmt.Sprintf("x%d", v), float64(1+rng.Intn(3)), committed, forecast)
+	}
+	for v := 1; v < sites; v++ {
+		// inflow − outflow − served = 0 at site v (flow from site 0).
+		var cols []int
+		var vals []float64
+		for l, ln := range links {
+			switch v {
+			case ln.b:
+				cols = append(cols, flows[l][0], flows[l][1])
+				vals = append(vals, 1, -1)
+			case ln.a:
+				cols = append(cols, flows[l][0], flows[l][1])
+				vals = append(vals, -1, 1)
+			}
+		}
+		cols = append(cols, served[v])
+		vals = append(vals, -1)
+		m.AddRow(fmt.Sprintf("cons%d", v), 0, 0, cols, vals)
+	}
+	return m
+}
+
+// maxOverIntegers returns the largest value of Σ val·x[idx] over the
+// integer points of m (every integer assignment, then an LP over the
+// continuous columns), and whether any is feasible.
+func maxOverIntegers(t *testing.T, m *lp.Model, idx []int, val []float64) (float64, bool) {
+	t.Helper()
+	w := m.Clone()
+	w.Sense = lp.Maximize
+	w.Constant = 0
+	for j := range w.Obj {
+		w.Obj[j] = 0
+	}
+	for k, j := range idx {
+		w.Obj[j] = val[k]
+	}
+	ints, _, _ := splitColumns(m)
+	best, any := math.Inf(-1), false
+	var rec func(k int)
+	rec = func(k int) {
+		if k < len(ints) {
+			j := ints[k]
+			for v := math.Ceil(m.ColLower[j]); v <= m.ColUpper[j]; v++ {
+				w.ColLower[j], w.ColUpper[j] = v, v
+				rec(k + 1)
+			}
+			w.ColLower[j], w.ColUpper[j] = m.ColLower[j], m.ColUpper[j]
+			return
+		}
+		r, err := lp.Solve(context.Background(), w, lp.Settings{})
+		if err != nil {
+			t.Fatal(err)
+		}
+		switch r.Status {
+		case lp.Optimal:
+			any = true
+			best = math.Max(best, r.Objective)
+		case lp.Unbounded:
+			any = true
+			best = math.Inf(1)
+		}
+	}
+	rec(0)
+	return best, any
+}
+
+// TestCMIRCutsValid checks every aggregated c-MIR cut separated at the
+// root LP point of small design models and of random MIPs against
+// enumeration: no integer point may violate it. It also checks that the
+// cuts are found at all and that some cut off the LP point.
+func TestCMIRCutsValid(t *testing.T) {
+	rng := rand.New(rand.NewSource(7))
+	cuts, aggregated := 0, 0
+	for trial := 0; trial < 160; trial++ {
+		var m *lp.Model
+		if trial%2 == 0 {
+			m = smallDesign(rng)
+		} else {
+			m = randomMIP(rng)
+		}
+		set := Settings{NoHeuristics: true, NoCuts: true, NoStrongBranching: true, NodeLimit: 1}.withDefaults()
+		s := newSearch(context.Background(), m, set)
+		s.run(nil)
+		if s.lps == nil {
+			continue
+		}
+		copy(s.glo, s.p.lower)
+		copy(s.gup, s.p.upper)
+		r := s.lpSolve(inf, 0)
+		if r.Status != lp.Optimal {
+			continue
+		}
+		for _, c := range s.separateCMIR(nil, r.X) {
+			cuts++
+			if c.violation(r.X) <= 0 {
+				t.Errorf("trial %d: cut %v·x ≤ %g is not violated at the LP point", trial, c.val, c.upper)
+			}
+			if len(c.idx) > 2 {
+				aggregated++
+			}
+			// The cut is over p.work, a minimisation of the same columns.
+			mx, ok := maxOverIntegers(t, m, c.idx, c.val)
+			if ok && mx > c.upper+1e-6*math.Max(1, math.Abs(c.upper)) {
+				t.Errorf("trial %d: cut %v on %v ≤ %g is violated by an integer point (left side %g)", trial, c.val, c.idx, c.upper, mx)
+			}
+		}
+	}
+	if cuts < 20 || aggregated == 0 {
+		t.Errorf("%d cuts found, %d with more than two columns: the test exercises too little", cuts, aggregated)
+	}
+	t.Logf("%d cuts checked, %d with more than two columns", cuts, aggregated)
+}
