@@ -42,6 +42,13 @@ func TestCrossCheckCBC(t *testing.T) {
 			return loadSynthetic(t, sites, years, int64(seed))
 		}})
 	}
+	if !testing.Short() {
+		// A horizon of cmirMinHorizon years, which netstage solves with
+		// c-MIR cuts (about 7 s; the race detector would make it minutes).
+		cases = append(cases, namedCase{fmt.Sprintf("synthetic-4-sites-%d-years-seed-3", cmirMinHorizon), func() (*Case, error) {
+			return loadSynthetic(t, 4, cmirMinHorizon, 3)
+		}})
+	}
 	for _, nc := range cases {
 		t.Run(nc.name, func(t *testing.T) {
 			c, err := nc.load()
