@@ -70,7 +70,10 @@ func smallDesign(rng *rand.Rand) *lp.Model {
 
 // maxOverIntegers returns the largest value of Σ val·x[idx] over the
 // integer points of m (every integer assignment, then an LP over the
-// continuous columns), and whether any is feasible.
+// continuous columns), and whether any is feasible. It solves with lp
+// rather than continuousLP (integerPoints), which takes no equality rows
+// over continuous columns, and the design models' conservation rows are
+// such rows.
 func maxOverIntegers(t *testing.T, m *lp.Model, idx []int, val []float64) (float64, bool) {
 	t.Helper()
 	w := m.Clone()

@@ -251,17 +251,17 @@ const (
 	minSearchTime = time.Millisecond
 	// cmirMinHorizon: cases of this many years or more are solved with
 	// mip's c-MIR cuts (mip.Settings.CMIR). Measured on the synthetic
-	// cases of seed 1, each search on one core (GOMAXPROCS=1) with another
-	// search on the other (2026-12-05): after 300 s, 10, 15 and 25 sites over 10
-	// years were at gaps of 0.317 %, 0.70 % and 1.19 % with them against
-	// 0.397 %, 0.82 % and 1.54 % without; L (50 sites, 10 years) at 3.55 %
-	// against 4.05 % after 60 s. Alone on both cores, L after 60 s: bound
-	// 8,498,547 against 8,500,663, but plan 8,277,254 against 8,293,276
-	// (gap 2.67 % against 2.50 %): at that size the plan found in time
-	// moves more than the cuts do. On M (25 sites, 7 years) they cost: 1,321
-	// nodes in 120 s against 2,137, and a looser bound (3,042,153 against
-	// 3,041,386). The 16 cases of 10 sites over 7 years took 1,968 nodes
-	// against 2,955 (34.0 s against 35.6 s).
+	// cases of seed 1, each search on one core (GOMAXPROCS=1) with
+	// another search on the other (2026-12-05): after 300 s, 10, 15 and
+	// 25 sites over 10 years were at gaps of 0.317 %, 0.70 % and 1.19 %
+	// with them against 0.397 %, 0.82 % and 1.54 % without; L (50 sites,
+	// 10 years) at 3.55 % against 4.05 % after 60 s. Alone on both cores,
+	// L after 60 s: bound 8,498,547 against 8,500,663, but plan 8,277,254
+	// against 8,293,276 (gap 2.67 % against 2.50 %): at that size the plan
+	// found in time moves more than the cuts do. On M (25 sites, 7 years)
+	// they cost: 1,321 nodes in 120 s against 2,137, and a looser bound
+	// (3,042,153 against 3,041,386). The 16 cases of 10 sites over 7
+	// years took 1,968 nodes against 2,955 (34.0 s against 35.6 s).
 	cmirMinHorizon = 10
 )
 
