@@ -186,22 +186,19 @@ func (sep *cmirSep) fromStart(start int, sign float64) *cut {
 		// The tightest unused row through it, on the side that cancels it.
 		row, rowMult, rowSlack := -1, 0.0, math.Inf(1)
 		for q := p.cols.Start[best]; q < p.cols.Start[best+1]; q++ {
-			i := p.cols.Index[q]
-			if i >= p.m || sep.used[i] {
-				continue
-			}
-			a := s.rows[i].val[rowPos(s.rows[i].idx, best)]
-			if a == 0 {
+			i, a := p.cols.Index[q], p.cols.Value[q] // p.cols holds the model rows only
+			if sep.used[i] || a == 0 {
 				continue
 			}
 			mult := -sep.coef[best] / a
-			sl := sep.slack(i, math.Copysign(1, mult))
-			if math.IsInf(sep.side(i, math.Copysign(1, mult)), 1) {
+			side := math.Copysign(1, mult)
+			rhs := sep.side(i, side)
+			if math.IsInf(rhs, 1) {
 				continue
 			}
-			scale := math.Max(1, math.Abs(sep.side(i, math.Copysign(1, mult))))
-			if sl/scale < rowSlack || (sl/scale == rowSlack && len(s.rows[i].idx) < len(s.rows[row].idx)) {
-				row, rowMult, rowSlack = i, mult, sl/scale
+			sl := sep.slack(i, side) / math.Max(1, math.Abs(rhs))
+			if sl < rowSlack || (sl == rowSlack && len(s.rows[i].idx) < len(s.rows[row].idx)) {
+				row, rowMult, rowSlack = i, mult, sl
 			}
 		}
 		if row < 0 || rowSlack > 1e-3 {
@@ -211,17 +208,6 @@ func (sep *cmirSep) fromStart(start int, sign float64) *cut {
 		sep.coef[best] = 0
 		rowsUsed = append(rowsUsed, row)
 	}
-}
-
-// rowPos returns the position of column j in the index list idx (−1 when
-// absent).
-func rowPos(idx []int, j int) int {
-	for k, c := range idx {
-		if c == j {
-			return k
-		}
-	}
-	return -1
 }
 
 // cutFromSum tries divisors and complementations on the current sum
