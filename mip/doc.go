@@ -53,8 +53,12 @@
 //     c-MIR and the caller's, not Gomory's) that the node's LP point violates
 //     re-enter the LP, up to a hundred over the tree; at the nodes of
 //     depth 3 or less the caller's cuts are also separated anew, up to a
-//     hundred more. Each node stores only its own bound changes, chained
-//     to its parent's.
+//     hundred more; deeper, at a node taken from the queue (where a plunge
+//     starts), the caller's cuts and, with Settings.CMIR, c-MIR cuts are
+//     separated, the twenty most efficacious entering the LP, up to two
+//     hundred over the tree (plungeStartSeparate; off with
+//     Settings.NoPlungeCuts). Each node stores only its own bound changes,
+//     chained to its parent's.
 //   - Proofs (proofs.go): a node whose LP bound reaches the cutoff, or a
 //     strong-branching child that does, leaves an inequality over the
 //     integer columns, aggregated from its LP's row multipliers and

@@ -38,6 +38,17 @@ const (
 	earlyHeuristicNodes = 5
 )
 
+// Below treeSeparateDepth, a node taken from the queue (where a plunge
+// starts) is separated too, with c-MIR as well when Settings.CMIR, taking
+// at most maxStartSeparated of the cuts it finds, most efficacious first,
+// until maxStartCuts have entered the LP that way, and trying at most
+// maxStartSeparations nodes (plungeStartSeparate).
+const (
+	maxStartSeparated   = 20
+	maxStartCuts        = 200
+	maxStartSeparations = 50
+)
+
 // run performs the whole search and returns the result.
 func (s *search) run(starts [][]float64) Result {
 	p, ok := newProblem(modelOf(s), s.set.IntTol)

@@ -211,6 +211,11 @@ type Settings struct {
 	// NoProofs turns off the proofs learnt from nodes pruned by their
 	// bound or infeasible (proofs.go).
 	NoProofs bool
+	// NoPlungeCuts turns off the separation at the nodes below depth 3
+	// where plunges start (doc.go, Nodes). A short sub-search under a
+	// time limit, such as a caller's re-plan of part of a plan, may spend
+	// its time better on nodes.
+	NoPlungeCuts bool
 
 	// Priority, when set (one value per column), orders the integer
 	// columns for branching: a node branches on a fractional column of the

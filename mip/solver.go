@@ -144,6 +144,9 @@ type search struct {
 	nCuts    int
 	treeCuts int // pool cuts put back into the LP during the tree search
 	sepCuts  int // the caller's cuts separated at tree nodes (treeSeparate)
+	// cuts separated where plunges start, and the nodes tried there
+	// (plungeStartSeparate)
+	startCuts, startSeparations int
 
 	downLocks, upLocks []int
 
