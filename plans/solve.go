@@ -92,13 +92,9 @@ func Solve(ctx context.Context, c *Case, opts SolveOptions) (*Result, error) {
 			Integers: countTrue(m.LP.Integer),
 		},
 	}
-	set := mip.Settings{TimeLimit: opts.TimeLimit, RelGap: opts.Gap, NodeLimit: opts.NodeLimit, NoRINS: opts.NoRINS, SecondCore: opts.SecondCore,
-		CMIR: c.Horizon >= cmirMinHorizon}
+	set := searchSettings(c, m, opts)
 	if len(opts.StartPlan) > 0 {
 		set.Start = m.startFromPlan(ctx, opts.StartPlan, time.Duration(maxStartShare*float64(opts.TimeLimit)))
-	}
-	if len(m.tiers) > 0 || len(m.steps) > 0 {
-		set.Priority = m.branchPriority()
 	}
 	if opts.Progress != nil {
 		set.Progress = func(p mip.Progress) {
@@ -107,12 +103,6 @@ func Solve(ctx context.Context, c *Case, opts SolveOptions) (*Result, error) {
 				HasIncumbent: p.HasIncumbent, Nodes: p.Nodes, Elapsed: p.Elapsed,
 			})
 		}
-	}
-	if !opts.NoHeuristic {
-		set.Heuristic = m.roundUpHeuristic
-	}
-	if !opts.NoCutSets && !opts.NoSeparation {
-		set.Separate = m.separateCutSets
 	}
 	// The baseline LP runs concurrently with the search's root LP, which
 	// does not need it. The search takes the baseline's plan as its start
@@ -539,4 +529,23 @@ func latest(a, b time.Time) time.Time {
 		return a
 	}
 	return b
+}
+
+// searchSettings returns the mip settings of the search over m that
+// depend only on the case and the options: limits, c-MIR cuts for
+// horizons of cmirMinHorizon years or more, branching priorities, and
+// the rounding and cut-set separation unless the options turn them off.
+func searchSettings(c *Case, m *Model, opts SolveOptions) mip.Settings {
+	set := mip.Settings{TimeLimit: opts.TimeLimit, RelGap: opts.Gap, NodeLimit: opts.NodeLimit, NoRINS: opts.NoRINS, SecondCore: opts.SecondCore,
+		CMIR: c.Horizon >= cmirMinHorizon}
+	if len(m.tiers) > 0 || len(m.steps) > 0 {
+		set.Priority = m.branchPriority()
+	}
+	if !opts.NoHeuristic {
+		set.Heuristic = m.roundUpHeuristic
+	}
+	if !opts.NoCutSets && !opts.NoSeparation {
+		set.Separate = m.separateCutSets
+	}
+	return set
 }
