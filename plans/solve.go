@@ -92,7 +92,7 @@ func Solve(ctx context.Context, c *Case, opts SolveOptions) (*Result, error) {
 			Integers: countTrue(m.LP.Integer),
 		},
 	}
-	set := searchSettings(c, m, opts)
+	set := searchSettings(m, opts)
 	if len(opts.StartPlan) > 0 {
 		set.Start = m.startFromPlan(ctx, opts.StartPlan, time.Duration(maxStartShare*float64(opts.TimeLimit)))
 	}
@@ -532,12 +532,12 @@ func latest(a, b time.Time) time.Time {
 }
 
 // searchSettings returns the mip settings of the search over m that
-// depend only on the case and the options: limits, c-MIR cuts for
+// depend only on its case and the options: limits, c-MIR cuts for
 // horizons of cmirMinHorizon years or more, branching priorities, and
 // the rounding and cut-set separation unless the options turn them off.
-func searchSettings(c *Case, m *Model, opts SolveOptions) mip.Settings {
+func searchSettings(m *Model, opts SolveOptions) mip.Settings {
 	set := mip.Settings{TimeLimit: opts.TimeLimit, RelGap: opts.Gap, NodeLimit: opts.NodeLimit, NoRINS: opts.NoRINS, SecondCore: opts.SecondCore,
-		CMIR: c.Horizon >= cmirMinHorizon}
+		CMIR: m.Case.Horizon >= cmirMinHorizon}
 	if len(m.tiers) > 0 || len(m.steps) > 0 {
 		set.Priority = m.branchPriority()
 	}

@@ -18,7 +18,7 @@ func TestSearchSettings(t *testing.T) {
 		if err != nil {
 			t.Fatal(err)
 		}
-		set := searchSettings(c, m, SolveOptions{Gap: 1e-6, NodeLimit: 7})
+		set := searchSettings(m, SolveOptions{Gap: 1e-6, NodeLimit: 7})
 		if want := years >= cmirMinHorizon; set.CMIR != want {
 			t.Errorf("%d years: CMIR %v, want %v", years, set.CMIR, want)
 		}
@@ -31,7 +31,7 @@ func TestSearchSettings(t *testing.T) {
 		if len(set.Priority) != m.LP.NumCols() {
 			t.Errorf("%d years: %d branching priorities for %d columns", years, len(set.Priority), m.LP.NumCols())
 		}
-		set = searchSettings(c, m, SolveOptions{NoHeuristic: true, NoSeparation: true})
+		set = searchSettings(m, SolveOptions{NoHeuristic: true, NoSeparation: true})
 		if set.Heuristic != nil || set.Separate != nil {
 			t.Errorf("%d years: rounding or separation on although the options turn them off", years)
 		}
