@@ -880,14 +880,16 @@ func TestTreeSeparate(t *testing.T) {
 }
 
 // TestSeparateInTree: the search asks the caller for cuts at its first
-// nodes, not only in the root rounds, and not below treeSeparateDepth; a
-// row it gives there enters the LP. The model is a three-row 0/1 knapsack
+// nodes, not only in the root rounds, and below treeSeparateDepth
+// where a plunge starts, at most maxStartSeparations times; a row it
+// gives there enters the LP. The model is a three-row 0/1 knapsack
 // (hardKnapsack) whose search takes more nodes than there are of depth 3
 // or less (15). First the callback gives nothing: after the root rounds
-// it is asked at most once per node of depth ≤ 3. Then, at tree nodes
-// only, it gives the row "objective ≤ the optimum" (the optimum found by
-// enumeration, so the row holds at every integer point): the row enters
-// the LP, the optimum stays and the search takes fewer nodes.
+// it is asked at most once per node of depth ≤ 3 plus once per plunge
+// start tried below (plungeStartSeparate), and some are. Then, at tree
+// nodes only, it gives the row "objective ≤ the optimum" (the optimum
+// found by enumeration, so the row holds at every integer point): the row
+// enters the LP once, the optimum stays and the search takes fewer nodes.
 func TestSeparateInTree(t *testing.T) {
 	m := hardKnapsack(16, 3, 1)
 	st, opt := bruteForce(m)
@@ -916,19 +918,21 @@ func TestSeparateInTree(t *testing.T) {
 		r = s.run(nil)
 		return r, s, rootCalls, treeCalls
 	}
-	plain, _, _, treeCalls := run(false)
+	plain, ps, _, treeCalls := run(false)
 	if plain.Status != Optimal || math.Abs(plain.Objective-opt) > 1e-9 {
 		t.Fatalf("status %v, objective %v; want optimal, %v", plain.Status, plain.Objective, opt)
 	}
-	if treeCalls == 0 || treeCalls > 15 || plain.Nodes <= 15 {
-		t.Errorf("asked at %d tree nodes of %d; want 1 to 15 in more than 15 nodes", treeCalls, plain.Nodes)
+	starts := ps.startSeparations
+	if treeCalls <= starts || treeCalls > 15+starts || starts == 0 || starts > maxStartSeparations || plain.Nodes <= 15 {
+		t.Errorf("asked at %d tree nodes of %d, %d of them plunge starts below depth %d; want 1 to 15 above, and 1 to %d below, in more than 15 nodes",
+			treeCalls, plain.Nodes, starts, treeSeparateDepth, maxStartSeparations)
 	}
 	r, s, _, _ := run(true)
 	if r.Status != Optimal || math.Abs(r.Objective-opt) > 1e-9 {
 		t.Fatalf("with the row: status %v, objective %v; want optimal, %v", r.Status, r.Objective, opt)
 	}
-	if s.sepCuts != 1 || r.Nodes >= plain.Nodes {
-		t.Errorf("with the row: %d rows entered at nodes, %d nodes; want 1, fewer than %d", s.sepCuts, r.Nodes, plain.Nodes)
+	if s.sepCuts+s.startCuts != 1 || r.Nodes >= plain.Nodes {
+		t.Errorf("with the row: %d rows entered at nodes, %d nodes; want 1, fewer than %d", s.sepCuts+s.startCuts, r.Nodes, plain.Nodes)
 	}
 }
 
