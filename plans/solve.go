@@ -7,6 +7,7 @@ import (
 	"fmt"
 	"math"
 	"sync"
+	"sync/atomic"
 	"time"
 
 	"netstage/lp"
@@ -96,12 +97,20 @@ func Solve(ctx context.Context, c *Case, opts SolveOptions) (*Result, error) {
 	if len(opts.StartPlan) > 0 {
 		set.Start = m.startFromPlan(ctx, opts.StartPlan, time.Duration(maxStartShare*float64(opts.TimeLimit)))
 	}
+	// The site whose region the local search is re-planning (−1: none),
+	// written by the improver's goroutine, read by the progress reports.
+	var replanning atomic.Int32
+	replanning.Store(-1)
 	if opts.Progress != nil {
 		set.Progress = func(p mip.Progress) {
-			opts.Progress(Progress{
+			pr := Progress{
 				Objective: -p.Incumbent, Bound: -p.Bound, Gap: p.Gap,
 				HasIncumbent: p.HasIncumbent, Nodes: p.Nodes, Elapsed: p.Elapsed,
-			})
+			}
+			if v := replanning.Load(); v >= 0 {
+				pr.Replanning = c.Sites[v].Name
+			}
+			opts.Progress(pr)
 		}
 	}
 	// The baseline LP runs concurrently with the search's root LP, which
@@ -131,6 +140,7 @@ func Solve(ctx context.Context, c *Case, opts SolveOptions) (*Result, error) {
 	var im *improver
 	if !opts.NoHeuristic && !opts.NoImprove {
 		im = m.newImprover(time.Time{})
+		im.onRegion = func(site int) { replanning.Store(int32(site)) }
 		set.Improve = im.improve
 	}
 	set.LateStart = func() []float64 {

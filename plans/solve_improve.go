@@ -83,6 +83,10 @@ type improver struct {
 	// nextRegion the site whose region replan tries next.
 	regions    [][]int
 	nextRegion int
+	// onRegion, when set, is told the site whose region replan starts
+	// on, and −1 when that region's sub-MIP has ended (the progress
+	// reports show it).
+	onRegion func(site int)
 }
 
 // newImprover returns an improver for m that stops at deadline (zero:
@@ -645,6 +649,7 @@ func (im *improver) replan(ctx context.Context, x []float64) []float64 {
 			return nil
 		}
 		region := im.regions[im.nextRegion]
+		im.showReplanning(im.nextRegion)
 		im.nextRegion = (im.nextRegion + 1) % len(im.regions)
 		clear(free)
 		for _, j := range region {
@@ -662,6 +667,7 @@ func (im *improver) replan(ctx context.Context, x []float64) []float64 {
 		set := mip.Settings{TimeLimit: min(replanTime, left), RelGap: replanRelGap, Start: x,
 			Heuristic: m.roundUpHeuristic, Separate: m.separateCutSets, NoRINS: true, NoPlungeCuts: true}
 		r, err := mipSolve(ctx, sub, set)
+		im.showReplanning(-1)
 		if err != nil || r.X == nil {
 			continue
 		}
@@ -670,6 +676,13 @@ func (im *improver) replan(ctx context.Context, x []float64) []float64 {
 		}
 	}
 	return nil
+}
+
+// showReplanning passes site (−1: none) to onRegion when it is set.
+func (im *improver) showReplanning(site int) {
+	if im.onRegion != nil {
+		im.onRegion(site)
+	}
 }
 
 // regionNeighbourhoods returns, for each site, the integer columns of the

@@ -231,7 +231,20 @@ func TestReplanRegions(t *testing.T) {
 			t.Error("re-planned without a deadline")
 		}
 		im := m.newImprover(time.Now().Add(time.Minute))
+		var told []int
+		im.onRegion = func(site int) { told = append(told, site) }
 		z := im.replan(context.Background(), x)
+		// Each region tried is announced by its site, in turn from the
+		// first, and its end by −1: the progress reports rely on it.
+		if len(told) == 0 || len(told)%2 != 0 {
+			t.Errorf("sites told: %v; want each region's site then −1", told)
+		}
+		for k := 0; k+1 < len(told); k += 2 {
+			if told[k] != k/2 || told[k+1] != -1 {
+				t.Errorf("sites told: %v; want 0, −1, 1, −1, …", told)
+				break
+			}
+		}
 		if z == nil {
 			t.Logf("no region improves −NPV %.2f", from.Objective)
 			return

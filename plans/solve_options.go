@@ -58,4 +58,8 @@ type Progress struct {
 	HasIncumbent bool
 	Nodes        int
 	Elapsed      time.Duration
+	// Replanning names the site around which the plan is being re-planned
+	// (under a time limit, once the local search has settled), "" when
+	// none is.
+	Replanning string
 }

@@ -213,6 +213,10 @@ func (p *progressPrinter) update(pr plans.Progress) {
 	} else if pr.HasIncumbent {
 		gap = fixed(100*pr.Gap, 3) + " %"
 	}
-	fmt.Fprintf(p.w, "  %7.1fs  %s  bound %s  gap %s  nodes %d\n",
-		pr.Elapsed.Seconds(), inc, bound, gap, pr.Nodes)
+	more := ""
+	if pr.Replanning != "" {
+		more = "  re-planning around " + pr.Replanning
+	}
+	fmt.Fprintf(p.w, "  %7.1fs  %s  bound %s  gap %s  nodes %d%s\n",
+		pr.Elapsed.Seconds(), inc, bound, gap, pr.Nodes, more)
 }

@@ -555,6 +555,23 @@ func TestProgressWithoutBound(t *testing.T) {
 	}
 }
 
+// TestProgressReplanning: while the plan around a site is being
+// re-planned, the progress line says so; otherwise it does not.
+func TestProgressReplanning(t *testing.T) {
+	var buf bytes.Buffer
+	pp := &progressPrinter{w: &buf}
+	pp.update(plans.Progress{Objective: 100, Bound: 110, Gap: 0.1, HasIncumbent: true, Nodes: 7, Elapsed: time.Second, Replanning: "Pelwenir"})
+	if got := buf.String(); !strings.HasSuffix(got, "nodes 7  re-planning around Pelwenir\n") {
+		t.Errorf("progress while re-planning: %q", got)
+	}
+	buf.Reset()
+	pp.last = time.Time{}
+	pp.update(plans.Progress{Objective: 100, Bound: 110, Gap: 0.1, HasIncumbent: true, Nodes: 8, Elapsed: 2 * time.Second})
+	if got := buf.String(); !strings.HasSuffix(got, "nodes 8\n") {
+		t.Errorf("progress without a re-plan: %q", got)
+	}
+}
+
 // TestSolveStoppedEarly cancels a solve (as Ctrl-C does) and checks that
 // the outcome and the exit code agree with DESIGN.md §4: a plan (optimal,
 // or feasible with its bound and gap) exits 0; no plan (limit) exits 1.
