@@ -78,6 +78,24 @@ func (c *cut) efficacy(x []float64) float64 {
 	return c.violation(x) / nrm
 }
 
+// sortByEfficacy orders cs by decreasing efficacy at x, keeping the
+// order of cuts of equal efficacy, and computes each efficacy once (a
+// comparator that computed them would do so at every comparison).
+func sortByEfficacy(cs []*cut, x []float64) {
+	type scored struct {
+		c   *cut
+		eff float64
+	}
+	sc := make([]scored, len(cs))
+	for k, c := range cs {
+		sc[k] = scored{c, c.efficacy(x)}
+	}
+	sort.SliceStable(sc, func(a, b int) bool { return sc[a].eff > sc[b].eff })
+	for k := range sc {
+		cs[k] = sc[k].c
+	}
+}
+
 func (c *cut) row(name string) lp.Row {
 	return lp.Row{Name: name, Lower: c.lower, Upper: c.upper, Index: c.idx, Value: c.val}
 }

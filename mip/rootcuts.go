@@ -95,7 +95,7 @@ func (s *search) rootCuts(r lp.Result) lp.Result {
 		if len(found) == 0 {
 			break
 		}
-		sort.SliceStable(found, func(a, b int) bool { return found[a].efficacy(x) > found[b].efficacy(x) })
+		sortByEfficacy(found, x)
 		if len(found) > maxCutsPerRound {
 			found = found[:maxCutsPerRound]
 		}

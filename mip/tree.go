@@ -618,8 +618,9 @@ func (s *search) treeSeparate(x []float64) bool {
 // against 2,955, in the same time (37.7 s against 35.5 s). Under a time
 // limit the gains are smaller and not on every case (DEVELOPERS.md).
 func (s *search) plungeStartSeparate(x []float64) bool {
-	if s.set.NoCuts || s.set.NoPlungeCuts || s.startCuts >= maxStartCuts || s.startSeparations >= maxStartSeparations {
-		return false
+	if s.set.NoCuts || s.set.NoPlungeCuts || (!s.set.CMIR && s.set.Separate == nil) ||
+		s.startCuts >= maxStartCuts || s.startSeparations >= maxStartSeparations {
+		return false // nothing to separate with (RINS's sub-MIPs), or a cap reached
 	}
 	s.startSeparations++
 	var found []*cut
@@ -629,7 +630,7 @@ func (s *search) plungeStartSeparate(x []float64) bool {
 	found = s.callerCuts(found, x)
 	// Past the caps they stay in the pool, from where poolToLP may take
 	// them.
-	sort.SliceStable(found, func(a, b int) bool { return found[a].efficacy(x) > found[b].efficacy(x) })
+	sortByEfficacy(found, x)
 	n := min(len(found), maxStartSeparated, maxStartCuts-s.startCuts)
 	s.startCuts += n
 	return s.cutsToLP(found[:n], "sep")
