@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"math"
 	"math/rand"
+	"strings"
 	"testing"
 
 	"netstage/lp"
@@ -160,4 +161,90 @@ func TestCMIRCutsValid(t *testing.T) {
 		t.Errorf("%d cuts found, %d with more than two columns: the test exercises too little", cuts, aggregated)
 	}
 	t.Logf("%d cuts checked, %d with more than two columns", cuts, aggregated)
+}
+
+// TestTableauMIRCutsValid checks every MIR that tableauMIR derives from
+// the optimal tableau rows (of fractional basic integer columns) of small
+// design models, with integral and with fractional data, and of random
+// MIPs against enumeration: no integer point may violate it, and each
+// must cut off the LP point. It also checks that divisors other than 1
+// give some of the cuts, so that the test reaches past the Gomory
+// mixed-integer cut. Taking every row activity as integral makes it fail
+// (checked 2026-12-05), as does a wrong sign where the activities are
+// written out in columns.
+func TestTableauMIRCutsValid(t *testing.T) {
+	rng := rand.New(rand.NewSource(11))
+	cuts, scaled := 0, 0
+	for trial := 0; trial < 160; trial++ {
+		var m *lp.Model
+		switch trial % 3 {
+		case 0:
+			m = smallDesign(rng)
+		case 1:
+			m = randomMIP(rng)
+		default:
+			// Fractional base capacities and forecasts: the flows at the
+			// integer points are fractional too, so a cut that wrongly
+			// takes a row's activity as integral can be caught.
+			m = smallDesign(rng)
+			for i, name := range m.RowName {
+				if strings.HasPrefix(name, "cap") {
+					m.RowUpper[i] += 0.5
+				}
+			}
+			for j, name := range m.ColName {
+				if strings.HasPrefix(name, "x") {
+					m.ColUpper[j] += 0.25
+				}
+			}
+		}
+		set := Settings{NoHeuristics: true, NoCuts: true, NoStrongBranching: true, NodeLimit: 1}.withDefaults()
+		s := newSearch(context.Background(), m, set)
+		s.run(nil)
+		if s.lps == nil {
+			continue
+		}
+		copy(s.glo, s.p.lower)
+		copy(s.gup, s.p.upper)
+		copy(s.lpLo, s.p.lower)
+		copy(s.lpUp, s.p.upper)
+		for j := 0; j < s.p.n; j++ {
+			s.lps.SetColBounds(j, s.p.lower[j], s.p.upper[j])
+		}
+		r := s.lpSolve(inf, 0)
+		if r.Status != lp.Optimal {
+			continue
+		}
+		sp := newTableauSpace(s.p, s.lpLo, s.lpUp, r.X, s.rows)
+		buf := make([]float64, s.p.n+s.lps.NumRows())
+		for pos, v := range s.lps.BasicVars() {
+			if v >= s.p.n || !s.p.isInt[v] {
+				continue
+			}
+			if f := r.X[v] - math.Floor(r.X[v]); f < minGomoryFrac || f > 1-minGomoryFrac {
+				continue
+			}
+			clear(buf)
+			basic, _ := s.lps.TableauRow(pos, buf)
+			c, d := tableauMIR(s.p, buf, sp, s.rows)
+			if c == nil || basic >= s.p.n {
+				continue
+			}
+			cuts++
+			if d != 1 {
+				scaled++
+			}
+			if c.violation(r.X) <= 0 {
+				t.Errorf("trial %d: cut %v·x ≤ %g is not violated at the LP point", trial, c.val, c.upper)
+			}
+			mx, ok := maxOverIntegers(t, m, c.idx, c.val)
+			if ok && mx > c.upper+1e-6*math.Max(1, math.Abs(c.upper)) {
+				t.Errorf("trial %d: cut %v on %v ≤ %g (divisor %g) is violated by an integer point (left side %g)", trial, c.val, c.idx, c.upper, d, mx)
+			}
+		}
+	}
+	if cuts < 40 || scaled == 0 {
+		t.Errorf("%d cuts found, %d with a divisor other than 1: the test exercises too little", cuts, scaled)
+	}
+	t.Logf("%d cuts checked, %d with a divisor other than 1", cuts, scaled)
 }

@@ -32,9 +32,12 @@
 //     what a chain of rows through continuous columns implies, such as a
 //     budget over spend columns that each cover priced units), the LP
 //     relaxation, rounds of
-//     sequentially lifted knapsack cover cuts on the rows and Gomory
-//     mixed-integer cuts on tableau rows (at most maxGomoryNonzeros
-//     nonzeros: denser rows slow every later iteration), aggregated
+//     sequentially lifted knapsack cover cuts on the rows, Gomory
+//     mixed-integer cuts on tableau rows and, with Settings.CMIR, from the
+//     same rows the most efficacious MIR over the divisors 1, ½, ¼ and ⅛
+//     and the complementations that c-MIR tries (tableauMIR; both at most
+//     maxGomoryNonzeros nonzeros: denser rows slow every later
+//     iteration), aggregated
 //     complemented mixed-integer rounding (c-MIR) cuts on sums of up to six
 //     tight rows (cmir.go; with Settings.CMIR), plus the caller's own cuts
 //     (Settings.Separate), with a small pool that ages slack cuts out of
@@ -110,5 +113,7 @@
 // Wolsey, Integer and Combinatorial Optimization, 1988 (Gomory mixed-integer
 // and cover inequalities); Marchand and Wolsey, "Aggregation and mixed
 // integer rounding to solve MIPs", Oper. Res. 49, 2001 (c-MIR; from
-// memory).
+// memory); Cornuéjols, Li and Vandenbussche, "K-cuts: a variation of
+// Gomory mixed integer cuts from the LP tableau", INFORMS J. Computing 15,
+// 2003 (tableau rows multiplied before rounding; from memory).
 package mip

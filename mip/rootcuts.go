@@ -75,6 +75,10 @@ func (s *search) rootCuts(r lp.Result) lp.Result {
 				buf = make([]float64, width)
 			}
 			buf = buf[:width]
+			var sp *tableauSpace
+			if s.set.CMIR {
+				sp = newTableauSpace(p, s.lpLo, s.lpUp, x, s.rows)
+			}
 			for _, g := range gps {
 				for k := range buf {
 					buf[k] = 0
@@ -84,6 +88,12 @@ func (s *search) rootCuts(r lp.Result) lp.Result {
 					continue
 				}
 				if c := gomoryFromRow(p, buf, basic, value, basis, s.lpLo, s.lpUp, s.rows); c != nil {
+					found = s.addFound(found, c, x)
+				}
+				if sp == nil {
+					continue
+				}
+				if c, _ := tableauMIR(p, buf, sp, s.rows); c != nil {
 					found = s.addFound(found, c, x)
 				}
 			}
