@@ -458,26 +458,35 @@ func newTableauSpace(p *problem, lo, up, x []float64, rows []lpRowInfo) *tableau
 // the row activities written out in columns, and its divisor; nil when
 // there is none. The only integer term of the row strictly inside its
 // bounds is the basic column, with coefficient 1, so the divisors are 1,
-// ½, ¼ and ⅛: with divisor 1 the MIR of the row is the Gomory
-// mixed-integer cut, the others are the row multiplied by 2, 4 and 8
-// before rounding (k-cuts). HiGHS rounds its tableau rows with the same
-// search over divisors as its aggregated rows (read in its source).
+// ½, ¼ and ⅛ (the last three multiply the row by 2, 4 and 8 before
+// rounding: k-cuts). With divisor 1 the MIR is the row's Gomory
+// mixed-integer cut in another form: the two differ by multiples of the
+// equality rows, whose activities this form folds into the right-hand
+// side, so the LP sees the same inequality, but this form is often the
+// sparser. The root rounds call it where gomoryFromRow gives no cut
+// (longer than maxGomoryNonzeros, or badly scaled): in the root rounds
+// of 10 sites over 10 years, 8 of the 28 rows whose MIR was a cut had no
+// Gomory cut, and those 8 MIRs had 70 to 99 nonzeros. HiGHS rounds its
+// tableau rows with the divisor search of its aggregated rows (read in
+// its source).
 //
-// Measured 2026-12-05 (synthetic cases of seed 1; tree runs one core
-// each, side by side, no time limit) with these cuts beside the Gomory
-// cuts: root bound over 10 years of 10 sites 2,156,655 against 2,156,926
-// (the LP's 2,175,425.5), of 15 sites 2,739,380 against 2,740,044, of 25
-// sites 3,794,848 against 3,796,256; the 10-site tree at 6,000 nodes
-// 2,143,183 in 110 s against 2,144,232 in 145 s, the 15-site one at
-// 3,000 nodes 2,729,028 in 211 s against 2,729,545 in 217 s, the 25-site
-// one at 800 nodes 3,787,356 in 138 s against 3,787,456 in 157 s. On M
-// (7 years) they cost (bound after 2,000 nodes 3,042,449 against
-// 3,041,859), so they come with Settings.CMIR; the 16 proofs of 10 sites
-// over 7 years took 2,158 nodes with them against 2,282, in the same
-// time. In place of the Gomory cuts instead of beside them, and with
-// divisors from every integer term (for the aggregated sums too), the
-// 10-site tree did worse than as landed (2,144,518 and 2,143,654 at
-// 110 s, against 2,143,183; 2,145,309 without these cuts).
+// Measured 2026-12-05 on the synthetic cases of seed 1 (tree runs one
+// core each, side by side, no time limit):
+//   - As landed: the root bound over 10 years of 10 sites is 2,156,720
+//     (8,904 simplex iterations) against 2,156,926 (8,867) without it;
+//     the 10-site tree at 6,000 nodes 2,141,569 in 121 s against
+//     2,144,232 in 145 s, the 15-site one at 3,000 nodes 2,729,434 in
+//     163 s against 2,729,545 in 217 s, the 25-site one at 800 nodes
+//     3,785,928 in 136 s against 3,787,456 in 157 s.
+//   - Beside every Gomory cut, not only in their place: root 2,156,655
+//     but 14,526 iterations (the same inequalities twice in the LP), and
+//     at 6,000 nodes 2,143,183; 15 sites slightly better (150 tighter
+//     after 163 s), 25 sites worse (3,787,356 at 800 nodes).
+//   - The k-cuts alone (divisor 1 skipped) left the 10-site root where it
+//     was: they seldom beat divisor 1 on efficacy (3 of 248 cuts in
+//     TestTableauMIRCutsValid).
+//   - On M (7 years), beside every Gomory cut: bound after 2,000 nodes
+//     3,042,449 against 3,041,859, so they come with Settings.CMIR.
 func tableauMIR(p *problem, row []float64, sp *tableauSpace, rows []lpRowInfo) (*cut, float64) {
 	var cols []int
 	for k, a := range row {

@@ -33,11 +33,11 @@
 //     budget over spend columns that each cover priced units), the LP
 //     relaxation, rounds of
 //     sequentially lifted knapsack cover cuts on the rows, Gomory
-//     mixed-integer cuts on tableau rows and, with Settings.CMIR, from the
-//     same rows the most efficacious MIR over the divisors 1, ½, ¼ and ⅛
-//     and the complementations that c-MIR tries (tableauMIR; both at most
-//     maxGomoryNonzeros nonzeros: denser rows slow every later
-//     iteration), aggregated
+//     mixed-integer cuts on tableau rows (at most maxGomoryNonzeros
+//     nonzeros: denser rows slow every later iteration; with
+//     Settings.CMIR, where that drops a row's cut, the most efficacious
+//     MIR of the row over the divisors 1, ½, ¼ and ⅛, often sparser:
+//     tableauMIR), aggregated
 //     complemented mixed-integer rounding (c-MIR) cuts on sums of up to six
 //     tight rows (cmir.go; with Settings.CMIR), plus the caller's own cuts
 //     (Settings.Separate), with a small pool that ages slack cuts out of

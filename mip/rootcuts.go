@@ -89,12 +89,11 @@ func (s *search) rootCuts(r lp.Result) lp.Result {
 				}
 				if c := gomoryFromRow(p, buf, basic, value, basis, s.lpLo, s.lpUp, s.rows); c != nil {
 					found = s.addFound(found, c, x)
-				}
-				if sp == nil {
-					continue
-				}
-				if c, _ := tableauMIR(p, buf, sp, s.rows); c != nil {
-					found = s.addFound(found, c, x)
+				} else if sp != nil {
+					// The same row's MIR, often sparser (tableauMIR).
+					if c, _ := tableauMIR(p, buf, sp, s.rows); c != nil {
+						found = s.addFound(found, c, x)
+					}
 				}
 			}
 		}

@@ -203,11 +203,12 @@ type Settings struct {
 	// NoRINS turns off the sub-MIP heuristic (rins.go).
 	NoRINS bool
 	// CMIR turns on c-MIR cuts (cmir.go) in the root rounds, on
-	// aggregated rows and on the Gomory cuts' tableau rows (tableauMIR);
-	// the aggregated ones that bind at the root's end stay in the LP, and
-	// the nodes take them back from the pool like covers. Off by default:
-	// on the synthetic planning cases they pay on 10-year horizons and
-	// cost time on the 25-site 7-year one (DEVELOPERS.md has the numbers).
+	// aggregated rows and on the tableau rows whose Gomory cut is dropped
+	// (tableauMIR); the aggregated ones that bind at the root's end stay
+	// in the LP, and the nodes take them back from the pool like covers.
+	// Off by default: on the synthetic planning cases they pay on 10-year
+	// horizons and cost time on the 25-site 7-year one (DEVELOPERS.md has
+	// the numbers).
 	CMIR bool
 	// NoProofs turns off the proofs learnt from nodes pruned by their
 	// bound or infeasible (proofs.go).
