@@ -390,6 +390,15 @@ func mirCut(terms []cmirTerm, b, d float64, lo, up []float64) *cut {
 	if len(coef) == 0 || len(coef) > cmirMaxNonzeros {
 		return nil
 	}
+	return upperCut(coef, rhs, lo, up, "cmir")
+}
+
+// upperCut returns the cut Σ coef[j]·x_j ≤ rhs with sorted columns,
+// scaled so that its largest coefficient is 1; terms below 1e-9 of the
+// largest are dropped, the right-hand side relaxed by their bounds. It
+// returns nil when every coefficient is 0 or a dropped term is unbounded
+// on the side it needs.
+func upperCut(coef map[int]float64, rhs float64, lo, up []float64, kind string) *cut {
 	cols := make([]int, 0, len(coef))
 	maxAbs := 0.0
 	for j, v := range coef {
@@ -400,7 +409,7 @@ func mirCut(terms []cmirTerm, b, d float64, lo, up []float64) *cut {
 	if maxAbs == 0 {
 		return nil
 	}
-	c := &cut{lower: math.Inf(-1), kind: "cmir", lpRow: -1}
+	c := &cut{lower: math.Inf(-1), kind: kind, lpRow: -1}
 	for _, j := range cols {
 		v := coef[j]
 		if math.Abs(v) <= 1e-9*maxAbs {
@@ -531,34 +540,10 @@ func expandActivities(p *problem, c *cut, sp *tableauSpace, rows []lpRowInfo) *c
 			coef[jj] += v * r.val[q]
 		}
 	}
-	cols := make([]int, 0, len(coef))
-	maxAbs := 0.0
-	for j, v := range coef {
-		cols = append(cols, j)
-		maxAbs = math.Max(maxAbs, math.Abs(v))
-	}
-	if maxAbs == 0 {
+	out := upperCut(coef, c.upper, sp.lo, sp.up, "gomory")
+	if out == nil {
 		return nil
 	}
-	sort.Ints(cols)
-	out := &cut{lower: math.Inf(-1), upper: c.upper, kind: "gomory", lpRow: -1}
-	for _, j := range cols {
-		v := coef[j]
-		if math.Abs(v) <= 1e-9*maxAbs {
-			m := sp.lo[j]
-			if v < 0 {
-				m = sp.up[j]
-			}
-			if math.IsInf(m, 0) {
-				return nil
-			}
-			out.upper -= v * m
-			continue
-		}
-		out.idx = append(out.idx, j)
-		out.val = append(out.val, v/maxAbs)
-	}
-	out.upper /= maxAbs
 	if len(out.idx) > maxGomoryNonzeros || !out.numericallySafe() {
 		return nil
 	}

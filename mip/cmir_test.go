@@ -69,6 +69,26 @@ func smallDesign(rng *rand.Rand) *lp.Model {
 	return m
 }
 
+// rootLP sets up the search of m with its LP at the global bounds and
+// solves that LP; ok is false when there is no LP or it is not optimal.
+func rootLP(m *lp.Model) (s *search, r lp.Result, ok bool) {
+	set := Settings{NoHeuristics: true, NoCuts: true, NoStrongBranching: true, NodeLimit: 1}.withDefaults()
+	s = newSearch(context.Background(), m, set)
+	s.run(nil)
+	if s.lps == nil {
+		return nil, r, false
+	}
+	copy(s.glo, s.p.lower)
+	copy(s.gup, s.p.upper)
+	copy(s.lpLo, s.p.lower)
+	copy(s.lpUp, s.p.upper)
+	for j := 0; j < s.p.n; j++ {
+		s.lps.SetColBounds(j, s.p.lower[j], s.p.upper[j])
+	}
+	r = s.lpSolve(inf, 0)
+	return s, r, r.Status == lp.Optimal
+}
+
 // maxOverIntegers returns the largest value of Σ val·x[idx] over the
 // integer points of m (every integer assignment, then an LP over the
 // continuous columns), and whether any is feasible. It solves with lp
@@ -130,16 +150,8 @@ func TestCMIRCutsValid(t *testing.T) {
 		} else {
 			m = randomMIP(rng)
 		}
-		set := Settings{NoHeuristics: true, NoCuts: true, NoStrongBranching: true, NodeLimit: 1}.withDefaults()
-		s := newSearch(context.Background(), m, set)
-		s.run(nil)
-		if s.lps == nil {
-			continue
-		}
-		copy(s.glo, s.p.lower)
-		copy(s.gup, s.p.upper)
-		r := s.lpSolve(inf, 0)
-		if r.Status != lp.Optimal {
+		s, r, ok := rootLP(m)
+		if !ok {
 			continue
 		}
 		for _, c := range s.separateCMIR(nil, r.X) {
@@ -198,21 +210,8 @@ func TestTableauMIRCutsValid(t *testing.T) {
 				}
 			}
 		}
-		set := Settings{NoHeuristics: true, NoCuts: true, NoStrongBranching: true, NodeLimit: 1}.withDefaults()
-		s := newSearch(context.Background(), m, set)
-		s.run(nil)
-		if s.lps == nil {
-			continue
-		}
-		copy(s.glo, s.p.lower)
-		copy(s.gup, s.p.upper)
-		copy(s.lpLo, s.p.lower)
-		copy(s.lpUp, s.p.upper)
-		for j := 0; j < s.p.n; j++ {
-			s.lps.SetColBounds(j, s.p.lower[j], s.p.upper[j])
-		}
-		r := s.lpSolve(inf, 0)
-		if r.Status != lp.Optimal {
+		s, r, ok := rootLP(m)
+		if !ok {
 			continue
 		}
 		sp := newTableauSpace(s.p, s.lpLo, s.lpUp, r.X, s.rows)
