@@ -75,10 +75,7 @@ func (s *search) rootCuts(r lp.Result) lp.Result {
 				buf = make([]float64, width)
 			}
 			buf = buf[:width]
-			var sp *tableauSpace
-			if s.set.CMIR {
-				sp = newTableauSpace(p, s.lpLo, s.lpUp, x, s.rows)
-			}
+			var sp *tableauSpace // built at the first row that needs it
 			for _, g := range gps {
 				for k := range buf {
 					buf[k] = 0
@@ -89,8 +86,11 @@ func (s *search) rootCuts(r lp.Result) lp.Result {
 				}
 				if c := gomoryFromRow(p, buf, basic, value, basis, s.lpLo, s.lpUp, s.rows); c != nil {
 					found = s.addFound(found, c, x)
-				} else if sp != nil {
+				} else if s.set.CMIR {
 					// The same row's MIR, often sparser (tableauMIR).
+					if sp == nil {
+						sp = newTableauSpace(p, s.lpLo, s.lpUp, x, s.rows)
+					}
 					if c, _ := tableauMIR(p, buf, sp, s.rows); c != nil {
 						found = s.addFound(found, c, x)
 					}
