@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"math"
 	"math/rand"
+	"os/exec"
 	"strings"
 	"testing"
 
@@ -246,4 +247,46 @@ func TestTableauMIRCutsValid(t *testing.T) {
 		t.Errorf("%d cuts found, %d with a divisor other than 1: the test exercises too little", cuts, scaled)
 	}
 	t.Logf("%d cuts checked, %d with a divisor other than 1", cuts, scaled)
+}
+
+// TestTableauMIRWiring checks that the root rounds use tableauMIR where a
+// row's Gomory cut is dropped, and only with Settings.CMIR: on
+// atm_5_10_1 of the COIN sample data (of the eleven sample models tried,
+// the only one where this happens; the random models of these tests
+// have no Gomory cut dropped) they find such cuts with CMIR and none
+// without, and the search with them still reaches CBC's optimum
+// (59,704.02 with CBC 2.10.8, 2026-12-05; computed again here when cbc
+// is installed). Calling tableauMIR without CMIR, or not at all, makes
+// it fail (checked 2026-12-05).
+func TestTableauMIRWiring(t *testing.T) {
+	m := readSample(t, "atm_5_10_1")
+	root := func(cmir bool) (*search, Result) {
+		s := newSearch(context.Background(), m, Settings{CMIR: cmir, NodeLimit: 2, NoHeuristics: true}.withDefaults())
+		return s, s.run(nil)
+	}
+	off, _ := root(false)
+	on, r := root(true)
+	if off.tableauMIRs != 0 || on.tableauMIRs == 0 {
+		t.Fatalf("MIRs of tableau rows found: %d without CMIR, %d with it; want 0 and some", off.tableauMIRs, on.tableauMIRs)
+	}
+	t.Logf("%d MIRs of tableau rows found in the root rounds, root bound %.4f", on.tableauMIRs, r.RootBound)
+	if testing.Short() {
+		return
+	}
+	want := 59704.02009413 // CBC 2.10.8, 2026-12-05
+	if _, err := exec.LookPath("cbc"); err == nil {
+		st, v := solveWithCBC(t, m)
+		if st != "optimal" {
+			t.Fatalf("cbc: %s", st)
+		}
+		want = v
+	}
+	full, err := Solve(context.Background(), m, Settings{CMIR: true, RelGap: 1e-9})
+	if err != nil {
+		t.Fatal(err)
+	}
+	checkIncumbent(t, m, full)
+	if full.Status != Optimal || math.Abs(full.Objective-want) > 1e-6*math.Abs(want) {
+		t.Errorf("with CMIR: status %v, objective %.6f; want optimal, %.6f", full.Status, full.Objective, want)
+	}
 }

@@ -93,6 +93,7 @@ func (s *search) rootCuts(r lp.Result) lp.Result {
 					}
 					if c, _ := tableauMIR(p, buf, sp, s.rows); c != nil {
 						found = s.addFound(found, c, x)
+						s.tableauMIRs++
 					}
 				}
 			}

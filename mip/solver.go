@@ -142,8 +142,12 @@ type search struct {
 	pool     []*cut
 	poolKeys map[uint64]bool
 	nCuts    int
-	treeCuts int // pool cuts put back into the LP during the tree search
-	sepCuts  int // the caller's cuts separated at tree nodes (treeSeparate)
+	// tableauMIRs counts the MIRs of tableau rows found in the root rounds
+	// where the row's Gomory cut was dropped (Settings.CMIR); they compete
+	// with the round's other cuts for the LP.
+	tableauMIRs int
+	treeCuts    int // pool cuts put back into the LP during the tree search
+	sepCuts     int // the caller's cuts separated at tree nodes (treeSeparate)
 	// cuts separated where plunges start, and the nodes tried there
 	// (plungeStartSeparate)
 	startCuts, startSeparations int
