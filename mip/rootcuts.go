@@ -146,6 +146,15 @@ func (s *search) rootCuts(r lp.Result) lp.Result {
 		// On large models a round takes seconds: let the caller see the
 		// bound move, and the plan the helper found meanwhile.
 		s.pollHelper()
+		if !s.deadline.IsZero() && s.helper == nil {
+			// The helper has answered: give it work again (what a call
+			// point would start: Improve on the new incumbent, or the
+			// sub-MIP) rather than leave it idle until the rounds end.
+			// On the 50-site 10-year case at 60 s, the plans of three
+			// runs went from 8,264,902–8,285,992 to 8,288,699–8,294,965
+			// (gap 2.49–2.61 % against 2.58–2.88 %); M was even.
+			s.startHelper(r.X)
+		}
 		s.progress(false)
 		s.ageCuts(false)
 		if !s.set.NoHeuristics {

@@ -489,6 +489,14 @@ func (s *search) callHeuristic(x []float64) {
 			s.tryCandidate(c)
 		}
 	}
+	s.startHelper(x)
+}
+
+// startHelper takes the answer of the helper goroutine started at the
+// last call point (see callHeuristic) and starts a new one when none runs
+// and there is work for it. With a time limit the root cut rounds call it
+// too, between rounds, once the helper has answered (rootCuts).
+func (s *search) startHelper(x []float64) {
 	if s.deadline.IsZero() {
 		s.joinHelper(false)
 	} else if s.pollHelper(); s.helper != nil {

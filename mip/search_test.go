@@ -648,6 +648,74 @@ func TestImproveTimingIndependent(t *testing.T) {
 	}
 }
 
+// TestHelperBetweenRounds: with a time limit, a helper that has
+// answered is followed, between root cut rounds, by Improve on the new
+// incumbent (on the 50-site 10-year synthetic case the rounds fill most
+// of a 60 s limit, and the helper would sit idle); without one, the next
+// Improve waits for the next call point. The model is a knapsack with
+// three rows, started from the empty plan (objective 0); Improve's first
+// answer is the greedy fill. In the first round the separation waits
+// until that answer is ready, so that the search takes it at that round's
+// end whatever the timing.
+func TestHelperBetweenRounds(t *testing.T) {
+	m := hardKnapsack(30, 3, 1)
+	greedy := make([]float64, m.NumCols())
+	for j := range greedy {
+		greedy[j] = 1
+		_, act := m.Evaluate(greedy)
+		for i, a := range act {
+			if a > m.RowUpper[i] {
+				greedy[j] = 0
+				break
+			}
+		}
+	}
+	want, _ := m.Evaluate(greedy)
+	run := func(limit time.Duration) (inc, improved float64, rounds int) {
+		set := Settings{NoHeuristics: true, NoStrongBranching: true, NoRINS: true, NodeLimit: 2, TimeLimit: limit}
+		calls := 0
+		set.Improve = func(context.Context, []float64, *lp.Basis) []float64 {
+			calls++ // on the helper goroutine, one call at a time
+			if calls == 1 {
+				return greedy
+			}
+			return nil
+		}
+		var s *search
+		inc, improved = math.NaN(), math.NaN()
+		set.Separate = func([]float64) []lp.Row {
+			if s.rootX != nil { // the tree
+				return nil
+			}
+			rounds++
+			switch rounds {
+			case 1:
+				for wait := time.Now(); s.helper != nil && len(s.helper) == 0; {
+					if time.Since(wait) > 10*time.Second {
+						t.Fatal("Improve gave no answer in 10 s")
+					}
+					time.Sleep(time.Millisecond)
+				}
+			case 2:
+				inc, improved = s.incObj, s.improvedObj
+			}
+			return nil
+		}
+		s = newSearch(context.Background(), m, set.withDefaults())
+		s.run([][]float64{make([]float64, m.NumCols())})
+		return inc, improved, rounds
+	}
+	// The search's own sense is a minimisation: the greedy fill is −want.
+	inc, improved, rounds := run(time.Hour)
+	if rounds < 2 || math.Abs(inc+want) > 1e-9 || improved != inc {
+		t.Errorf("with a time limit, second round: incumbent %v, Improve last saw %v (%d rounds); want %v for both", inc, improved, rounds, -want)
+	}
+	inc, improved, rounds = run(0)
+	if rounds < 2 || improved != 0 {
+		t.Errorf("without a time limit, second round: incumbent %v, Improve last saw %v (%d rounds); want Improve at 0 still", inc, improved, rounds)
+	}
+}
+
 // TestPollHelper checks how the search takes the helper goroutine's
 // answers between root cut rounds: pollHelper takes what is ready, without
 // waiting, and only when the search has a time limit; an answer that is

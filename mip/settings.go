@@ -167,12 +167,13 @@ type Settings struct {
 	// it takes the answer at the first call point, or between two root
 	// cut rounds, after it is ready (on large models the rounds may
 	// outlast it by most of the limit), and until then starts no other
-	// Improve or sub-MIP; an Improve may then use the time left, and its
-	// context is cancelled when the search ends. The answer is checked
-	// like a Heuristic candidate; when it becomes the incumbent, Improve
-	// gets it again at once (a caller that stopped short can go on; one
-	// that finished should answer nil at once). One Improve runs at a
-	// time, but beside the other callbacks (Heuristic, Separate,
+	// Improve or sub-MIP; where it takes the answer between rounds, it
+	// starts the next one there too. An Improve may use the time left,
+	// and its context is cancelled when the search ends. The answer is
+	// checked like a Heuristic candidate; when it becomes the incumbent,
+	// Improve gets it again at once (a caller that stopped short can go
+	// on; one that finished should answer nil at once). One Improve runs
+	// at a time, but beside the other callbacks (Heuristic, Separate,
 	// Progress): state it shares with them must be safe for that. ctx is
 	// cancelled when the search stops at its time limit or is cancelled
 	// (or, with a time limit, ends); an answer found by then is still
