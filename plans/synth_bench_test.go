@@ -27,7 +27,9 @@ const benchGap = 1e-4
 // 8,502,388); CBC 2.10.8 on L's exported MPS stopped after 1,500 s of CPU
 // at 3.5 % (plan 8,231,483, found at 1,358 s; bound 8,522,099, its root's),
 // and the npm WebAssembly build of HiGHS (package highs 1.15.3, HiGHS
-// 1.15.1) aborted on it. With the flow cut-set rows of the separation,
+// 1.15.1) aborted on it; on 2026-12-05 it ran (one thread, beside CBC):
+// 7.06 % at 60 s (its first plan, 7,954,356), 3.12 % at 600 s, while CBC
+// found no plan in 600 s. With the flow cut-set rows of the separation,
 // the same day, L ends its 60 s at 2.68 and 2.72 % (two runs, alone on
 // the machine): its root cut rounds are not done by then, and when they
 // are, their bound is only 0.07 % lower (8,497,724 against 8,503,292). M
