@@ -260,6 +260,8 @@ func TestTableauMIRCutsValid(t *testing.T) {
 // it fail (checked 2026-12-05).
 func TestTableauMIRWiring(t *testing.T) {
 	m := readSample(t, "atm_5_10_1")
+	// NodeLimit 2: the root is node 1, and a limit of 1 ends the search
+	// before its cut rounds.
 	root := func(cmir bool) (*search, Result) {
 		s := newSearch(context.Background(), m, Settings{CMIR: cmir, NodeLimit: 2, NoHeuristics: true}.withDefaults())
 		return s, s.run(nil)

@@ -672,6 +672,7 @@ func TestHelperBetweenRounds(t *testing.T) {
 	}
 	want, _ := m.Evaluate(greedy)
 	run := func(limit time.Duration) (inc, improved float64, rounds int) {
+		// NodeLimit 2: the root (node 1) with its cut rounds, then a node.
 		set := Settings{NoHeuristics: true, NoStrongBranching: true, NoRINS: true, NodeLimit: 2, TimeLimit: limit}
 		calls := 0
 		set.Improve = func(context.Context, []float64, *lp.Basis) []float64 {
